@@ -1,0 +1,75 @@
+//! Throughput of the deterministic projection: one catchment over 100 years, and
+//! 1,000 catchments over 50 years. Reported as catchment-years per second.
+//!
+//! Run: `cargo bench --bench projection`. Results are recorded in the README.
+
+use criterion::{criterion_group, criterion_main, Criterion, Throughput};
+use std::hint::black_box;
+use yieldshift::model::{
+    project_catchment, Catchment, ClassAreas, ClimateYear, ClosureCurve, Contaminant, CoverCurves, InvasionParams,
+    ModelParams,
+};
+
+fn params() -> ModelParams {
+    ModelParams {
+        curves: CoverCurves::ZHANG_DEFAULT,
+        forest_pet_factor: 1.15,
+        invasion: InvasionParams {
+            spread_rate_per_yr: 0.06,
+            seed_bearing_age_yr: 8,
+            seed_rain_ha_per_yr: 1.0,
+            medium_age_yr: 10,
+            dense_age_yr: 20,
+            initial_dense_span_yr: 10,
+            closure: ClosureCurve::Logistic { half_closure_age_yr: 12.0, steepness_per_yr: 0.35, max_fraction: 1.0 },
+        },
+        contaminants: vec![Contaminant {
+            name: "nitrate_n".into(),
+            open_export_kg_per_ha_yr: 2.5,
+            forest_export_kg_per_ha_yr: 1.5,
+            guideline_mg_per_l: Some(1.0),
+        }],
+        min_runoff_mm: 1.0,
+    }
+}
+
+fn catchment(i: usize) -> Catchment {
+    let k = (i % 17) as f64;
+    Catchment {
+        id: format!("c{i}"),
+        name: format!("c{i}"),
+        area_ha: 1000.0 + 100.0 * k,
+        rain_mm: 800.0 + 60.0 * k,
+        pet_mm: 850.0,
+        pet_forest_mm: None,
+        vulnerable_ha: 800.0,
+        infested: ClassAreas { scattered_ha: 40.0 + k, medium_ha: 10.0, dense_ha: 5.0 },
+        forest_ha: 50.0,
+        flows_to: None,
+        point_kg_per_yr: vec![100.0],
+    }
+}
+
+fn bench(c: &mut Criterion) {
+    let p = params();
+    let mut g = c.benchmark_group("projection");
+    let one = catchment(3);
+    let climate100 = vec![one.mean_climate(); 101];
+    g.throughput(Throughput::Elements(101));
+    g.bench_function("1 catchment x 100 years", |b| b.iter(|| black_box(project_catchment(&one, &climate100, &p, 2027))));
+    let many: Vec<Catchment> = (0..1000).map(catchment).collect();
+    let climates: Vec<Vec<ClimateYear>> = many.iter().map(|c| vec![c.mean_climate(); 51]).collect();
+    g.throughput(Throughput::Elements(1000 * 51));
+    g.sample_size(20);
+    g.bench_function("1000 catchments x 50 years", |b| {
+        b.iter(|| {
+            for (c, cl) in many.iter().zip(&climates) {
+                black_box(project_catchment(c, cl, &p, 2027));
+            }
+        })
+    });
+    g.finish();
+}
+
+criterion_group!(benches, bench);
+criterion_main!(benches);

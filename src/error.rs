@@ -1,0 +1,140 @@
+//! The library's error type.
+//!
+//! Input problems are collected, not thrown one at a time: a file with ten bad
+//! cells yields one [`Error::Invalid`] listing all ten [`Problem`]s, each naming
+//! the file, the spreadsheet-style row (header = row 1), the column and what is
+//! allowed. The command line maps [`Error::Invalid`] to exit code 2.
+
+use std::fmt;
+use std::path::{Path, PathBuf};
+
+/// One thing wrong with the user's input, located as precisely as possible.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Problem {
+    /// File the problem is in, if it came from a file.
+    pub file: Option<PathBuf>,
+    /// Row as a spreadsheet shows it (1-based; the CSV header is row 1), or a TOML line.
+    pub row: Option<usize>,
+    /// Column (CSV) or key (TOML) concerned.
+    pub column: Option<String>,
+    /// What is wrong and what is allowed.
+    pub message: String,
+}
+
+impl Problem {
+    /// A problem with only a message.
+    pub fn new(message: impl Into<String>) -> Self {
+        Problem { file: None, row: None, column: None, message: message.into() }
+    }
+
+    /// A problem located in a file.
+    pub fn in_file(file: &Path, message: impl Into<String>) -> Self {
+        Problem { file: Some(file.to_path_buf()), row: None, column: None, message: message.into() }
+    }
+
+    /// Sets the row (spreadsheet numbering).
+    pub fn row(mut self, row: usize) -> Self {
+        self.row = Some(row);
+        self
+    }
+
+    /// Sets the column or key.
+    pub fn column(mut self, column: impl Into<String>) -> Self {
+        self.column = Some(column.into());
+        self
+    }
+
+    /// Sets the file if none is set yet.
+    pub fn or_file(mut self, file: &Path) -> Self {
+        if self.file.is_none() {
+            self.file = Some(file.to_path_buf());
+        }
+        self
+    }
+}
+
+impl fmt::Display for Problem {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let mut wrote = false;
+        if let Some(file) = &self.file {
+            write!(f, "{}", file.display())?;
+            wrote = true;
+        }
+        if let Some(row) = self.row {
+            write!(f, "{}row {}", if wrote { ", " } else { "" }, row)?;
+            wrote = true;
+        }
+        if let Some(col) = &self.column {
+            write!(f, "{}column '{}'", if wrote { ", " } else { "" }, col)?;
+            wrote = true;
+        }
+        if wrote {
+            write!(f, ": ")?;
+        }
+        write!(f, "{}", self.message)
+    }
+}
+
+/// Errors returned by the library.
+#[derive(Debug, thiserror::Error)]
+#[non_exhaustive]
+pub enum Error {
+    /// The input is invalid; every problem found is listed.
+    #[error("{}", list_problems(.0))]
+    Invalid(Vec<Problem>),
+    /// Reading or writing a file failed for a reason other than its content.
+    #[error("{context}: {source}")]
+    Io {
+        /// What was being done, naming the file.
+        context: String,
+        /// The underlying error.
+        #[source]
+        source: std::io::Error,
+    },
+    /// Any other failure (not the user's input).
+    #[error("{0}")]
+    Other(String),
+}
+
+impl Error {
+    /// One invalid-input problem.
+    pub fn invalid(problem: Problem) -> Self {
+        Error::Invalid(vec![problem])
+    }
+
+    /// An I/O failure with context naming the file.
+    pub fn io(context: impl Into<String>, source: std::io::Error) -> Self {
+        Error::Io { context: context.into(), source }
+    }
+
+    /// True when the error is the user's input (exit code 2).
+    pub fn is_invalid_input(&self) -> bool {
+        matches!(self, Error::Invalid(_))
+    }
+
+    /// The problems, when the error is invalid input.
+    pub fn problems(&self) -> &[Problem] {
+        match self {
+            Error::Invalid(p) => p,
+            _ => &[],
+        }
+    }
+}
+
+fn list_problems(problems: &[Problem]) -> String {
+    match problems.len() {
+        0 => "invalid input".to_string(),
+        1 => problems[0].to_string(),
+        n => {
+            let mut s = format!("{n} problems in the input:");
+            for p in problems {
+                s.push_str("\n  - ");
+                s.push_str(&p.to_string());
+            }
+            s
+        }
+    }
+}
+
+/// Result alias for library functions.
+pub type Result<T> = std::result::Result<T, Error>;

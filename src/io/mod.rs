@@ -1,0 +1,10 @@
+//! Reading inputs into model types and writing outputs. The model never imports
+//! this module; data flows `io → model → io/plot`.
+
+pub mod catchments;
+pub mod climate;
+pub mod outdir;
+pub mod output;
+pub mod scenario;
+pub mod table;
+pub mod toml_reader;

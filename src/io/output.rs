@@ -1,0 +1,239 @@
+//! Tidy CSV outputs: `yearly.csv`, `summary.csv`, `nodes.csv` and `run_info.json`.
+//!
+//! Numbers are written with fixed decimals so that outputs are byte-stable;
+//! undefined values (a change against a zero baseline, a concentration in a
+//! year with too little runoff) are left empty and explained in `flags`.
+//! No cell is ever NaN or infinite.
+
+use crate::error::{Error, Result};
+use crate::model::dilution::ConcentrationFlag;
+use crate::model::summary::{CatchmentSummary, NodeYear, REPORT_OFFSETS_YR};
+use crate::model::{Catchment, Contaminant, YearResult};
+use std::fmt::Write as _;
+use std::io::Write;
+use std::path::Path;
+
+/// The cautions every output carries.
+pub const CAUTIONS: &str = "Screening estimates only: mean-annual water-balance curves applied year by year ignore \
+storage carry-over and local factors. Not a substitute for a site hydrological assessment. Defer to local \
+regulations and to qualified hydrologists and water-quality practitioners before making water-supply or \
+environmental decisions.";
+
+/// Formats a finite number with `decimals` places (−0 written as 0).
+#[inline]
+pub fn num(v: f64, decimals: usize) -> String {
+    if !v.is_finite() {
+        return String::new();
+    }
+    let s = format!("{v:.decimals$}");
+    if s.starts_with('-') && s[1..].chars().all(|c| c == '0' || c == '.') {
+        s[1..].to_string()
+    } else {
+        s
+    }
+}
+
+/// Formats an optional number (empty when `None`).
+#[inline]
+pub fn opt_num(v: Option<f64>, decimals: usize) -> String {
+    v.map(|x| num(x, decimals)).unwrap_or_default()
+}
+
+/// A buffered CSV writer that reports the file on failure.
+pub struct CsvOut {
+    w: std::io::BufWriter<std::fs::File>,
+    path: std::path::PathBuf,
+    line: String,
+}
+
+impl CsvOut {
+    /// Creates the file and writes the header.
+    pub fn create(path: &Path, header: &[String]) -> Result<CsvOut> {
+        let f = std::fs::File::create(path).map_err(|e| Error::io(format!("creating {}", path.display()), e))?;
+        let mut out = CsvOut { w: std::io::BufWriter::with_capacity(1 << 16, f), path: path.to_path_buf(), line: String::new() };
+        out.row(header.iter().map(String::as_str))?;
+        Ok(out)
+    }
+
+    /// Writes one row; fields containing a comma or quote are quoted.
+    pub fn row<'a>(&mut self, fields: impl IntoIterator<Item = &'a str>) -> Result<()> {
+        self.line.clear();
+        for (i, f) in fields.into_iter().enumerate() {
+            if i > 0 {
+                self.line.push(',');
+            }
+            if f.contains([',', '"', '\n']) {
+                let _ = write!(self.line, "\"{}\"", f.replace('"', "\"\""));
+            } else {
+                self.line.push_str(f);
+            }
+        }
+        self.line.push('\n');
+        self.w.write_all(self.line.as_bytes()).map_err(|e| Error::io(format!("writing {}", self.path.display()), e))
+    }
+
+    /// Flushes the file.
+    pub fn finish(mut self) -> Result<()> {
+        self.w.flush().map_err(|e| Error::io(format!("writing {}", self.path.display()), e))
+    }
+}
+
+/// Header of `yearly.csv`.
+pub fn yearly_header(contaminants: &[Contaminant]) -> Vec<String> {
+    let mut h: Vec<String> = [
+        "catchment",
+        "strategy",
+        "year",
+        "rain_mm",
+        "pet_mm",
+        "et_mm",
+        "yield_mm",
+        "yield_m3",
+        "baseline_yield_mm",
+        "uninvaded_yield_mm",
+        "yield_change_pct",
+        "change_vs_uninvaded_pct",
+        "canopy_fraction",
+        "scattered_ha",
+        "medium_ha",
+        "dense_ha",
+        "infested_ha",
+        "new_infestation_ha",
+    ]
+    .iter()
+    .map(|s| s.to_string())
+    .collect();
+    for c in contaminants {
+        h.push(format!("{}_load_kg_per_yr", c.name));
+        h.push(format!("{}_mg_per_l", c.name));
+    }
+    h.push("flags".into());
+    h
+}
+
+/// Flags for a year's concentrations (`low-runoff:<name>` per contaminant not stated).
+fn concentration_flags(concs: &[std::result::Result<f64, ConcentrationFlag>], contaminants: &[Contaminant]) -> String {
+    concs
+        .iter()
+        .zip(contaminants)
+        .filter(|(c, _)| c.is_err())
+        .map(|(_, m)| format!("low-runoff:{}", m.name))
+        .collect::<Vec<_>>()
+        .join(";")
+}
+
+/// Fields of one `yearly.csv` row.
+pub fn yearly_fields(c: &Catchment, strategy: &str, y: &YearResult, contaminants: &[Contaminant]) -> Vec<String> {
+    let mut f = vec![
+        c.id.clone(),
+        strategy.to_string(),
+        y.year.to_string(),
+        num(y.rain_mm, 1),
+        num(y.pet_mm, 1),
+        num(y.et_mm, 3),
+        num(y.yield_mm, 3),
+        num(y.yield_m3, 1),
+        num(y.baseline_yield_mm, 3),
+        num(y.uninvaded_yield_mm, 3),
+        opt_num(y.yield_change_pct(), 4),
+        opt_num(y.change_vs_uninvaded_pct(), 4),
+        num(y.canopy_fraction, 6),
+        num(y.classes.scattered_ha, 3),
+        num(y.classes.medium_ha, 3),
+        num(y.classes.dense_ha, 3),
+        num(y.classes.total_ha(), 3),
+        num(y.new_infestation_ha, 3),
+    ];
+    for (k, _) in contaminants.iter().enumerate() {
+        f.push(num(y.loads_kg_per_yr[k], 3));
+        f.push(y.concentrations[k].map(|v| num(v, 5)).unwrap_or_default());
+    }
+    let mut flags = concentration_flags(&y.concentrations, contaminants);
+    if y.baseline_yield_mm <= 0.0 {
+        if !flags.is_empty() {
+            flags.push(';');
+        }
+        flags.push_str("zero-baseline-yield");
+    }
+    f.push(flags);
+    f
+}
+
+/// Header of `summary.csv`.
+pub fn summary_header(contaminants: &[Contaminant]) -> Vec<String> {
+    let mut h: Vec<String> = vec!["catchment".into(), "name".into(), "strategy".into(), "area_ha".into()];
+    for o in REPORT_OFFSETS_YR {
+        h.push(format!("yield_change_{o}y_pct"));
+    }
+    for s in [
+        "yield_change_horizon_pct",
+        "change_vs_uninvaded_horizon_pct",
+        "water_lost_horizon_m3_per_yr",
+        "canopy_fraction_start",
+        "canopy_fraction_end",
+    ] {
+        h.push(s.into());
+    }
+    for c in contaminants {
+        h.push(format!("{}_first_exceedance_year", c.name));
+    }
+    h
+}
+
+/// Fields of one `summary.csv` row.
+pub fn summary_fields(c: &Catchment, strategy: &str, s: &CatchmentSummary) -> Vec<String> {
+    let mut f = vec![c.id.clone(), c.name.clone(), strategy.to_string(), num(c.area_ha, 3)];
+    for v in &s.change_at_offsets_pct {
+        f.push(opt_num(*v, 4));
+    }
+    f.push(opt_num(s.change_at_horizon_pct, 4));
+    f.push(opt_num(s.change_vs_uninvaded_at_horizon_pct, 4));
+    f.push(num(s.water_lost_at_horizon_m3, 1));
+    f.push(num(s.canopy_fraction_start, 6));
+    f.push(num(s.canopy_fraction_end, 6));
+    for y in &s.first_exceedance_year {
+        f.push(y.map(|y| y.to_string()).unwrap_or_default());
+    }
+    f
+}
+
+/// Header of `nodes.csv`.
+pub fn nodes_header(contaminants: &[Contaminant]) -> Vec<String> {
+    let mut h: Vec<String> = ["node", "strategy", "year", "upstream_catchments", "area_ha", "yield_m3", "baseline_yield_m3", "yield_change_pct"]
+        .iter()
+        .map(|s| s.to_string())
+        .collect();
+    for c in contaminants {
+        h.push(format!("{}_load_kg_per_yr", c.name));
+        h.push(format!("{}_mg_per_l", c.name));
+    }
+    h.push("flags".into());
+    h
+}
+
+/// Fields of one `nodes.csv` row.
+pub fn node_fields(node_id: &str, strategy: &str, upstream: usize, y: &NodeYear, contaminants: &[Contaminant]) -> Vec<String> {
+    let mut f = vec![
+        node_id.to_string(),
+        strategy.to_string(),
+        y.year.to_string(),
+        upstream.to_string(),
+        num(y.area_ha, 3),
+        num(y.yield_m3, 1),
+        num(y.baseline_yield_m3, 1),
+        opt_num(y.yield_change_pct(), 4),
+    ];
+    for k in 0..contaminants.len() {
+        f.push(num(y.loads_kg_per_yr[k], 3));
+        f.push(y.concentrations[k].map(|v| num(v, 5)).unwrap_or_default());
+    }
+    f.push(concentration_flags(&y.concentrations, contaminants));
+    f
+}
+
+/// Writes `run_info.json`: what was run, with which method, and the cautions.
+pub fn write_run_info(dir: &Path, info: &serde_json::Value) -> Result<()> {
+    let path = dir.join(crate::io::outdir::MARKER);
+    let text = serde_json::to_string_pretty(info).map_err(|e| Error::Other(e.to_string()))?;
+    std::fs::write(&path, text + "\n").map_err(|e| Error::io(format!("writing {}", path.display()), e))
+}

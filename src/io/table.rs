@@ -1,0 +1,320 @@
+//! Reading hand-made CSV tables robustly: delimiter and BOM sniffing, header maps,
+//! spreadsheet row numbers, number parsing with helpful hints, and collecting every
+//! problem in a file rather than stopping at the first.
+
+use crate::error::Problem;
+use std::collections::HashMap;
+use std::path::{Path, PathBuf};
+
+/// Largest input table accepted, bytes. Anything bigger is refused before parsing.
+pub const MAX_TABLE_BYTES: u64 = 512 * 1024 * 1024;
+
+/// A CSV table read into memory with its header map.
+#[derive(Debug)]
+pub struct Table {
+    /// The file it came from.
+    pub path: PathBuf,
+    /// Column names as given (trimmed).
+    pub headers: Vec<String>,
+    index: HashMap<String, usize>,
+    /// Data rows with their spreadsheet row number (header = 1).
+    pub rows: Vec<(usize, csv::StringRecord)>,
+    /// True when the file used `;` as the delimiter (decimal commas then accepted).
+    pub semicolon: bool,
+}
+
+/// Reads a CSV file. Handles a UTF-8 BOM, CRLF line ends, blank rows and a
+/// semicolon delimiter (sniffed from the header line).
+pub fn read_table(path: &Path) -> Result<Table, Vec<Problem>> {
+    let meta = std::fs::metadata(path).map_err(|e| vec![Problem::in_file(path, format!("cannot read the file: {e}"))])?;
+    if meta.is_dir() {
+        return Err(vec![Problem::in_file(path, "is a folder, not a CSV file")]);
+    }
+    if meta.len() > MAX_TABLE_BYTES {
+        return Err(vec![Problem::in_file(
+            path,
+            format!("file is {} MB; tables larger than {} MB are refused", meta.len() / 1_000_000, MAX_TABLE_BYTES / 1_000_000),
+        )]);
+    }
+    let bytes = std::fs::read(path).map_err(|e| vec![Problem::in_file(path, format!("cannot read the file: {e}"))])?;
+    parse_table(path, &bytes)
+}
+
+/// Parses CSV bytes as [`read_table`] does (exposed for tests and fuzzing).
+pub fn parse_table(path: &Path, bytes: &[u8]) -> Result<Table, Vec<Problem>> {
+    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
+    let text = std::str::from_utf8(bytes).map_err(|e| {
+        let line = bytes[..e.valid_up_to()].iter().filter(|&&b| b == b'\n').count() + 1;
+        vec![Problem::in_file(path, "is not UTF-8 text (save it as CSV UTF-8)").row(line)]
+    })?;
+    if text.trim().is_empty() {
+        return Err(vec![Problem::in_file(path, "is empty: expected a header row and at least one data row")]);
+    }
+    let first_line = text.lines().find(|l| !l.trim().is_empty()).unwrap_or("");
+    let semicolon = first_line.contains(';') && !first_line.contains(',');
+    let mut reader = csv::ReaderBuilder::new()
+        .delimiter(if semicolon { b';' } else { b',' })
+        .flexible(true)
+        .trim(csv::Trim::All)
+        .from_reader(text.as_bytes());
+    let headers: Vec<String> = match reader.headers() {
+        Ok(h) => h.iter().map(|s| s.trim().to_string()).collect(),
+        Err(e) => return Err(vec![Problem::in_file(path, format!("cannot read the header row: {e}")).row(1)]),
+    };
+    let mut problems = Vec::new();
+    let mut index = HashMap::new();
+    for (i, h) in headers.iter().enumerate() {
+        if h.is_empty() {
+            continue;
+        }
+        if index.insert(h.clone(), i).is_some() {
+            problems.push(Problem::in_file(path, "column appears more than once in the header").row(1).column(h.clone()));
+        }
+    }
+    let mut rows = Vec::new();
+    for rec in reader.records() {
+        match rec {
+            Ok(r) => {
+                let line = r.position().map(|p| p.line() as usize).unwrap_or(0);
+                if r.iter().all(|f| f.trim().is_empty()) {
+                    continue;
+                }
+                if r.len() > headers.len() {
+                    problems.push(
+                        Problem::in_file(path, format!("row has {} fields but the header has {}", r.len(), headers.len())).row(line),
+                    );
+                    continue;
+                }
+                rows.push((line, r));
+            }
+            Err(e) => {
+                let line = e.position().map(|p| p.line() as usize).unwrap_or(0);
+                problems.push(Problem::in_file(path, format!("malformed CSV: {e}")).row(line));
+            }
+        }
+    }
+    if rows.is_empty() && problems.is_empty() {
+        problems.push(Problem::in_file(path, "has a header but no data rows"));
+    }
+    if problems.is_empty() {
+        Ok(Table { path: path.to_path_buf(), headers, index, rows, semicolon })
+    } else {
+        Err(problems)
+    }
+}
+
+impl Table {
+    /// Column index of `name`, if present.
+    pub fn col(&self, name: &str) -> Option<usize> {
+        self.index.get(name).copied()
+    }
+
+    /// Checks that every header is known and every required column present.
+    /// `known` lists all valid names; `is_known` may accept patterned names too.
+    pub fn check_columns(&self, required: &[&str], known: &[&str], is_known: impl Fn(&str) -> bool) -> Vec<Problem> {
+        let mut problems = Vec::new();
+        for h in &self.headers {
+            if h.is_empty() {
+                problems.push(Problem::in_file(&self.path, "a column has an empty name").row(1));
+            } else if !known.contains(&h.as_str()) && !is_known(h) {
+                problems.push(
+                    Problem::in_file(&self.path, format!("unknown column{}", suggestion(h, known))).row(1).column(h.clone()),
+                );
+            }
+        }
+        for r in required {
+            if self.col(r).is_none() {
+                problems.push(Problem::in_file(&self.path, "required column is missing from the header").row(1).column(*r));
+            }
+        }
+        problems
+    }
+
+    /// Trimmed text of a cell (empty when the column is absent or the row is short).
+    pub fn text<'a>(&self, rec: &'a csv::StringRecord, col: &str) -> &'a str {
+        self.col(col).and_then(|i| rec.get(i)).map(str::trim).unwrap_or("")
+    }
+
+    /// Parses a numeric cell. Empty cells give `Ok(None)`.
+    pub fn number(&self, line: usize, rec: &csv::StringRecord, col: &str) -> Result<Option<f64>, Problem> {
+        let s = self.text(rec, col);
+        if s.is_empty() {
+            return Ok(None);
+        }
+        parse_number(s, self.semicolon).map(Some).map_err(|m| Problem::in_file(&self.path, m).row(line).column(col))
+    }
+
+    /// A required numeric cell within `lo..=hi` (unit named in messages).
+    pub fn required_in(
+        &self,
+        line: usize,
+        rec: &csv::StringRecord,
+        col: &str,
+        lo: f64,
+        hi: f64,
+        unit: &str,
+        problems: &mut Vec<Problem>,
+    ) -> Option<f64> {
+        match self.number(line, rec, col) {
+            Ok(Some(v)) => self.in_range(line, col, v, lo, hi, unit, problems),
+            Ok(None) => {
+                problems.push(
+                    Problem::in_file(&self.path, format!("value is missing; expected a number in {}", range_text(lo, hi, unit)))
+                        .row(line)
+                        .column(col),
+                );
+                None
+            }
+            Err(p) => {
+                problems.push(p);
+                None
+            }
+        }
+    }
+
+    /// An optional numeric cell within `lo..=hi`.
+    #[allow(clippy::too_many_arguments)]
+    pub fn optional_in(
+        &self,
+        line: usize,
+        rec: &csv::StringRecord,
+        col: &str,
+        lo: f64,
+        hi: f64,
+        unit: &str,
+        problems: &mut Vec<Problem>,
+    ) -> Option<f64> {
+        match self.number(line, rec, col) {
+            Ok(Some(v)) => self.in_range(line, col, v, lo, hi, unit, problems),
+            Ok(None) => None,
+            Err(p) => {
+                problems.push(p);
+                None
+            }
+        }
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn in_range(&self, line: usize, col: &str, v: f64, lo: f64, hi: f64, unit: &str, problems: &mut Vec<Problem>) -> Option<f64> {
+        if v < lo || v > hi {
+            let mut msg = format!("{} is out of range; allowed {}", fmt_value(v), range_text(lo, hi, unit));
+            if unit == "fraction" && v > 1.0 && v <= 100.0 {
+                msg.push_str(&format!(" (it looks like a percentage: write {} for {}%)", fmt_value(v / 100.0), fmt_value(v)));
+            }
+            problems.push(Problem::in_file(&self.path, msg).row(line).column(col));
+            None
+        } else {
+            Some(v)
+        }
+    }
+}
+
+/// Formats a number for messages without trailing noise.
+pub fn fmt_value(v: f64) -> String {
+    let s = format!("{v}");
+    if s.len() > 12 {
+        format!("{v:.6}")
+    } else {
+        s
+    }
+}
+
+/// "0 to 10 000 mm/yr" style range text.
+pub fn range_text(lo: f64, hi: f64, unit: &str) -> String {
+    let u = if unit.is_empty() { String::new() } else { format!(" {unit}") };
+    if hi.is_infinite() {
+        format!("{} or more{u}", fmt_value(lo))
+    } else {
+        format!("{} to {}{u}", fmt_value(lo), fmt_value(hi))
+    }
+}
+
+/// Parses a number written by a person, with a hint for common slips.
+///
+/// Accepts plain decimal numbers (and a decimal comma when `decimal_comma` is set).
+/// Rejects NaN and infinities, percent signs, units and thousands separators with
+/// a message saying how to write the value.
+pub fn parse_number(s: &str, decimal_comma: bool) -> Result<f64, String> {
+    let t = s.trim();
+    let candidate = if decimal_comma && t.matches(',').count() == 1 && !t.contains('.') { t.replace(',', ".") } else { t.to_string() };
+    match candidate.parse::<f64>() {
+        Ok(v) if v.is_finite() => Ok(v),
+        Ok(_) => Err(format!("'{t}' is not a finite number (NaN and infinity are not allowed)")),
+        Err(_) => Err(number_hint(t)),
+    }
+}
+
+fn number_hint(t: &str) -> String {
+    if let Some(p) = t.strip_suffix('%') {
+        if p.trim().parse::<f64>().is_ok() {
+            return format!("'{t}' has a percent sign; write a plain number (a fraction 0–1 where a fraction is asked)");
+        }
+    }
+    if t.contains(',') {
+        let dotted = t.replace(',', ".");
+        if dotted.parse::<f64>().is_ok() && t.matches(',').count() == 1 {
+            return format!("'{t}' uses a decimal comma; write {dotted} (decimal point), or give the whole file ';' separators");
+        }
+        let plain = t.replace(',', "");
+        if plain.parse::<f64>().is_ok() {
+            return format!("'{t}' has a thousands separator; write {plain}");
+        }
+    }
+    let digits: String = t.chars().take_while(|c| c.is_ascii_digit() || *c == '.' || *c == '-' || *c == '+').collect();
+    if !digits.is_empty() && digits.parse::<f64>().is_ok() && digits.len() < t.len() {
+        return format!("'{t}' has text after the number; write {digits} (units are given by the column name)");
+    }
+    format!("'{t}' is not a number")
+}
+
+/// ", did you mean 'x'?" when a close known name exists.
+pub fn suggestion(given: &str, known: &[&str]) -> String {
+    let lower = given.to_ascii_lowercase();
+    let best = known
+        .iter()
+        .map(|k| (strsim::damerau_levenshtein(&lower, &k.to_ascii_lowercase()), *k))
+        .min_by_key(|(d, _)| *d);
+    match best {
+        Some((d, k)) if d <= (given.len() / 3).max(2) => format!(" (did you mean '{k}'?)"),
+        _ => {
+            if known.len() <= 24 {
+                format!(" (valid: {})", known.join(", "))
+            } else {
+                String::new()
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn numbers_with_slips_get_hints() {
+        assert_eq!(parse_number("12.5", false), Ok(12.5));
+        assert_eq!(parse_number("12,5", true), Ok(12.5));
+        assert!(parse_number("12,5", false).unwrap_err().contains("decimal comma"));
+        assert!(parse_number("45%", false).unwrap_err().contains("percent"));
+        assert!(parse_number("1200 mm", false).unwrap_err().contains("write 1200"));
+        assert!(parse_number("1,200,000", false).unwrap_err().contains("thousands"));
+        assert!(parse_number("NaN", false).unwrap_err().contains("finite"));
+        assert!(parse_number("inf", false).unwrap_err().contains("finite"));
+    }
+
+    #[test]
+    fn suggests_near_names() {
+        assert_eq!(suggestion("area_hectares", &["area_ha", "rain_mm"]), " (valid: area_ha, rain_mm)");
+        assert_eq!(suggestion("rian_mm", &["area_ha", "rain_mm"]), " (did you mean 'rain_mm'?)");
+    }
+
+    #[test]
+    fn bom_crlf_semicolon_and_blank_rows() {
+        let t = parse_table(Path::new("x.csv"), b"\xEF\xBB\xBFa;b\r\n1,5;2\r\n\r\n;\r\n3;4\r\n").unwrap();
+        assert!(t.semicolon);
+        assert_eq!(t.headers, vec!["a", "b"]);
+        assert_eq!(t.rows.len(), 2);
+        assert_eq!(t.rows[1].0, 5);
+        assert_eq!(t.number(2, &t.rows[0].1, "a").unwrap(), Some(1.5));
+    }
+}

@@ -1,0 +1,94 @@
+//! Validated model inputs: catchments, contaminants, climate and model parameters.
+//!
+//! These are plain data. Reading them from files (and checking units and ranges)
+//! is the job of [`crate::io`]; the model trusts what it is given here.
+
+use super::budyko::CoverCurves;
+use super::cover::{ClassAreas, InvasionParams};
+
+/// One catchment, with its starting cover.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Catchment {
+    /// Identifier, unique in the basin.
+    pub id: String,
+    /// Human-readable name.
+    pub name: String,
+    /// Catchment area, ha (> 0).
+    pub area_ha: f64,
+    /// Long-term mean precipitation, mm/yr (> 0).
+    pub rain_mm: f64,
+    /// Long-term mean potential evapotranspiration over grass/tussock, mm/yr (> 0).
+    pub pet_mm: f64,
+    /// Long-term mean potential evapotranspiration over forest, mm/yr, if known.
+    /// When absent, the scenario's forest PET factor × `pet_mm` is used.
+    pub pet_forest_mm: Option<f64>,
+    /// Area that can carry the invader, including what is infested now, ha.
+    pub vulnerable_ha: f64,
+    /// Currently infested area by density class, ha.
+    pub infested: ClassAreas,
+    /// Area under forest that does not spread (native forest, plantations), ha.
+    pub forest_ha: f64,
+    /// Identifier of the catchment this one drains into, if any.
+    pub flows_to: Option<String>,
+    /// Point-source load of each contaminant (scenario order), kg/yr.
+    pub point_kg_per_yr: Vec<f64>,
+}
+
+/// A contaminant whose concentration is tracked.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Contaminant {
+    /// Name used in column headings (e.g. `nitrate_n`).
+    pub name: String,
+    /// Export coefficient of open (grass/tussock) land, kg/ha/yr.
+    pub open_export_kg_per_ha_yr: f64,
+    /// Export coefficient of conifer canopy (and existing forest), kg/ha/yr.
+    pub forest_export_kg_per_ha_yr: f64,
+    /// Guideline concentration, mg/L, if any.
+    pub guideline_mg_per_l: Option<f64>,
+}
+
+/// One year's climate for a catchment.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ClimateYear {
+    /// Precipitation, mm/yr.
+    pub rain_mm: f64,
+    /// Potential evapotranspiration over grass, mm/yr.
+    pub pet_mm: f64,
+}
+
+/// Model parameters shared by every catchment of a scenario.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ModelParams {
+    /// Water-balance curves per cover.
+    pub curves: CoverCurves,
+    /// Forest PET as a multiple of grass PET where a catchment gives no forest PET.
+    pub forest_pet_factor: f64,
+    /// Spread, density and closure.
+    pub invasion: InvasionParams,
+    /// Contaminants tracked.
+    pub contaminants: Vec<Contaminant>,
+    /// Runoff depth below which no concentration is computed, mm/yr.
+    pub min_runoff_mm: f64,
+}
+
+impl Catchment {
+    /// Long-term mean climate of the catchment.
+    pub fn mean_climate(&self) -> ClimateYear {
+        ClimateYear { rain_mm: self.rain_mm, pet_mm: self.pet_mm }
+    }
+
+    /// Forest PET in a year with grass PET `pet_mm`, mm/yr.
+    #[inline]
+    pub fn forest_pet_mm(&self, pet_mm: f64, forest_pet_factor: f64) -> f64 {
+        match self.pet_forest_mm {
+            Some(pf) if self.pet_mm > 0.0 => pet_mm * pf / self.pet_mm,
+            _ => pet_mm * forest_pet_factor,
+        }
+    }
+
+    /// Starting ET-equivalent canopy fraction is computed by the projection; this is
+    /// the fraction with no invader at all: existing forest over catchment area.
+    pub fn uninvaded_canopy_fraction(&self) -> f64 {
+        (self.forest_ha / self.area_ha).clamp(0.0, 1.0)
+    }
+}

@@ -1,0 +1,21 @@
+//! The model core: pure functions and small structs, no file system, no
+//! command line, no plotting.
+//!
+//! Data flows `catchment + climate + parameters → cover → canopy fraction →
+//! evapotranspiration → yield → loads and concentrations → summaries`.
+//! Each formulation lives in its own file with its formula, units and reference.
+
+pub mod budyko;
+pub mod catchment;
+pub mod closure;
+pub mod cover;
+pub mod dilution;
+pub mod network;
+pub mod projection;
+pub mod summary;
+
+pub use budyko::{CoverCurves, WaterBalance};
+pub use catchment::{Catchment, ClimateYear, Contaminant, ModelParams};
+pub use closure::ClosureCurve;
+pub use cover::{ClassAreas, Cohorts, DensityClass, InvasionParams};
+pub use projection::{project_catchment, YearResult};
