@@ -79,7 +79,7 @@ impl Figure for LineChart {
                 .draw_series(DashedLineSeries::new([(x0, *v), (x1, *v)], 14, 8, style))
                 .map_err(err)?
                 .label(label.as_str())
-                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 40, y)], style));
+                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 44, y)], style));
         }
         for line in &self.lines {
             let style = ShapeStyle { color: line.colour.to_rgba(), filled: false, stroke_width: 4 };
@@ -91,7 +91,7 @@ impl Figure for LineChart {
                     chart.draw_series(LineSeries::new(seg, style)).map_err(err)?
                 };
                 if first {
-                    anno.label(line.label.as_str()).legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 40, y)], style));
+                    anno.label(line.label.as_str()).legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 44, y)], style));
                     first = false;
                 }
             }
@@ -100,6 +100,7 @@ impl Figure for LineChart {
             .configure_series_labels()
             .position(SeriesLabelPosition::LowerLeft)
             .label_font((FONT, 26))
+            .legend_area_size(60)
             .background_style(WHITE.mix(0.85))
             .border_style(RGBColor(160, 160, 160))
             .draw()
@@ -170,18 +171,19 @@ impl Figure for CoverChart {
                 .draw_series(AreaSeries::new(pts, 0.0, colour.mix(0.95)).border_style(colour.stroke_width(2)))
                 .map_err(err)?
                 .label(label)
-                .legend(move |(x, y)| Rectangle::new([(x, y - 10), (x + 40, y + 10)], colour.filled()));
+                .legend(move |(x, y)| Rectangle::new([(x, y - 10), (x + 44, y + 10)], colour.filled()));
         }
         let style = ShapeStyle { color: palette::BASELINE.to_rgba(), filled: false, stroke_width: 3 };
         chart
             .draw_series(DashedLineSeries::new([(x0, self.vulnerable_ha), (x1, self.vulnerable_ha)], 14, 8, style))
             .map_err(err)?
             .label("Vulnerable area")
-            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 40, y)], style));
+            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 44, y)], style));
         chart
             .configure_series_labels()
             .position(SeriesLabelPosition::UpperLeft)
             .label_font((FONT, 26))
+            .legend_area_size(60)
             .background_style(WHITE.mix(0.85))
             .border_style(RGBColor(160, 160, 160))
             .draw()

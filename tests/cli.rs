@@ -1,0 +1,165 @@
+//! End-to-end tests: the real binary on temporary folders.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_yieldshift"))
+}
+
+fn demo() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data/scenario.toml")
+}
+
+fn run(args: &[&str]) -> Output {
+    bin().args(args).output().expect("binary runs")
+}
+
+fn text(o: &Output) -> String {
+    format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
+}
+
+fn header(path: &Path) -> Vec<String> {
+    let t = std::fs::read_to_string(path).unwrap();
+    t.lines().next().unwrap().split(',').map(str::to_string).collect()
+}
+
+#[test]
+fn demo_run_writes_every_output() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("res");
+    let o = run(&["run", demo().to_str().unwrap(), "--out", out.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", text(&o));
+
+    let h = header(&out.join("yearly.csv"));
+    for c in [
+        "catchment", "strategy", "year", "rain_mm", "pet_mm", "et_mm", "yield_mm", "yield_m3", "baseline_yield_mm",
+        "uninvaded_yield_mm", "yield_change_pct", "canopy_fraction", "scattered_ha", "medium_ha", "dense_ha",
+        "nitrate_n_mg_per_l", "total_p_mg_per_l",
+    ] {
+        assert!(h.iter().any(|x| x == c), "yearly.csv lacks {c}");
+    }
+    let yearly = std::fs::read_to_string(out.join("yearly.csv")).unwrap();
+    // 6 catchments × 61 years + header
+    assert_eq!(yearly.lines().count(), 6 * 61 + 1);
+    for line in yearly.lines().skip(1) {
+        for cell in line.split(',') {
+            let c = cell.to_ascii_lowercase();
+            assert!(!matches!(c.trim_start_matches(['+', '-']), "nan" | "inf" | "infinity"), "{line}");
+        }
+    }
+    assert!(yearly.lines().skip(1).all(|l| l.split(',').nth(1) == Some("no-control")));
+
+    let s = header(&out.join("summary.csv"));
+    for c in ["yield_change_10y_pct", "yield_change_20y_pct", "yield_change_50y_pct", "nitrate_n_first_exceedance_year"] {
+        assert!(s.iter().any(|x| x == c), "summary.csv lacks {c}");
+    }
+    assert!(out.join("nodes.csv").exists());
+    let info = std::fs::read_to_string(out.join("run_info.json")).unwrap();
+    assert!(info.contains("not a substitute for a site hydrological assessment") || info.contains("Not a substitute for a site hydrological assessment"));
+
+    let pngs: Vec<_> = std::fs::read_dir(out.join("figures"))
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|e| e == "png"))
+        .collect();
+    assert_eq!(pngs.len(), 6 * 4, "yield, two contaminants and cover per catchment");
+    for p in &pngs {
+        let dec = png::Decoder::new(std::io::BufReader::new(std::fs::File::open(p).unwrap()));
+        let mut r = dec.read_info().unwrap();
+        let mut buf = vec![0; r.output_buffer_size()];
+        let info = r.next_frame(&mut buf).unwrap();
+        assert_eq!((info.width, info.height), (1600, 1000));
+        let bytes = &buf[..info.buffer_size()];
+        let distinct = bytes.chunks(3).take(200_000).map(|c| c.to_vec()).collect::<std::collections::HashSet<_>>().len();
+        assert!(distinct > 10, "{} looks blank", p.display());
+    }
+    // No staging folder is left behind.
+    assert!(std::fs::read_dir(tmp.path()).unwrap().all(|e| !e.unwrap().file_name().to_string_lossy().contains("partial")));
+}
+
+#[test]
+fn rerun_replaces_an_earlier_run_but_refuses_a_foreign_folder() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("res");
+    for _ in 0..2 {
+        let o = run(&["run", demo().to_str().unwrap(), "--out", out.to_str().unwrap(), "--figures", "none"]);
+        assert!(o.status.success(), "{}", text(&o));
+    }
+    let foreign = tmp.path().join("mine");
+    std::fs::create_dir(&foreign).unwrap();
+    std::fs::write(foreign.join("precious.txt"), "keep me").unwrap();
+    let o = run(&["run", demo().to_str().unwrap(), "--out", foreign.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(text(&o).contains("--force"));
+    assert_eq!(std::fs::read_to_string(foreign.join("precious.txt")).unwrap(), "keep me");
+}
+
+fn broken_scenario(dir: &Path, catchments: &str) -> PathBuf {
+    std::fs::write(dir.join("c.csv"), catchments).unwrap();
+    let s = dir.join("s.toml");
+    std::fs::write(&s, "title = \"t\"\nstart_year = 2027\nhorizon_years = 20\ncatchments = \"c.csv\"\n").unwrap();
+    s
+}
+
+#[test]
+fn check_rejects_a_broken_table_naming_row_and_column() {
+    let tmp = tempfile::tempdir().unwrap();
+    let s = broken_scenario(
+        tmp.path(),
+        "id,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha\n\
+         a,100,1000,800,50,1,1,1\n\
+         b,100,lots,800,50,1,1,1\n\
+         c,-5,1000,800,50,1,1,1\n",
+    );
+    let o = run(&["check", s.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    let t = text(&o);
+    assert!(t.contains("row 3") && t.contains("'rain_mm'") && t.contains("'lots' is not a number"), "{t}");
+    // Every problem is reported, not only the first.
+    assert!(t.contains("row 4") && t.contains("'area_ha'") && t.contains("out of range"), "{t}");
+    assert!(t.contains("c.csv"), "{t}");
+}
+
+#[test]
+fn check_accepts_the_demo_and_missing_files_exit_2() {
+    let o = run(&["check", demo().to_str().unwrap()]);
+    assert!(o.status.success(), "{}", text(&o));
+    let o = run(&["check", "/no/such/scenario.toml"]);
+    assert_eq!(o.status.code(), Some(2));
+    let o = run(&["run", "--no-such-flag"]);
+    assert_eq!(o.status.code(), Some(2));
+    let o = run(&["--help"]);
+    assert_eq!(o.status.code(), Some(0));
+}
+
+#[test]
+fn unknown_scenario_key_is_reported_with_a_suggestion() {
+    let tmp = tempfile::tempdir().unwrap();
+    let s = broken_scenario(tmp.path(), "id,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha\na,100,1000,800,50,1,1,1\n");
+    let mut t = std::fs::read_to_string(&s).unwrap();
+    t.push_str("\n[invasion]\nspread_rate_per_year = 0.05\n");
+    std::fs::write(&s, t).unwrap();
+    let o = run(&["check", s.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2));
+    let t = text(&o);
+    assert!(t.contains("invasion.spread_rate_per_year") && t.contains("did you mean 'spread_rate_per_yr'"), "{t}");
+    assert!(t.contains("row 7"), "line of the key: {t}");
+}
+
+#[test]
+fn curve_json_and_table() {
+    // Source: Zhang et al. (2001) eq. 8 at E0 = P: ET/P = (1 + w)/(2 + w) = 0.75 for w = 2.
+    let o = run(&["curve", "--rain-mm", "1000", "--pet-mm", "1000", "--canopy-fraction", "1", "--json"]);
+    assert!(o.status.success());
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert!((v["et_mm"].as_f64().unwrap() - 750.0).abs() < 1e-9);
+    assert!((v["yield_mm"].as_f64().unwrap() - 250.0).abs() < 1e-9);
+    let o = run(&["curve", "--rain-mm", "1000", "--pet-mm", "1000", "--method", "fu", "--omega-grass", "2"]);
+    assert!(o.status.success());
+    // Source: Fu (1981): ω = 2, φ = 1 → ET/P = 2 − √2 = 0.5858.
+    assert!(String::from_utf8_lossy(&o.stdout).contains("585.8"), "{}", text(&o));
+    let o = run(&["curve", "--rain-mm", "1000", "--pet-mm", "1000", "--canopy-fraction", "1.5"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(text(&o).contains("--canopy-fraction"));
+}
