@@ -47,6 +47,7 @@ fn catchment(i: usize) -> Catchment {
         forest_ha: 50.0,
         flows_to: None,
         point_kg_per_yr: vec![100.0],
+        curves: None,
     }
 }
 

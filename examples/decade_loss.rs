@@ -35,6 +35,7 @@ fn main() {
         forest_ha: 0.0,
         flows_to: None,
         point_kg_per_yr: vec![],
+        curves: None,
     };
     let years = project_catchment(&c, &vec![c.mean_climate(); 61], &params, 2027);
     println!("{:>6} {:>10} {:>10} {:>9} {:>9}", "year", "yield_mm", "base_mm", "change_%", "canopy");

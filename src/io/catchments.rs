@@ -167,6 +167,7 @@ pub fn read_catchments(path: &Path, contaminants: &[Contaminant]) -> Result<(Vec
                 forest_ha: forest,
                 flows_to,
                 point_kg_per_yr: points,
+                curves: None,
             });
             rows.push(line);
         } else {

@@ -73,13 +73,16 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
     if !problems.is_empty() {
         return Err(Error::Invalid(problems));
     }
-    let (catchments, rows) = match read_catchments(&raw.catchments_path, &raw.params.contaminants) {
+    let (mut catchments, rows) = match read_catchments(&raw.catchments_path, &raw.params.contaminants) {
         Ok(c) => c,
         Err(p) => {
             problems.extend(p);
             (Vec::new(), Vec::new())
         }
     };
+    if !catchments.is_empty() {
+        problems.extend(apply_calibration(&raw.calibration, &raw.params, &mut catchments));
+    }
     let network = if catchments.is_empty() {
         None
     } else {
@@ -146,6 +149,99 @@ struct RawScenario {
     climate_path: Option<PathBuf>,
     beyond_record: BeyondRecord,
     params: ModelParams,
+    calibration: Vec<RawCalibration>,
+}
+
+/// A `[[calibration]]` entry: fitted curve parameters for one catchment, or a donor.
+struct RawCalibration {
+    catchment: String,
+    w_forest: Option<f64>,
+    w_grass: Option<f64>,
+    omega_forest: Option<f64>,
+    omega_grass: Option<f64>,
+    donor: Option<String>,
+    /// Located problem templates for the `catchment` and `donor` keys.
+    at_catchment: Problem,
+    at_donor: Problem,
+}
+
+fn read_calibration(root: &Section<'_>) -> Vec<RawCalibration> {
+    root.array_of_tables("calibration")
+        .into_iter()
+        .map(|s| {
+            let r = RawCalibration {
+                catchment: s.string("catchment", None).unwrap_or_default(),
+                w_forest: s.opt_f64_in("w_forest", 0.01, 20.0, ""),
+                w_grass: s.opt_f64_in("w_grass", 0.01, 20.0, ""),
+                omega_forest: s.opt_f64_in("omega_forest", 1.01, 20.0, ""),
+                omega_grass: s.opt_f64_in("omega_grass", 1.01, 20.0, ""),
+                donor: s.opt_string("donor"),
+                at_catchment: s.problem("catchment", ""),
+                at_donor: s.problem("donor", ""),
+            };
+            let n_values = [r.w_forest, r.w_grass, r.omega_forest, r.omega_grass].iter().filter(|v| v.is_some()).count();
+            if r.donor.is_some() && n_values > 0 {
+                s.push("donor", "give either fitted values or a donor catchment, not both");
+            } else if r.donor.is_none() && n_values == 0 {
+                s.push("catchment", "needs fitted values (w_grass, w_forest, omega_grass, omega_forest) or donor = \"<catchment id>\"");
+            }
+            s.finish();
+            r
+        })
+        .collect()
+}
+
+/// Applies `[[calibration]]` entries to the catchments (per-catchment curve parameters).
+fn apply_calibration(cal: &[RawCalibration], params: &ModelParams, catchments: &mut [Catchment]) -> Vec<Problem> {
+    let mut problems = Vec::new();
+    let ids: Vec<&str> = catchments.iter().map(|c| c.id.as_str()).collect();
+    let index = |id: &str| ids.iter().position(|&x| x == id);
+    let with_msg = |p: &Problem, m: String| Problem { message: m, ..p.clone() };
+    let mut fitted: Vec<Option<CoverCurves>> = vec![None; catchments.len()];
+    for r in cal.iter().filter(|r| r.donor.is_none()) {
+        let Some(i) = index(&r.catchment) else {
+            problems.push(with_msg(&r.at_catchment, format!("'{}' is not a catchment of the scenario{}", r.catchment, crate::io::table::suggestion(&r.catchment, &ids))));
+            continue;
+        };
+        if fitted[i].is_some() {
+            problems.push(with_msg(&r.at_catchment, format!("catchment '{}' is calibrated twice", r.catchment)));
+        }
+        fitted[i] = Some(match params.curves {
+            CoverCurves::Zhang { w_forest, w_grass } => {
+                if r.omega_forest.is_some() || r.omega_grass.is_some() {
+                    problems.push(with_msg(&r.at_catchment, "gives Fu's omega but [hydrology] method is zhang".into()));
+                }
+                CoverCurves::Zhang { w_forest: r.w_forest.unwrap_or(w_forest), w_grass: r.w_grass.unwrap_or(w_grass) }
+            }
+            CoverCurves::Fu { omega_forest, omega_grass } => {
+                if r.w_forest.is_some() || r.w_grass.is_some() {
+                    problems.push(with_msg(&r.at_catchment, "gives Zhang's w but [hydrology] method is fu".into()));
+                }
+                CoverCurves::Fu { omega_forest: r.omega_forest.unwrap_or(omega_forest), omega_grass: r.omega_grass.unwrap_or(omega_grass) }
+            }
+        });
+    }
+    let mut applied = fitted.clone();
+    for r in cal.iter() {
+        let Some(donor) = &r.donor else { continue };
+        let Some(i) = index(&r.catchment) else {
+            problems.push(with_msg(&r.at_catchment, format!("'{}' is not a catchment of the scenario{}", r.catchment, crate::io::table::suggestion(&r.catchment, &ids))));
+            continue;
+        };
+        match index(donor) {
+            None => problems.push(with_msg(&r.at_donor, format!("donor '{donor}' is not a catchment of the scenario{}", crate::io::table::suggestion(donor, &ids)))),
+            Some(j) => match fitted[j] {
+                Some(c) => applied[i] = Some(c),
+                None => problems.push(with_msg(&r.at_donor, format!("donor '{donor}' has no fitted values of its own in [[calibration]]"))),
+            },
+        }
+    }
+    for (c, cv) in catchments.iter_mut().zip(applied) {
+        if cv.is_some() {
+            c.curves = cv;
+        }
+    }
+    problems
 }
 
 fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
@@ -180,6 +276,7 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
         None => 1.0,
     };
     let contaminants = read_contaminants(&root);
+    let calibration = read_calibration(&root);
     root.finish();
     RawScenario {
         title,
@@ -189,6 +286,7 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
         climate_path,
         beyond_record,
         params: ModelParams { curves, forest_pet_factor, invasion, contaminants, min_runoff_mm },
+        calibration,
     }
 }
 

@@ -32,6 +32,8 @@ pub struct Catchment {
     pub flows_to: Option<String>,
     /// Point-source load of each contaminant (scenario order), kg/yr.
     pub point_kg_per_yr: Vec<f64>,
+    /// Curve parameters fitted for this catchment, overriding the scenario's.
+    pub curves: Option<CoverCurves>,
 }
 
 /// A contaminant whose concentration is tracked.
@@ -72,6 +74,12 @@ pub struct ModelParams {
 }
 
 impl Catchment {
+    /// The water-balance curves that apply to this catchment.
+    #[inline]
+    pub fn curves<'a>(&'a self, params: &'a ModelParams) -> &'a CoverCurves {
+        self.curves.as_ref().unwrap_or(&params.curves)
+    }
+
     /// Long-term mean climate of the catchment.
     pub fn mean_climate(&self) -> ClimateYear {
         ClimateYear { rain_mm: self.rain_mm, pet_mm: self.pet_mm }

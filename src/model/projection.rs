@@ -73,7 +73,7 @@ pub fn percent_change(value: f64, reference: f64) -> Option<f64> {
 #[inline]
 pub fn et_and_yield_mm(c: &Catchment, p: &ModelParams, climate: ClimateYear, canopy_fraction: f64) -> (f64, f64) {
     let pet_forest = c.forest_pet_mm(climate.pet_mm, p.forest_pet_factor);
-    let et = mixed_et_mm(&p.curves, climate.rain_mm, pet_forest, climate.pet_mm, canopy_fraction);
+    let et = mixed_et_mm(c.curves(p), climate.rain_mm, pet_forest, climate.pet_mm, canopy_fraction);
     (et, (climate.rain_mm - et).max(0.0))
 }
 
@@ -81,6 +81,13 @@ pub fn et_and_yield_mm(c: &Catchment, p: &ModelParams, climate: ClimateYear, can
 #[inline]
 pub fn canopy_fraction(c: &Catchment, cohorts: &Cohorts, closure_by_age: &[f64]) -> f64 {
     ((c.forest_ha + cohorts.canopy_ha(closure_by_age)) / c.area_ha).clamp(0.0, 1.0)
+}
+
+/// Canopy fraction of the catchment's starting cover (year 0).
+pub fn starting_canopy_fraction(c: &Catchment, p: &ModelParams) -> f64 {
+    let cohorts = Cohorts::from_classes(&p.invasion, c.infested);
+    let closure = p.invasion.closure.table_by_whole_year(cohorts.oldest_age_yr());
+    canopy_fraction(c, &cohorts, &closure)
 }
 
 /// Projects one catchment over `climate.len()` years starting at `start_year`.

@@ -46,5 +46,6 @@ pub fn tussock(area_ha: f64, rain_mm: f64, pet_mm: f64, vulnerable_ha: f64, infe
         forest_ha: 0.0,
         flows_to: None,
         point_kg_per_yr: vec![0.0],
+        curves: None,
     }
 }
