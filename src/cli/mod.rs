@@ -2,6 +2,7 @@
 //! place, [`main`]: 0 success, 2 invalid input or usage, 1 any other failure.
 
 mod curve;
+pub mod pet;
 mod run;
 
 use clap::{Parser, Subcommand};
@@ -26,6 +27,8 @@ pub enum Command {
     Check(run::CheckArgs),
     /// Evaluate the water-balance curve at one point.
     Curve(curve::CurveArgs),
+    /// Compute reference evapotranspiration (FAO-56) from weather records.
+    Pet(pet::PetArgs),
 }
 
 /// Runs the command line and returns the process exit code.
@@ -42,6 +45,7 @@ pub fn main() -> ExitCode {
         Command::Run(a) => run::run(a),
         Command::Check(a) => run::check(a),
         Command::Curve(a) => curve::run(a),
+        Command::Pet(a) => pet::run(a),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

@@ -8,3 +8,4 @@ pub mod output;
 pub mod scenario;
 pub mod table;
 pub mod toml_reader;
+pub mod weather;

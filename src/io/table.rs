@@ -4,10 +4,14 @@
 
 use crate::error::Problem;
 use std::collections::HashMap;
+use std::io::Read;
 use std::path::{Path, PathBuf};
 
-/// Largest input table accepted, bytes. Anything bigger is refused before parsing.
+/// Largest input table accepted, bytes (512 MiB). Anything bigger is refused
+/// before a byte of it is read.
 pub const MAX_TABLE_BYTES: u64 = 512 * 1024 * 1024;
+
+const MIB: u64 = 1024 * 1024;
 
 /// A CSV table read into memory with its header map.
 #[derive(Debug)]
@@ -25,19 +29,44 @@ pub struct Table {
 
 /// Reads a CSV file. Handles a UTF-8 BOM, CRLF line ends, blank rows and a
 /// semicolon delimiter (sniffed from the header line).
+///
+/// Only regular files are read (a device or pipe named by mistake could be
+/// endless), and never more than [`MAX_TABLE_BYTES`].
 pub fn read_table(path: &Path) -> Result<Table, Vec<Problem>> {
-    let meta = std::fs::metadata(path).map_err(|e| vec![Problem::in_file(path, format!("cannot read the file: {e}"))])?;
-    if meta.is_dir() {
-        return Err(vec![Problem::in_file(path, "is a folder, not a CSV file")]);
-    }
-    if meta.len() > MAX_TABLE_BYTES {
-        return Err(vec![Problem::in_file(
-            path,
-            format!("file is {} MB; tables larger than {} MB are refused", meta.len() / 1_000_000, MAX_TABLE_BYTES / 1_000_000),
-        )]);
-    }
-    let bytes = std::fs::read(path).map_err(|e| vec![Problem::in_file(path, format!("cannot read the file: {e}"))])?;
+    let bytes = read_limited(path, MAX_TABLE_BYTES, "tables", "a CSV file").map_err(|p| vec![p])?;
     parse_table(path, &bytes)
+}
+
+/// Reads a whole regular file of at most `max_bytes`, refusing folders, devices,
+/// pipes and oversized files before reading them. `what` names the kind of file
+/// in messages ("tables"), `expected` what it should be ("a CSV file").
+pub fn read_limited(path: &Path, max_bytes: u64, what: &str, expected: &str) -> Result<Vec<u8>, Problem> {
+    let meta = std::fs::metadata(path).map_err(|e| Problem::in_file(path, format!("cannot read the file: {e}")))?;
+    if meta.is_dir() {
+        return Err(Problem::in_file(path, format!("is a folder, not {expected}")));
+    }
+    if !meta.is_file() {
+        return Err(Problem::in_file(path, format!("is not a regular file (a device or pipe?); expected {expected}")));
+    }
+    if meta.len() > max_bytes {
+        return Err(Problem::in_file(path, too_big(meta.len(), max_bytes, what)));
+    }
+    let file = std::fs::File::open(path).map_err(|e| Problem::in_file(path, format!("cannot read the file: {e}")))?;
+    let mut bytes = Vec::with_capacity(meta.len() as usize);
+    // The file may grow between the size check and the read: never take more than the limit.
+    file.take(max_bytes + 1)
+        .read_to_end(&mut bytes)
+        .map_err(|e| Problem::in_file(path, format!("cannot read the file: {e}")))?;
+    if bytes.len() as u64 > max_bytes {
+        return Err(Problem::in_file(path, too_big(bytes.len() as u64, max_bytes, what)));
+    }
+    Ok(bytes)
+}
+
+fn too_big(len: u64, max_bytes: u64, what: &str) -> String {
+    let size = if len >= 10 * MIB { format!("{} MiB", len / MIB) } else { format!("{len} bytes") };
+    let limit = if max_bytes >= MIB { format!("{} MiB", max_bytes / MIB) } else { format!("{max_bytes} bytes") };
+    format!("file is {size}; {what} larger than {limit} are refused (is this the right file?)")
 }
 
 /// Parses CSV bytes as [`read_table`] does (exposed for tests and fuzzing).
@@ -45,15 +74,30 @@ pub fn parse_table(path: &Path, bytes: &[u8]) -> Result<Table, Vec<Problem>> {
     let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
     let text = std::str::from_utf8(bytes).map_err(|e| {
         let line = bytes[..e.valid_up_to()].iter().filter(|&&b| b == b'\n').count() + 1;
-        vec![Problem::in_file(path, "is not UTF-8 text (save it as CSV UTF-8)").row(line)]
+        let hint = if bytes.starts_with(b"\xFF\xFE") || bytes.starts_with(b"\xFE\xFF") {
+            "is UTF-16 text; save it as CSV UTF-8"
+        } else if bytes.starts_with(b"PK\x03\x04") {
+            "is a zip archive (an .xlsx workbook?); export the sheet as CSV UTF-8"
+        } else {
+            "is not UTF-8 text (save it as CSV UTF-8)"
+        };
+        vec![Problem::in_file(path, hint).row(line)]
     })?;
     if text.trim().is_empty() {
         return Err(vec![Problem::in_file(path, "is empty: expected a header row and at least one data row")]);
     }
     let first_line = text.lines().find(|l| !l.trim().is_empty()).unwrap_or("");
     let semicolon = first_line.contains(';') && !first_line.contains(',');
+    if !first_line.contains(';') && !first_line.contains(',') && first_line.contains('\t') {
+        return Err(vec![Problem::in_file(
+            path,
+            "the header row is separated by tabs; save the sheet as CSV (comma- or semicolon-separated)",
+        )
+        .row(1)]);
+    }
+    let delimiter = if semicolon { b';' } else { b',' };
     let mut reader = csv::ReaderBuilder::new()
-        .delimiter(if semicolon { b';' } else { b',' })
+        .delimiter(delimiter)
         .flexible(true)
         .trim(csv::Trim::All)
         .from_reader(text.as_bytes());
@@ -72,34 +116,110 @@ pub fn parse_table(path: &Path, bytes: &[u8]) -> Result<Table, Vec<Problem>> {
         }
     }
     let mut rows = Vec::new();
+    let mut counter = RowCounter::new(text.as_bytes(), delimiter);
     for rec in reader.records() {
         match rec {
             Ok(r) => {
-                let line = r.position().map(|p| p.line() as usize).unwrap_or(0);
+                let line = r.position().map(|p| counter.row_at(p.byte() as usize)).unwrap_or(0);
                 if r.iter().all(|f| f.trim().is_empty()) {
                     continue;
                 }
-                if r.len() > headers.len() {
+                // Spreadsheets often export trailing empty cells past the last named column.
+                if r.len() > headers.len() && r.iter().skip(headers.len()).any(|f| !f.trim().is_empty()) {
+                    let hint = if semicolon {
+                        ""
+                    } else {
+                        " (an unquoted decimal comma or thousands separator, e.g. 12,5 or 1,200, splits a number in two)"
+                    };
                     problems.push(
-                        Problem::in_file(path, format!("row has {} fields but the header has {}", r.len(), headers.len())).row(line),
+                        Problem::in_file(path, format!("row has {} fields but the header has {}{hint}", r.len(), headers.len())).row(line),
                     );
                     continue;
                 }
                 rows.push((line, r));
             }
             Err(e) => {
-                let line = e.position().map(|p| p.line() as usize).unwrap_or(0);
+                let line = e.position().map(|p| counter.row_at(p.byte() as usize)).unwrap_or(0);
                 problems.push(Problem::in_file(path, format!("malformed CSV: {e}")).row(line));
             }
         }
     }
     if rows.is_empty() && problems.is_empty() {
-        problems.push(Problem::in_file(path, "has a header but no data rows"));
+        problems.push(Problem::in_file(path, "has a header but no data rows").row(1));
     }
     if problems.is_empty() {
         Ok(Table { path: path.to_path_buf(), headers, index, rows, semicolon })
     } else {
         Err(problems)
+    }
+}
+
+/// Spreadsheet row of a record from the byte offset the csv reader reports.
+///
+/// A spreadsheet shows one row per line of the file, blank lines included, except
+/// that a line break inside a quoted cell (a multi-line note) stays in its row.
+/// `csv`'s own `Position::line` skips blank lines and counts breaks inside quotes,
+/// so rows are counted here: every line end (`\n`, `\r\n` or a lone `\r`) outside
+/// quotes starts a new row. The scan follows the quoting rule of the csv reader: a
+/// quote opens a quoted cell only as the first character of a field.
+struct RowCounter<'a> {
+    bytes: &'a [u8],
+    delimiter: u8,
+    pos: usize,
+    row: usize,
+    state: Scan,
+}
+
+#[derive(Clone, Copy, PartialEq)]
+enum Scan {
+    FieldStart,
+    Unquoted,
+    Quoted,
+    QuoteInQuoted,
+}
+
+impl<'a> RowCounter<'a> {
+    fn new(bytes: &'a [u8], delimiter: u8) -> Self {
+        RowCounter { bytes, delimiter, pos: 0, row: 1, state: Scan::FieldStart }
+    }
+
+    /// Row (1-based) where the record reported at `byte` starts. Offsets should not
+    /// decrease; if one does, counting restarts from the top.
+    fn row_at(&mut self, byte: usize) -> usize {
+        let n = self.bytes.len();
+        let mut start = byte.min(n);
+        // The reported offset can sit before the record's own line end (CRLF) or blank lines.
+        while start < n && matches!(self.bytes[start], b'\r' | b'\n') {
+            start += 1;
+        }
+        if start < self.pos {
+            *self = RowCounter::new(self.bytes, self.delimiter);
+        }
+        for i in self.pos..start {
+            let b = self.bytes[i];
+            self.state = match (self.state, b) {
+                (Scan::Quoted, b'"') => Scan::QuoteInQuoted,
+                (Scan::Quoted, _) => Scan::Quoted,
+                (Scan::QuoteInQuoted, b'"') => Scan::Quoted,
+                (Scan::FieldStart, b'"') => Scan::Quoted,
+                (_, b'\n') => {
+                    self.row += 1;
+                    Scan::FieldStart
+                }
+                (_, b'\r') => {
+                    if self.bytes.get(i + 1) != Some(&b'\n') {
+                        self.row += 1;
+                    }
+                    Scan::FieldStart
+                }
+                (_, d) if d == self.delimiter => Scan::FieldStart,
+                _ => Scan::Unquoted,
+            };
+        }
+        self.pos = start;
+        // A record always begins at a field start; resynchronise after malformed input.
+        self.state = Scan::FieldStart;
+        self.row
     }
 }
 

@@ -11,6 +11,7 @@ pub mod closure;
 pub mod cover;
 pub mod dilution;
 pub mod network;
+pub mod pet;
 pub mod projection;
 pub mod summary;
 

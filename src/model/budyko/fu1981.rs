@@ -56,7 +56,7 @@ mod tests {
     fn stable_form_equals_naive_form_where_naive_is_accurate() {
         // Source: Fu (1981) as written in Zhang et al. (2004), eq. 4.
         for &omega in &[1.5, 2.6, 4.0] {
-            for &phi in &[0.1, 0.5, 1.0, 2.0, 5.0] {
+            for &phi in &[0.1f64, 0.5, 1.0, 2.0, 5.0] {
                 let naive: f64 = 1.0 + phi - (1.0 + phi.powf(omega)).powf(1.0 / omega);
                 assert_abs_diff_eq!(Fu1981 { omega }.evaporative_ratio(phi), naive, epsilon = 1e-12);
             }
