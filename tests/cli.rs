@@ -40,21 +40,35 @@ fn demo_run_writes_every_output() {
         assert!(h.iter().any(|x| x == c), "yearly.csv lacks {c}");
     }
     let yearly = std::fs::read_to_string(out.join("yearly.csv")).unwrap();
-    // 6 catchments × 61 years + header
-    assert_eq!(yearly.lines().count(), 6 * 61 + 1);
+    // 6 catchments × 61 years × (no-control + 3 demo strategies) + header
+    assert_eq!(yearly.lines().count(), 6 * 61 * 4 + 1);
+    for st in ["no-control", "contain-early", "best-value", "dense-first"] {
+        let n = yearly.lines().filter(|l| l.split(',').nth(1) == Some(st)).count();
+        assert_eq!(n, 6 * 61, "{st}");
+    }
     for line in yearly.lines().skip(1) {
         for cell in line.split(',') {
             let c = cell.to_ascii_lowercase();
             assert!(!matches!(c.trim_start_matches(['+', '-']), "nan" | "inf" | "infinity"), "{line}");
         }
     }
-    assert!(yearly.lines().skip(1).all(|l| l.split(',').nth(1) == Some("no-control")));
+    for c in ["control_cost", "treated_ha", "cleared_ha", "water_saved_m3", "cumulative_cost", "cumulative_water_saved_m3"] {
+        assert!(h.iter().any(|x| x == c), "yearly.csv lacks {c}");
+    }
 
     let s = header(&out.join("summary.csv"));
     for c in ["yield_change_10y_pct", "yield_change_20y_pct", "yield_change_50y_pct", "nitrate_n_first_exceedance_year"] {
         assert!(s.iter().any(|x| x == c), "summary.csv lacks {c}");
     }
+    for c in ["total_cost", "total_cost_pv", "water_saved_m3", "water_saved_pv_m3", "cost_per_m3", "npv", "benefit_cost_ratio"] {
+        assert!(s.iter().any(|x| x == c), "summary.csv lacks {c}");
+    }
+    let summary = std::fs::read_to_string(out.join("summary.csv")).unwrap();
+    assert_eq!(summary.lines().filter(|l| l.starts_with("basin,")).count(), 4, "one basin row per strategy");
     assert!(out.join("nodes.csv").exists());
+    let delay = std::fs::read_to_string(out.join("delay.csv")).unwrap();
+    assert_eq!(delay.lines().count(), 1 + 4, "contain-early lists four delays");
+    assert!(std::fs::read_to_string(out.join("budget.csv")).unwrap().lines().count() > 3 * 61);
     let info = std::fs::read_to_string(out.join("run_info.json")).unwrap();
     assert!(info.contains("not a substitute for a site hydrological assessment") || info.contains("Not a substitute for a site hydrological assessment"));
 
@@ -63,7 +77,15 @@ fn demo_run_writes_every_output() {
         .map(|e| e.unwrap().path())
         .filter(|p| p.extension().is_some_and(|e| e == "png"))
         .collect();
-    assert_eq!(pngs.len(), 6 * 4, "yield, two contaminants and cover per catchment");
+    let per_catchment = pngs
+        .iter()
+        .filter(|p| !["basin_", "strategies_", "delay_"].iter().any(|pre| p.file_name().unwrap().to_string_lossy().starts_with(pre)))
+        .count();
+    assert_eq!(per_catchment, 6 * 4, "yield, two contaminants and cover per catchment");
+    for f in ["strategies_cost_vs_water", "delay_contain-early", "basin_no-control_cover", "basin_best-value_cover"] {
+        assert!(out.join("figures").join(format!("{f}.png")).exists(), "{f}");
+        assert!(out.join("figures").join(format!("{f}.svg")).exists(), "{f}");
+    }
     for p in &pngs {
         let dec = png::Decoder::new(std::io::BufReader::new(std::fs::File::open(p).unwrap()));
         let mut r = dec.read_info().unwrap();

@@ -1,6 +1,7 @@
 //! Reading inputs into model types and writing outputs. The model never imports
 //! this module; data flows `io → model → io/plot`.
 
+pub mod budget;
 pub mod catchments;
 pub mod climate;
 pub mod outdir;

@@ -6,7 +6,9 @@
 //! No cell is ever NaN or infinite.
 
 use crate::error::{Error, Result};
+use crate::model::control::{BudgetYear, ControlYear};
 use crate::model::dilution::ConcentrationFlag;
+use crate::model::economics::ProgrammeTotals;
 use crate::model::summary::{CatchmentSummary, NodeYear, REPORT_OFFSETS_YR};
 use crate::model::{Catchment, Contaminant, YearResult};
 use std::fmt::Write as _;
@@ -99,6 +101,13 @@ pub fn yearly_header(contaminants: &[Contaminant]) -> Vec<String> {
         "dense_ha",
         "infested_ha",
         "new_infestation_ha",
+        "control_cost",
+        "treated_ha",
+        "cleared_ha",
+        "regrowth_ha",
+        "water_saved_m3",
+        "cumulative_cost",
+        "cumulative_water_saved_m3",
     ]
     .iter()
     .map(|s| s.to_string())
@@ -122,8 +131,21 @@ fn concentration_flags(concs: &[std::result::Result<f64, ConcentrationFlag>], co
         .join(";")
 }
 
+/// Control columns of one `yearly.csv` row.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct ControlCells {
+    /// The year's control outcome.
+    pub control: ControlYear,
+    /// Water saved vs no-control in the same catchment and year, m³.
+    pub water_saved_m3: f64,
+    /// Cost so far, $.
+    pub cumulative_cost: f64,
+    /// Water saved so far, m³.
+    pub cumulative_water_saved_m3: f64,
+}
+
 /// Fields of one `yearly.csv` row.
-pub fn yearly_fields(c: &Catchment, strategy: &str, y: &YearResult, contaminants: &[Contaminant]) -> Vec<String> {
+pub fn yearly_fields(c: &Catchment, strategy: &str, y: &YearResult, ctl: &ControlCells, contaminants: &[Contaminant]) -> Vec<String> {
     let mut f = vec![
         c.id.clone(),
         strategy.to_string(),
@@ -143,6 +165,13 @@ pub fn yearly_fields(c: &Catchment, strategy: &str, y: &YearResult, contaminants
         num(y.classes.dense_ha, 3),
         num(y.classes.total_ha(), 3),
         num(y.new_infestation_ha, 3),
+        num(ctl.control.cost(), 2),
+        num(ctl.control.treated_ha, 3),
+        num(ctl.control.cleared_ha, 3),
+        num(ctl.control.regrowth_ha, 3),
+        num(ctl.water_saved_m3, 1),
+        num(ctl.cumulative_cost, 2),
+        num(ctl.cumulative_water_saved_m3, 1),
     ];
     for (k, _) in contaminants.iter().enumerate() {
         f.push(num(y.loads_kg_per_yr[k], 3));
@@ -177,11 +206,29 @@ pub fn summary_header(contaminants: &[Contaminant]) -> Vec<String> {
     for c in contaminants {
         h.push(format!("{}_first_exceedance_year", c.name));
     }
+    for s in [
+        "total_cost",
+        "total_cost_pv",
+        "water_saved_m3",
+        "water_saved_pv_m3",
+        "cost_per_m3",
+        "levelised_cost_per_m3",
+        "npv",
+        "benefit_cost_ratio",
+    ] {
+        h.push(s.into());
+    }
     h
 }
 
-/// Fields of one `summary.csv` row.
-pub fn summary_fields(c: &Catchment, strategy: &str, s: &CatchmentSummary) -> Vec<String> {
+/// Fields of one `summary.csv` row; `water_value_per_m3` enables NPV and BCR.
+pub fn summary_fields(
+    c: &Catchment,
+    strategy: &str,
+    s: &CatchmentSummary,
+    totals: &ProgrammeTotals,
+    water_value_per_m3: Option<f64>,
+) -> Vec<String> {
     let mut f = vec![c.id.clone(), c.name.clone(), strategy.to_string(), num(c.area_ha, 3)];
     for v in &s.change_at_offsets_pct {
         f.push(opt_num(*v, 4));
@@ -194,7 +241,50 @@ pub fn summary_fields(c: &Catchment, strategy: &str, s: &CatchmentSummary) -> Ve
     for y in &s.first_exceedance_year {
         f.push(y.map(|y| y.to_string()).unwrap_or_default());
     }
+    f.push(num(totals.cost, 2));
+    f.push(num(totals.cost_pv, 2));
+    f.push(num(totals.water_saved_m3, 1));
+    f.push(num(totals.water_saved_pv_m3, 1));
+    f.push(opt_num(totals.cost_per_m3(), 6));
+    f.push(opt_num(totals.levelised_cost_per_m3(), 6));
+    f.push(opt_num(water_value_per_m3.map(|v| totals.npv(v)), 2));
+    f.push(opt_num(water_value_per_m3.and_then(|v| totals.bcr(v)), 4));
     f
+}
+
+/// Header of `budget.csv`.
+pub fn budget_header() -> Vec<String> {
+    ["strategy", "pool", "year", "available", "spent", "unspent", "carried_over"].iter().map(|s| s.to_string()).collect()
+}
+
+/// Fields of one `budget.csv` row (`pool` is `basin` or a catchment id).
+pub fn budget_fields(strategy: &str, pool: &str, b: &BudgetYear) -> Vec<String> {
+    vec![
+        strategy.to_string(),
+        pool.to_string(),
+        b.year.to_string(),
+        if b.available.is_finite() { num(b.available, 2) } else { "unlimited".into() },
+        num(b.spent, 2),
+        if b.available.is_finite() { num(b.unspent(), 2) } else { String::new() },
+        num(b.carried, 2),
+    ]
+}
+
+/// Header of `delay.csv`.
+pub fn delay_header() -> Vec<String> {
+    [
+        "strategy",
+        "delay_yr",
+        "start_year",
+        "total_cost",
+        "total_cost_pv",
+        "water_saved_m3",
+        "water_lost_vs_baseline_m3",
+        "final_infested_ha",
+    ]
+    .iter()
+    .map(|s| s.to_string())
+    .collect()
 }
 
 /// Header of `nodes.csv`.

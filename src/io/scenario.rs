@@ -13,6 +13,8 @@ use crate::io::toml_reader::{Section, TomlDoc};
 use crate::model::budyko::CoverCurves;
 use crate::model::catchment::{Catchment, ClimateYear, Contaminant, ModelParams};
 use crate::model::closure::ClosureCurve;
+use crate::model::control::{Effort, PriorityRule, Strategy, TreatmentMethod};
+use crate::model::cover::DensityClass;
 use crate::model::cover::InvasionParams;
 use crate::model::network::{Network, NetworkError};
 use std::path::{Path, PathBuf};
@@ -42,6 +44,19 @@ pub struct Scenario {
     pub climate: Option<ClimateTable>,
     /// What to do for years outside the climate record.
     pub beyond_record: BeyondRecord,
+    /// Control programmes (besides the `no-control` reference), in file order.
+    pub strategies: Vec<Strategy>,
+    /// Discounting and the value of water.
+    pub economics: Economics,
+}
+
+/// Discount rate and value of water for programme economics.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Economics {
+    /// Discount rate per year, fraction (0–0.5).
+    pub discount_rate: f64,
+    /// Value of water, $/m³, if given.
+    pub water_value_per_m3: Option<f64>,
 }
 
 impl Scenario {
@@ -122,6 +137,17 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
             }
         }
     }
+    let strategies = if catchments.is_empty() {
+        Vec::new()
+    } else {
+        match resolve_strategies(&raw, &catchments) {
+            Ok(s) => s,
+            Err(p) => {
+                problems.extend(p);
+                Vec::new()
+            }
+        }
+    };
     if !problems.is_empty() {
         return Err(Error::Invalid(problems));
     }
@@ -138,6 +164,8 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
         network,
         climate,
         beyond_record: raw.beyond_record,
+        strategies,
+        economics: raw.economics,
     })
 }
 
@@ -150,6 +178,8 @@ struct RawScenario {
     beyond_record: BeyondRecord,
     params: ModelParams,
     calibration: Vec<RawCalibration>,
+    economics: Economics,
+    strategies: Vec<RawStrategy>,
 }
 
 /// A `[[calibration]]` entry: fitted curve parameters for one catchment, or a donor.
@@ -277,6 +307,19 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
     };
     let contaminants = read_contaminants(&root);
     let calibration = read_calibration(&root);
+    let economics = match root.section("economics") {
+        Some(s) => {
+            let e = Economics {
+                discount_rate: s.f64_in("discount_rate", Some(0.05), 0.0, 0.5, "per year"),
+                water_value_per_m3: s.opt_f64_in("water_value_per_m3", 0.0, 1000.0, "$/m³"),
+            };
+            s.finish();
+            e
+        }
+        None => Economics { discount_rate: 0.05, water_value_per_m3: None },
+    };
+    let treatments = read_treatments(&root);
+    let strategies = read_strategies(&root, base, &treatments);
     root.finish();
     RawScenario {
         title,
@@ -287,6 +330,8 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
         beyond_record,
         params: ModelParams { curves, forest_pet_factor, invasion, contaminants, min_runoff_mm },
         calibration,
+        economics,
+        strategies,
     }
 }
 
@@ -424,4 +469,181 @@ fn build_network(path: &Path, catchments: &[Catchment], rows: &[usize]) -> std::
         };
         vec![Problem::in_file(path, msg.1).row(rows[msg.0]).column("flows_to")]
     })
+}
+
+fn class_from_name(name: &str) -> Option<DensityClass> {
+    DensityClass::ALL.into_iter().find(|c| c.name() == name)
+}
+
+fn read_treatments(root: &Section<'_>) -> Vec<TreatmentMethod> {
+    let mut out: Vec<TreatmentMethod> = Vec::new();
+    for s in root.array_of_tables("treatment") {
+        let name = s.string("name", None).unwrap_or_default();
+        let class = s.choice("class", "scattered", &["scattered", "medium", "dense"]);
+        if !s.has("class") {
+            s.push("class", "required key is missing; choose one of: scattered, medium, dense");
+        }
+        let cost = s.f64_in("cost_per_ha", None, 0.0, 1e7, "$/ha");
+        let class = class_from_name(&class).unwrap_or(DensityClass::Scattered);
+        if out.iter().any(|m| m.name == name && m.class == class) {
+            s.push("name", format!("treatment '{name}' for class {} is defined twice", class.name()));
+        }
+        s.finish();
+        out.push(TreatmentMethod { name, class, cost_per_ha: cost });
+    }
+    out
+}
+
+/// A `[[strategy]]` entry before its budget table is resolved against the catchments.
+struct RawStrategy {
+    strategy: Strategy,
+    budget: RawBudget,
+    at_name: Problem,
+}
+
+enum RawBudget {
+    Unlimited,
+    Constant(f64, bool),
+    Table(PathBuf, bool),
+    Area(f64),
+}
+
+fn read_strategies(root: &Section<'_>, base: &Path, treatments: &[TreatmentMethod]) -> Vec<RawStrategy> {
+    let mut out: Vec<RawStrategy> = Vec::new();
+    for s in root.array_of_tables("strategy") {
+        let name = s.string("name", None).unwrap_or_default();
+        if name == crate::pipeline::NO_CONTROL {
+            s.push("name", "'no-control' is the reference strategy every run keeps; choose another name");
+        } else if name.is_empty() || !name.chars().all(|c| c.is_ascii_alphanumeric() || c == '-' || c == '_') {
+            s.push("name", format!("'{name}' must be non-empty and use only letters, digits, '-' and '_'"));
+        }
+        if out.iter().any(|r| r.strategy.name == name) {
+            s.push("name", format!("strategy '{name}' is defined twice"));
+        }
+        let start_year = s.int_in("start_year", None, 1800, 2800, "") as i32;
+        let end_year = s.has("end_year").then(|| s.int_in("end_year", Some(start_year as i64), start_year as i64, 2800, "") as i32);
+        if !s.has("end_year") {
+            let _ = s.get("end_year");
+        }
+        let rule = match s.choice("rule", "scattered-first", &["scattered-first", "densest-first", "best-value"]).as_str() {
+            "densest-first" => PriorityRule::DensestFirst,
+            "best-value" => PriorityRule::BestValue,
+            _ => PriorityRule::ScatteredFirst,
+        };
+        let scope = s.choice("budget_scope", "basin", &["basin", "catchment"]);
+        let per_catchment = scope == "catchment";
+        let carry_over = match s.get("carry_over") {
+            None => false,
+            Some(toml::Value::Boolean(b)) => *b,
+            Some(_) => {
+                s.push("carry_over", "must be true or false");
+                false
+            }
+        };
+        let given: Vec<&str> = ["budget_per_yr", "budget_table", "area_ha_per_yr"].into_iter().filter(|k| s.has(k)).collect();
+        let budget = match given.as_slice() {
+            ["budget_per_yr"] => match s.get("budget_per_yr") {
+                Some(toml::Value::String(t)) if t == "unlimited" => RawBudget::Unlimited,
+                _ => RawBudget::Constant(s.f64_in("budget_per_yr", Some(0.0), 0.0, 1e12, "$/yr"), per_catchment),
+            },
+            ["budget_table"] => RawBudget::Table(base.join(s.string("budget_table", Some("")).unwrap_or_default()), per_catchment),
+            ["area_ha_per_yr"] => {
+                if per_catchment {
+                    s.push("budget_scope", "a fixed-area programme (area_ha_per_yr) treats the basin as one pool; remove budget_scope");
+                }
+                RawBudget::Area(s.f64_in("area_ha_per_yr", Some(0.0), 0.0, 1e9, "ha/yr"))
+            }
+            [] => {
+                s.push("name", "needs one of budget_per_yr ($/yr or \"unlimited\"), budget_table (CSV) or area_ha_per_yr (ha/yr)");
+                RawBudget::Constant(0.0, false)
+            }
+            _ => {
+                s.push(given[1], format!("give only one of budget_per_yr, budget_table, area_ha_per_yr (found {})", given.join(", ")));
+                RawBudget::Constant(0.0, false)
+            }
+        };
+        let _ = (s.get("budget_per_yr"), s.get("budget_table"), s.get("area_ha_per_yr"));
+        let efficacy = s.f64_in("efficacy", Some(0.95), 0.0, 1.0, "fraction");
+        let regrowth_fraction = s.f64_in("regrowth_fraction", Some(0.0), 0.0, 1.0, "fraction");
+        let regrowth_years = s.int_in("regrowth_years", Some(5), 1, 50, "years") as u32;
+        let follow_up = s.f64_in("follow_up_cost_per_ha", Some(0.0), 0.0, 1e6, "$/ha/yr");
+        let delays: Vec<u32> = s.f64_list("delays_yr", 0.0, 300.0, "years").unwrap_or_default().into_iter().map(|d| d as u32).collect();
+        let mut fixed: [Option<String>; 3] = [None, None, None];
+        if let Some(m) = s.section("methods") {
+            for (k, class) in DensityClass::ALL.iter().enumerate() {
+                fixed[k] = m.opt_string(class.name());
+                if let Some(name) = &fixed[k] {
+                    if !treatments.iter().any(|t| &t.name == name && t.class == *class) {
+                        m.push(class.name(), format!("no [[treatment]] named '{name}' for class {}", class.name()));
+                    }
+                }
+            }
+            m.finish();
+        }
+        let chosen = Strategy::choose_methods(treatments, [fixed[0].as_deref(), fixed[1].as_deref(), fixed[2].as_deref()]);
+        for (k, class) in DensityClass::ALL.iter().enumerate() {
+            if chosen[k].is_none() && fixed[k].is_none() {
+                s.push("name", format!("no [[treatment]] is defined for class {}; add one with its cost_per_ha", class.name()));
+            }
+        }
+        let at_name = s.problem("name", "");
+        s.finish();
+        let cost_per_ha = [0, 1, 2].map(|k| chosen[k].as_ref().map_or(0.0, |c| c.1));
+        let method_names = [0, 1, 2].map(|k| chosen[k].as_ref().map_or(String::new(), |c| c.0.clone()));
+        out.push(RawStrategy {
+            strategy: Strategy {
+                name,
+                start_year,
+                end_year,
+                rule,
+                effort: Effort::Unlimited,
+                carry_over,
+                cost_per_ha,
+                method_names,
+                efficacy,
+                regrowth_fraction,
+                regrowth_years,
+                follow_up_cost_per_ha: follow_up,
+                delays_yr: delays,
+            },
+            budget,
+            at_name,
+        });
+    }
+    out
+}
+
+/// Turns each strategy's budget into per-year amounts over the projection.
+fn resolve_strategies(raw: &RawScenario, catchments: &[Catchment]) -> std::result::Result<Vec<Strategy>, Vec<Problem>> {
+    let n_years = raw.horizon_years + 1;
+    let mut problems = Vec::new();
+    let mut out = Vec::new();
+    for r in &raw.strategies {
+        let mut st = r.strategy.clone();
+        let last = raw.start_year + raw.horizon_years as i32;
+        if st.start_year > last {
+            problems.push(Problem { message: format!("strategy '{}' starts in {} after the projection ends ({last})", st.name, st.start_year), ..r.at_name.clone() });
+        }
+        st.effort = match &r.budget {
+            RawBudget::Unlimited => Effort::Unlimited,
+            RawBudget::Constant(b, false) => Effort::BasinBudget(vec![*b; n_years]),
+            RawBudget::Constant(b, true) => Effort::CatchmentBudget(vec![vec![*b; n_years]; catchments.len()]),
+            RawBudget::Area(a) => Effort::FixedArea(vec![*a; n_years]),
+            RawBudget::Table(path, per_catchment) => {
+                match crate::io::budget::read_budget_table(path, catchments, raw.start_year, n_years, *per_catchment) {
+                    Ok(e) => e,
+                    Err(p) => {
+                        problems.extend(p);
+                        Effort::Unlimited
+                    }
+                }
+            }
+        };
+        out.push(st);
+    }
+    if problems.is_empty() {
+        Ok(out)
+    } else {
+        Err(problems)
+    }
 }

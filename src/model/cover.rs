@@ -223,16 +223,36 @@ impl Cohorts {
     /// `vulnerable_ha` is the area that can carry the invader (including what is
     /// already infested).
     pub fn step(&mut self, params: &InvasionParams, vulnerable_ha: f64) -> f64 {
+        self.step_with(params, vulnerable_ha, 0.0)
+    }
+
+    /// One year of ageing and spread plus `extra_ha` of re-establishment (regrowth
+    /// after control), all capped at the uninvaded vulnerable area; returns the new
+    /// age-0 area, ha.
+    pub fn step_with(&mut self, params: &InvasionParams, vulnerable_ha: f64, extra_ha: f64) -> f64 {
         let seed_ha = self.area_at_least_age(params.seed_bearing_age_yr as usize);
-        let new_ha = new_infestation_ha(
-            params.spread_rate_per_yr,
-            seed_ha,
-            params.seed_rain_ha_per_yr,
-            self.infested_ha(),
-            vulnerable_ha,
-        );
+        let infested = self.infested_ha();
+        let spread_ha =
+            new_infestation_ha(params.spread_rate_per_yr, seed_ha, params.seed_rain_ha_per_yr, infested, vulnerable_ha);
+        let free_ha = (vulnerable_ha - infested).max(0.0);
+        let new_ha = (spread_ha + extra_ha.max(0.0)).min(free_ha);
         self.areas_ha.push(new_ha);
         new_ha
+    }
+
+    /// Removes up to `ha` from the cohort of age `age_yr`; returns the area removed.
+    pub fn remove_at_age(&mut self, age_yr: usize, ha: f64) -> f64 {
+        let n = self.areas_ha.len();
+        if age_yr >= n || !(ha > 0.0) {
+            return 0.0;
+        }
+        let slot = &mut self.areas_ha[n - 1 - age_yr];
+        let removed = ha.min(*slot);
+        *slot -= removed;
+        if *slot < 1e-12 {
+            *slot = 0.0;
+        }
+        removed
     }
 }
 

@@ -5,11 +5,14 @@
 //! evapotranspiration → yield → loads and concentrations → summaries`.
 //! Each formulation lives in its own file with its formula, units and reference.
 
+pub mod basin;
 pub mod budyko;
 pub mod catchment;
 pub mod closure;
+pub mod control;
 pub mod cover;
 pub mod dilution;
+pub mod economics;
 pub mod network;
 pub mod pet;
 pub mod projection;

@@ -17,11 +17,39 @@ pub struct Line {
     pub dashed: bool,
 }
 
+/// A corner of the plot area for the legend.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Corner {
+    /// Upper left.
+    UpperLeft,
+    /// Upper right.
+    UpperRight,
+    /// Lower left.
+    LowerLeft,
+    /// Lower right.
+    LowerRight,
+}
+
+impl Corner {
+    fn position(self) -> SeriesLabelPosition {
+        match self {
+            Corner::UpperLeft => SeriesLabelPosition::UpperLeft,
+            Corner::UpperRight => SeriesLabelPosition::UpperRight,
+            Corner::LowerLeft => SeriesLabelPosition::LowerLeft,
+            Corner::LowerRight => SeriesLabelPosition::LowerRight,
+        }
+    }
+}
+
 /// A line chart over years with an optional horizontal threshold.
 #[derive(Debug, Clone)]
 pub struct LineChart {
     /// Title at the top.
     pub title: String,
+    /// X-axis description with unit.
+    pub x_label: String,
+    /// Decimals of x tick labels (0 for years).
+    pub x_decimals: usize,
     /// Y-axis description with unit.
     pub y_label: String,
     /// Lines to draw.
@@ -30,6 +58,39 @@ pub struct LineChart {
     pub thresholds: Vec<(String, f64, RGBColor)>,
     /// Start the y axis at zero.
     pub y_from_zero: bool,
+    /// Where the legend goes (choose a corner the data leave free).
+    pub legend_at: Corner,
+}
+
+impl LineChart {
+    /// A chart over calendar years with the legend at the lower left.
+    pub fn over_years(title: String, y_label: String, lines: Vec<Line>) -> LineChart {
+        LineChart {
+            title,
+            x_label: "Year".into(),
+            x_decimals: 0,
+            y_label,
+            lines,
+            thresholds: Vec::new(),
+            y_from_zero: true,
+            legend_at: Corner::LowerLeft,
+        }
+    }
+}
+
+/// Charts side by side in one figure.
+#[derive(Debug, Clone)]
+pub struct Panels(pub Vec<LineChart>);
+
+impl Figure for Panels {
+    fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> Result<(), String> {
+        root.fill(&WHITE).map_err(err)?;
+        let areas = root.split_evenly((1, self.0.len().max(1)));
+        for (chart, area) in self.0.iter().zip(areas.iter()) {
+            chart.draw(area)?;
+        }
+        Ok(())
+    }
 }
 
 fn year_range(points: impl Iterator<Item = f64>) -> (f64, f64) {
@@ -65,9 +126,9 @@ impl Figure for LineChart {
             .map_err(err)?;
         chart
             .configure_mesh()
-            .x_desc("Year")
+            .x_desc(&self.x_label)
             .y_desc(&self.y_label)
-            .x_label_formatter(&|x| format!("{x:.0}"))
+            .x_label_formatter(&|x| format!("{x:.*}", self.x_decimals))
             .label_style((FONT, 26))
             .axis_desc_style((FONT, 30))
             .light_line_style(RGBColor(235, 235, 235))
@@ -98,7 +159,7 @@ impl Figure for LineChart {
         }
         chart
             .configure_series_labels()
-            .position(SeriesLabelPosition::LowerLeft)
+            .position(self.legend_at.position())
             .label_font((FONT, 26))
             .legend_area_size(60)
             .background_style(WHITE.mix(0.85))

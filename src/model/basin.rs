@@ -1,0 +1,190 @@
+//! Basin projection: every catchment advanced year by year together, so that a
+//! control programme can spend a shared budget across catchments.
+//!
+//! Each year: (1) every catchment's cover gives its year results
+//! ([`super::projection::year_result`]); (2) an active programme pays follow-up and
+//! treats cohorts ([`super::control`]); (3) regrowth, ageing and spread
+//! ([`super::cover`]). With no programme (or a zero budget) the results are exactly
+//! those of [`super::projection::project_catchment`].
+
+use super::catchment::{Catchment, ClimateYear, ModelParams};
+use super::control::{BudgetYear, ControlYear, Effort, PriorityRule, Strategy};
+use super::cover::Cohorts;
+use super::dilution::M3_PER_MM_HA;
+use super::projection::{canopy_fraction, et_and_yield_mm, year_result, YearResult};
+
+/// Results of a basin run.
+#[derive(Debug, Clone)]
+pub struct BasinRun {
+    /// `years[catchment][t]`.
+    pub years: Vec<Vec<YearResult>>,
+    /// `control[catchment][t]` (all zero without a programme).
+    pub control: Vec<Vec<ControlYear>>,
+    /// Budget accounts per pool and year (empty without a programme).
+    pub budget: Vec<BudgetYear>,
+}
+
+struct Tracked {
+    cleared_ha: f64,
+    years_left: u32,
+}
+
+struct State {
+    cohorts: Cohorts,
+    f0: f64,
+    f_uninvaded: f64,
+    new_ha: f64,
+    tracked: Vec<Tracked>,
+    /// Yield lost per unit canopy fraction at mean climate, mm/yr (for best-value).
+    dq_mm: f64,
+}
+
+struct Slot {
+    catchment: usize,
+    age: usize,
+    area_ha: f64,
+    cost_per_ha: f64,
+    key: f64,
+}
+
+/// Projects every catchment, under `strategy` if given.
+///
+/// `climates[i][t]` is catchment `i`'s climate in year `start_year + t`; all series
+/// must have the same length.
+pub fn project_basin(
+    catchments: &[Catchment],
+    climates: &[Vec<ClimateYear>],
+    p: &ModelParams,
+    start_year: i32,
+    strategy: Option<&Strategy>,
+) -> BasinRun {
+    let n = catchments.len();
+    let n_years = climates.first().map_or(0, Vec::len);
+    let mut states: Vec<State> = catchments
+        .iter()
+        .map(|c| {
+            let cohorts = Cohorts::from_classes(&p.invasion, c.infested);
+            let (_, q_open) = et_and_yield_mm(c, p, c.mean_climate(), 0.0);
+            let (_, q_forest) = et_and_yield_mm(c, p, c.mean_climate(), 1.0);
+            State { cohorts, f0: 0.0, f_uninvaded: c.uninvaded_canopy_fraction(), new_ha: 0.0, tracked: Vec::new(), dq_mm: (q_open - q_forest).max(0.0) }
+        })
+        .collect();
+    let max_age = states.iter().map(|s| s.cohorts.oldest_age_yr()).max().unwrap_or(0) + 2 * n_years + 2;
+    let closure = p.invasion.closure.table_by_whole_year(max_age);
+    let mut closure_prefix = vec![0.0; closure.len() + 1];
+    for (i, c) in closure.iter().enumerate() {
+        closure_prefix[i + 1] = closure_prefix[i] + c;
+    }
+    for (s, c) in states.iter_mut().zip(catchments) {
+        s.f0 = canopy_fraction(c, &s.cohorts, &closure);
+    }
+
+    let mut years: Vec<Vec<YearResult>> = (0..n).map(|_| Vec::with_capacity(n_years)).collect();
+    let mut control: Vec<Vec<ControlYear>> = (0..n).map(|_| vec![ControlYear::default(); n_years]).collect();
+    let mut budget = Vec::new();
+    let mut carry: Vec<f64> = vec![0.0; n.max(1)];
+
+    for t in 0..n_years {
+        let year = start_year + t as i32;
+        for (i, c) in catchments.iter().enumerate() {
+            let s = &states[i];
+            let f = canopy_fraction(c, &s.cohorts, &closure);
+            years[i].push(year_result(c, p, year, climates[i][t], f, s.f0, s.f_uninvaded, s.cohorts.class_areas(&p.invasion), s.new_ha));
+        }
+        let mut suppressed = vec![0.0; n];
+        if let Some(st) = strategy.filter(|st| st.active(year)) {
+            let remaining_years = n_years - 1 - t;
+            let pools: Vec<(Option<usize>, Vec<usize>, f64, bool)> = match &st.effort {
+                Effort::Unlimited => vec![(None, (0..n).collect(), f64::INFINITY, false)],
+                Effort::BasinBudget(b) => vec![(None, (0..n).collect(), b.get(t).copied().unwrap_or(0.0) + carry[0], false)],
+                Effort::FixedArea(a) => vec![(None, (0..n).collect(), a.get(t).copied().unwrap_or(0.0), true)],
+                Effort::CatchmentBudget(bs) => (0..n).map(|i| (Some(i), vec![i], bs[i].get(t).copied().unwrap_or(0.0) + carry[i], false)).collect(),
+            };
+            for (pool, members, available, by_area) in pools {
+                let mut left = available;
+                // 1. Follow-up of recently cleared land, paid first.
+                let fu_cost: Vec<f64> =
+                    members.iter().map(|&i| st.follow_up_cost_per_ha * states[i].tracked.iter().map(|r| r.cleared_ha).sum::<f64>()).collect();
+                let fu_total: f64 = fu_cost.iter().sum();
+                let paid_frac = if fu_total <= 0.0 { 1.0 } else if by_area { 1.0 } else { (left / fu_total).min(1.0) };
+                for (k, &i) in members.iter().enumerate() {
+                    control[i][t].follow_up_cost = fu_cost[k] * paid_frac;
+                    suppressed[i] = paid_frac;
+                }
+                if !by_area {
+                    left -= fu_total * paid_frac;
+                }
+                // 2. Treatment in priority order.
+                let mut slots: Vec<Slot> = Vec::new();
+                for &i in &members {
+                    for (age, area) in states[i].cohorts.iter_by_age() {
+                        if area <= 0.0 {
+                            continue;
+                        }
+                        let cost = st.class_cost(p.invasion.class_of(age));
+                        let key = match st.rule {
+                            PriorityRule::ScatteredFirst => -(age as f64),
+                            PriorityRule::DensestFirst => age as f64,
+                            PriorityRule::BestValue => {
+                                let hi = (age + 1 + remaining_years).min(closure.len());
+                                let lo = (age + 1).min(hi);
+                                let value_m3_per_ha = st.efficacy * states[i].dq_mm * M3_PER_MM_HA * (closure_prefix[hi] - closure_prefix[lo]);
+                                if cost > 0.0 { value_m3_per_ha / cost } else { f64::MAX }
+                            }
+                        };
+                        slots.push(Slot { catchment: i, age, area_ha: area, cost_per_ha: cost, key });
+                    }
+                }
+                // Highest key first; ties broken by catchment order then age, so results are deterministic.
+                slots.sort_by(|a, b| b.key.total_cmp(&a.key).then(a.catchment.cmp(&b.catchment)).then(a.age.cmp(&b.age)));
+                for sl in slots {
+                    if left <= 0.0 {
+                        break;
+                    }
+                    let treat_ha = if by_area {
+                        sl.area_ha.min(left)
+                    } else if sl.cost_per_ha > 0.0 {
+                        sl.area_ha.min(left / sl.cost_per_ha)
+                    } else {
+                        sl.area_ha
+                    };
+                    if treat_ha <= 0.0 {
+                        continue;
+                    }
+                    let cost = treat_ha * sl.cost_per_ha;
+                    left -= if by_area { treat_ha } else { cost };
+                    let cleared = states[sl.catchment].cohorts.remove_at_age(sl.age, treat_ha * st.efficacy);
+                    let cy = &mut control[sl.catchment][t];
+                    cy.treatment_cost += cost;
+                    cy.treated_ha += treat_ha;
+                    cy.cleared_ha += cleared;
+                }
+                let spent: f64 = members.iter().map(|&i| control[i][t].cost()).sum();
+                let carried = if st.carry_over && !by_area && available.is_finite() { (available - spent).max(0.0) } else { 0.0 };
+                carry[pool.unwrap_or(0)] = carried;
+                budget.push(BudgetYear { year, pool, available, spent, carried });
+            }
+        }
+        // 3. Regrowth, then ageing and spread.
+        for (i, c) in catchments.iter().enumerate() {
+            let s = &mut states[i];
+            let mut regrowth = 0.0;
+            if let Some(st) = strategy {
+                let n_yr = st.regrowth_years.max(1) as f64;
+                for r in &mut s.tracked {
+                    regrowth += st.regrowth_fraction * r.cleared_ha / n_yr * (1.0 - suppressed[i]);
+                    r.years_left -= 1;
+                }
+                s.tracked.retain(|r| r.years_left > 0);
+                let cleared = control[i][t].cleared_ha;
+                if cleared > 0.0 && st.regrowth_years > 0 && (st.regrowth_fraction > 0.0 || st.follow_up_cost_per_ha > 0.0) {
+                    s.tracked.push(Tracked { cleared_ha: cleared, years_left: st.regrowth_years });
+                }
+            }
+            s.new_ha = s.cohorts.step_with(&p.invasion, c.vulnerable_ha, regrowth);
+            // Regrowth shares the new age-0 cohort with spread; both are capped by the free area.
+            control[i][t].regrowth_ha = regrowth.min(s.new_ha);
+        }
+    }
+    BasinRun { years, control, budget }
+}
