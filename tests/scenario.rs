@@ -39,3 +39,56 @@ fn calibration_errors_name_the_key() {
     assert!(msg.contains("method is zhang"), "{msg}");
     assert!(msg.contains("calibration[1].catchment") && msg.contains("row 5"), "{msg}");
 }
+
+const TREATMENTS: &str = "[[treatment]]\nname = \"ground\"\nclass = \"scattered\"\ncost_per_ha = 50\n\n\
+[[treatment]]\nname = \"ground\"\nclass = \"medium\"\ncost_per_ha = 400\n\n\
+[[treatment]]\nname = \"aerial\"\nclass = \"dense\"\ncost_per_ha = 2000\n\n\
+[[treatment]]\nname = \"felling\"\nclass = \"dense\"\ncost_per_ha = 900\n\n";
+
+#[test]
+fn strategy_budget_table_per_catchment_and_method_choice() {
+    use yieldshift::model::control::Effort;
+    let tmp = tempfile::tempdir().unwrap();
+    std::fs::write(tmp.path().join("budget.csv"), "catchment,year,budget_per_yr\na,2027,1000\nb,2029,2500\na,2040,99\n").unwrap();
+    let s = write(
+        tmp.path(),
+        &format!(
+            "{TREATMENTS}[[strategy]]\nname = \"t\"\nstart_year = 2028\nrule = \"best-value\"\nbudget_table = \"budget.csv\"\nbudget_scope = \"catchment\"\nmethods = {{ dense = \"aerial\" }}\n"
+        ),
+    );
+    let sc = load_scenario(&s).unwrap();
+    let st = &sc.strategies[0];
+    assert_eq!(st.cost_per_ha, [50.0, 400.0, 2000.0], "dense fixed to aerial although felling is cheaper");
+    match &st.effort {
+        Effort::CatchmentBudget(b) => {
+            assert_eq!(b.len(), 3);
+            assert_eq!(b[0][0], 1000.0);
+            assert_eq!(b[1][2], 2500.0);
+            assert!(b[0][1..].iter().all(|&v| v == 0.0), "2040 lies beyond the 10-year horizon");
+            assert!(b[2].iter().all(|&v| v == 0.0));
+        }
+        e => panic!("{e:?}"),
+    }
+}
+
+#[test]
+fn strategy_errors_are_located() {
+    let tmp = tempfile::tempdir().unwrap();
+    std::fs::write(tmp.path().join("budget.csv"), "year,budget_per_yr\n2027,lots\n").unwrap();
+    let s = write(
+        tmp.path(),
+        "[[treatment]]\nname = \"ground\"\nclass = \"scattered\"\ncost_per_ha = 50\n\n\
+         [[strategy]]\nname = \"no-control\"\nstart_year = 2027\nbudget_per_yr = 10\narea_ha_per_yr = 5\n\n\
+         [[strategy]]\nname = \"x\"\nstart_year = 2027\nbudget_table = \"budget.csv\"\nefficacy = 1.5\n",
+    );
+    let e = load_scenario(&s).unwrap_err();
+    let msg = e.to_string();
+    assert!(msg.contains("reference strategy"), "{msg}");
+    assert!(msg.contains("give only one of budget_per_yr"), "{msg}");
+    assert!(msg.contains("no [[treatment]] is defined for class medium"), "{msg}");
+    assert!(msg.contains("strategy[2].efficacy") && msg.contains("0 to 1"), "{msg}");
+    // The budget table is only read once the scenario itself is valid; check it alone.
+    let s2 = write(tmp.path(), &format!("{TREATMENTS}[[strategy]]\nname = \"x\"\nstart_year = 2027\nbudget_table = \"budget.csv\"\n"));
+    let msg = load_scenario(&s2).unwrap_err().to_string();
+    assert!(msg.contains("budget.csv") && msg.contains("row 2") && msg.contains("'budget_per_yr'"), "{msg}");
+}
