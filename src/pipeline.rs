@@ -287,6 +287,7 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
     if draw || !s.strategies.is_empty() {
         n_figures += basin_cover_figure(&figdir, s, &outcomes[0], opts.formats)?;
     }
+    copy_inputs(&dir, s)?;
     output::write_run_info(&dir, &run_info(s))?;
     let out = staging.commit()?;
     Ok(RunOutcome {
@@ -427,8 +428,14 @@ fn zero_years(start_year: i32, n: usize, k: usize) -> Vec<YearResult> {
 }
 
 fn run_info(s: &Scenario) -> serde_json::Value {
+    use crate::model::budyko::CoverCurves;
     let mut strategies = vec![NO_CONTROL.to_string()];
     strategies.extend(s.strategies.iter().map(|st| st.name.clone()));
+    let hydrology = match s.params.curves {
+        CoverCurves::Zhang { w_forest, w_grass } => serde_json::json!({"method": "zhang", "w_forest": w_forest, "w_grass": w_grass, "forest_pet_factor": s.params.forest_pet_factor}),
+        CoverCurves::Fu { omega_forest, omega_grass } => serde_json::json!({"method": "fu", "omega_forest": omega_forest, "omega_grass": omega_grass, "forest_pet_factor": s.params.forest_pet_factor}),
+    };
+    let inv = &s.params.invasion;
     serde_json::json!({
         "tool": "yieldshift",
         "version": env!("CARGO_PKG_VERSION"),
@@ -436,16 +443,46 @@ fn run_info(s: &Scenario) -> serde_json::Value {
         "scenario": s.path.display().to_string(),
         "catchment_table": s.catchments_path.display().to_string(),
         "climate_table": s.climate_path.as_ref().map(|p| p.display().to_string()),
+        "inputs_copied_to": "inputs/",
         "start_year": s.start_year,
         "horizon_years": s.horizon_years,
         "catchments": s.catchments.len(),
         "hydrology_method": s.params.curves.method_name(),
+        "hydrology": hydrology,
+        "invasion": {
+            "spread_rate_per_yr": inv.spread_rate_per_yr,
+            "seed_bearing_age_yr": inv.seed_bearing_age_yr,
+            "seed_rain_ha_per_yr": inv.seed_rain_ha_per_yr,
+            "medium_age_yr": inv.medium_age_yr,
+            "dense_age_yr": inv.dense_age_yr,
+        },
         "strategies": strategies,
         "discount_rate": s.economics.discount_rate,
         "water_value_per_m3": s.economics.water_value_per_m3,
-        "contaminants": s.params.contaminants.iter().map(|c| c.name.clone()).collect::<Vec<_>>(),
+        "contaminants": s.params.contaminants.iter().map(|c| serde_json::json!({
+            "name": c.name,
+            "open_export_kg_per_ha_yr": c.open_export_kg_per_ha_yr,
+            "forest_export_kg_per_ha_yr": c.forest_export_kg_per_ha_yr,
+            "guideline_mg_per_l": c.guideline_mg_per_l,
+        })).collect::<Vec<_>>(),
         "cautions": output::CAUTIONS,
     })
+}
+
+/// Copies the scenario and every table it names into `dir/inputs/`, so a run
+/// folder documents itself (and the report can show the inputs).
+fn copy_inputs(dir: &Path, s: &Scenario) -> Result<()> {
+    let inputs = dir.join("inputs");
+    std::fs::create_dir_all(&inputs).map_err(|e| Error::io("creating inputs/", e))?;
+    let mut files: Vec<&Path> = vec![&s.path, &s.catchments_path];
+    if let Some(c) = &s.climate_path {
+        files.push(c);
+    }
+    for f in files {
+        let name = f.file_name().map(|n| n.to_os_string()).unwrap_or_default();
+        std::fs::copy(f, inputs.join(&name)).map_err(|e| Error::io(format!("copying {} into inputs/", f.display()), e))?;
+    }
+    Ok(())
 }
 
 /// Safe file-name stem for a catchment or strategy name.
