@@ -20,6 +20,7 @@
 #![deny(missing_docs)]
 
 pub mod error;
+pub mod fit_run;
 pub mod io;
 pub mod model;
 pub mod pipeline;

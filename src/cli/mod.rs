@@ -2,6 +2,7 @@
 //! place, [`main`]: 0 success, 2 invalid input or usage, 1 any other failure.
 
 mod curve;
+mod fit;
 pub mod pet;
 mod run;
 
@@ -27,6 +28,8 @@ pub enum Command {
     Check(run::CheckArgs),
     /// Evaluate the water-balance curve at one point.
     Curve(curve::CurveArgs),
+    /// Fit the water-balance curve parameter of gauged catchments to observed annual flows.
+    Fit(fit::FitArgs),
     /// Compute reference evapotranspiration (FAO-56) from weather records.
     Pet(pet::PetArgs),
 }
@@ -45,6 +48,7 @@ pub fn main() -> ExitCode {
         Command::Run(a) => run::run(a),
         Command::Check(a) => run::check(a),
         Command::Curve(a) => curve::run(a),
+        Command::Fit(a) => fit::run(a),
         Command::Pet(a) => pet::run(a),
     };
     match result {

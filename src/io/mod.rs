@@ -4,6 +4,7 @@
 pub mod budget;
 pub mod catchments;
 pub mod climate;
+pub mod observed;
 pub mod outdir;
 pub mod output;
 pub mod scenario;

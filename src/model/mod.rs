@@ -13,9 +13,12 @@ pub mod control;
 pub mod cover;
 pub mod dilution;
 pub mod economics;
+pub mod fit;
 pub mod network;
 pub mod pet;
 pub mod projection;
+pub mod roots;
+pub mod skill;
 pub mod summary;
 
 pub use budyko::{CoverCurves, WaterBalance};

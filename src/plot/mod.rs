@@ -6,6 +6,7 @@
 //! always match.
 
 pub mod palette;
+pub mod fit;
 pub mod series;
 
 use crate::error::{Error, Result};
