@@ -5,6 +5,8 @@
 
 use criterion::{criterion_group, criterion_main, Criterion, Throughput};
 use std::hint::black_box;
+use rayon::prelude::*;
+use yieldshift::model::kernel::{project_lean, LeanYears};
 use yieldshift::model::{
     project_catchment, Catchment, ClassAreas, ClimateYear, ClosureCurve, Contaminant, CoverCurves, InvasionParams,
     ModelParams,
@@ -67,6 +69,25 @@ fn bench(c: &mut Criterion) {
             for (c, cl) in many.iter().zip(&climates) {
                 black_box(project_catchment(c, cl, &p, 2027));
             }
+        })
+    });
+    // The ensemble kernel: members × catchments of the lean no-control projection,
+    // parallel over catchments (rayon, all cores), each member with its own spread rate.
+    let members = 40;
+    g.throughput(Throughput::Elements((1000 * 51 * members) as u64));
+    g.sample_size(10);
+    g.bench_function("ensemble kernel 1000 catchments x 50 years x 40 members", |b| {
+        b.iter(|| {
+            many.par_iter().zip(&climates).for_each_init(
+                || (p.clone(), LeanYears::default()),
+                |(pm, out), (c, cl)| {
+                    for m in 0..members {
+                        pm.invasion.spread_rate_per_yr = 0.04 + 0.04 * (m as f64 + 0.5) / members as f64;
+                        project_lean(c, cl, pm, out);
+                        black_box(out.yield_mm[50]);
+                    }
+                },
+            )
         })
     });
     g.finish();

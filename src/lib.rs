@@ -19,6 +19,7 @@
 //! assessment; defer to local regulation and qualified practitioners.
 #![deny(missing_docs)]
 
+pub mod ensemble;
 pub mod error;
 pub mod fit_run;
 pub mod io;

@@ -54,6 +54,10 @@ pub struct RunOptions {
     pub figures: FigureChoice,
     /// Figure formats.
     pub formats: Formats,
+    /// Worker threads for ensembles (`None`: one per core).
+    pub threads: Option<usize>,
+    /// Show a progress bar on stderr (when it is a terminal).
+    pub progress: bool,
 }
 
 /// What a run produced.
@@ -69,6 +73,8 @@ pub struct RunOutcome {
     pub strategies: Vec<String>,
     /// Figures drawn.
     pub figures: usize,
+    /// Ensemble members run (0 without an ensemble).
+    pub members: usize,
 }
 
 /// Basin-wide sums of one strategy, year by year.
@@ -246,7 +252,7 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
         outcomes.push(finish_outcome(s, NO_CONTROL, summaries, basin));
 
         for st in &s.strategies {
-            let run = project_basin(&s.catchments, &climates, &s.params, s.start_year, Some(st));
+            let run = project_basin(&s.catchments, &climates, std::slice::from_ref(&s.params), s.start_year, Some(st));
             let mut basin = BasinSeries::new(s);
             let mut summaries = Vec::with_capacity(s.catchments.len());
             for (i, c) in s.catchments.iter().enumerate() {
@@ -287,6 +293,14 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
     if draw || !s.strategies.is_empty() {
         n_figures += basin_cover_figure(&figdir, s, &outcomes[0], opts.formats)?;
     }
+    let mut members = 0;
+    if let Some(cfg) = &s.ensemble {
+        let eopts = crate::ensemble::EnsembleOptions { progress: opts.progress, figures: draw, formats: opts.formats };
+        let pool = crate::ensemble::pool(opts.threads)?;
+        let e = pool.install(|| crate::ensemble::run_ensemble(s, cfg, &dir, &eopts))?;
+        n_figures += e.figures;
+        members = e.members;
+    }
     copy_inputs(&dir, s)?;
     output::write_run_info(&dir, &run_info(s))?;
     let out = staging.commit()?;
@@ -296,6 +310,7 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
         years: s.horizon_years + 1,
         strategies: outcomes.iter().map(|o| o.name.clone()).collect(),
         figures: n_figures,
+        members,
     })
 }
 
@@ -362,7 +377,7 @@ fn delay_rows(s: &Scenario, climates: &[Vec<crate::model::ClimateYear>], referen
     for st in &s.strategies {
         for &d in &st.delays_yr {
             let variant = st.delayed(d);
-            let run = project_basin(&s.catchments, climates, &s.params, s.start_year, Some(&variant));
+            let run = project_basin(&s.catchments, climates, std::slice::from_ref(&s.params), s.start_year, Some(&variant));
             let n_years = s.horizon_years + 1;
             let mut cost = vec![0.0; n_years];
             let mut saved = vec![0.0; n_years];

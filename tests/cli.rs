@@ -80,7 +80,14 @@ fn demo_run_writes_every_output() {
     let per_catchment = pngs
         .iter()
         .filter(|p| !["basin_", "strategies_", "delay_"].iter().any(|pre| p.file_name().unwrap().to_string_lossy().starts_with(pre)))
+        .filter(|p| !["_yield_bands.png", "_sensitivity.png"].iter().any(|suf| p.file_name().unwrap().to_string_lossy().ends_with(suf)))
         .count();
+    for id in ["scree", "tussock-flat", "mistle", "cairn", "greywacke", "ardmere-lower"] {
+        for suffix in ["yield_bands", "sensitivity"] {
+            assert!(out.join("figures").join(format!("{id}_{suffix}.png")).exists(), "{id}_{suffix}");
+        }
+    }
+    assert!(out.join("ensemble.csv").exists() && out.join("sensitivity.csv").exists());
     assert_eq!(per_catchment, 6 * 4, "yield, two contaminants and cover per catchment");
     for f in ["strategies_cost_vs_water", "delay_contain-early", "basin_no-control_cover", "basin_best-value_cover"] {
         assert!(out.join("figures").join(format!("{f}.png")).exists(), "{f}");

@@ -53,10 +53,10 @@ fn no_programme_and_zero_budget_reproduce_no_control_exactly() {
     // Common practice, no published source: a programme that spends nothing changes nothing.
     let (cs, climates, p) = basin();
     let reference: Vec<_> = cs.iter().zip(&climates).map(|(c, cl)| project_catchment(c, cl, &p, 2027)).collect();
-    let none = project_basin(&cs, &climates, &p, 2027, None);
+    let none = project_basin(&cs, &climates, std::slice::from_ref(&p), 2027, None);
     assert_eq!(none.years, reference);
     for effort in [Effort::BasinBudget(vec![0.0; 51]), Effort::CatchmentBudget(vec![vec![0.0; 51]; 3]), Effort::FixedArea(vec![0.0; 51])] {
-        let zero = project_basin(&cs, &climates, &p, 2027, Some(&strategy(PriorityRule::BestValue, effort)));
+        let zero = project_basin(&cs, &climates, std::slice::from_ref(&p), 2027, Some(&strategy(PriorityRule::BestValue, effort)));
         assert_eq!(zero.years, reference);
         assert!(zero.control.iter().flatten().all(|c| c.cost() == 0.0 && c.treated_ha == 0.0));
     }
@@ -69,7 +69,7 @@ fn unlimited_budget_full_efficacy_no_regrowth_clears_and_keeps_cleared() {
     let mut st = strategy(PriorityRule::ScatteredFirst, Effort::Unlimited);
     st.efficacy = 1.0;
     st.regrowth_fraction = 0.0;
-    let run = project_basin(&cs, &climates, &p, 2027, Some(&st));
+    let run = project_basin(&cs, &climates, std::slice::from_ref(&p), 2027, Some(&st));
     for ys in &run.years {
         assert!(ys[0].classes.total_ha() > 0.0);
         for y in &ys[1..] {
@@ -87,7 +87,7 @@ fn spending_never_exceeds_the_budget_and_area_is_conserved() {
         for carry in [false, true] {
             let mut st = strategy(rule, Effort::BasinBudget(budget.clone()));
             st.carry_over = carry;
-            let run = project_basin(&cs, &climates, &p, 2027, Some(&st));
+            let run = project_basin(&cs, &climates, std::slice::from_ref(&p), 2027, Some(&st));
             let mut carried = 0.0;
             for (t, b) in run.budget.iter().enumerate() {
                 let spent: f64 = run.control.iter().map(|c| c[t].cost()).sum();
@@ -131,7 +131,7 @@ fn hand_worked_example_to_the_cent() {
     st.efficacy = 0.8;
     st.regrowth_fraction = 0.5;
     st.regrowth_years = 2;
-    let run = project_basin(std::slice::from_ref(&c), &[vec![c.mean_climate(); 2]], &p, 2027, Some(&st));
+    let run = project_basin(std::slice::from_ref(&c), &[vec![c.mean_climate(); 2]], std::slice::from_ref(&p), 2027, Some(&st));
     let y0 = run.control[0][0];
     let y1 = run.control[0][1];
     assert_abs_diff_eq!(y0.treatment_cost, 300.00, epsilon = 0.005);
@@ -156,8 +156,8 @@ fn early_containment_costs_less_than_the_same_programme_twenty_years_later() {
     let mut st = strategy(PriorityRule::ScatteredFirst, Effort::Unlimited);
     st.efficacy = 1.0;
     st.regrowth_fraction = 0.0;
-    let early = project_basin(&cs, &climates, &p, 2027, Some(&st));
-    let late = project_basin(&cs, &climates, &p, 2027, Some(&st.delayed(20)));
+    let early = project_basin(&cs, &climates, std::slice::from_ref(&p), 2027, Some(&st));
+    let late = project_basin(&cs, &climates, std::slice::from_ref(&p), 2027, Some(&st.delayed(20)));
     let total = |r: &yieldshift::model::basin::BasinRun| r.control.iter().flatten().map(|c| c.cost()).sum::<f64>();
     let final_ha = |r: &yieldshift::model::basin::BasinRun| r.years.iter().map(|y| y[50].classes.total_ha()).sum::<f64>();
     assert!(final_ha(&early) < 1e-9 && final_ha(&late) < 1e-9);

@@ -23,7 +23,10 @@ pub struct RunArgs {
     /// Figure formats to write.
     #[arg(long, value_enum, default_value = "png-svg")]
     pub figure_format: FormatArg,
-    /// Print nothing but errors.
+    /// Worker threads for ensembles (default: one per core). Results do not depend on it.
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u16).range(1..=1024))]
+    pub threads: Option<u16>,
+    /// Print nothing but errors (no progress bar).
     #[arg(long, short)]
     pub quiet: bool,
 }
@@ -73,6 +76,8 @@ pub fn run(a: &RunArgs) -> anyhow::Result<()> {
             FormatArg::Svg => Formats { png: false, svg: true },
             FormatArg::PngSvg => Formats { png: true, svg: true },
         },
+        threads: a.threads.map(usize::from),
+        progress: !a.quiet,
     };
     let outcome = pipeline::run(&scenario, &opts).with_context(|| format!("running {}", a.scenario.display()))?;
     if !a.quiet {
@@ -85,7 +90,10 @@ pub fn run(a: &RunArgs) -> anyhow::Result<()> {
             scenario.start_year + scenario.horizon_years as i32,
             scenario.params.curves.method_name()
         );
-        println!("wrote {} (yearly.csv, summary.csv, nodes.csv, {} figures)", outcome.out.display(), outcome.figures);
+        if outcome.members > 0 {
+            println!("ensemble: {} members, {} uncertain parameters", outcome.members, scenario.uncertain.len());
+        }
+        println!("wrote {} ({} strategies, {} figures)", outcome.out.display(), outcome.strategies.len(), outcome.figures);
         println!("Screening estimates only; see run_info.json for cautions.");
     }
     Ok(())

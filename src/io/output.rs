@@ -74,6 +74,11 @@ impl CsvOut {
         self.w.write_all(self.line.as_bytes()).map_err(|e| Error::io(format!("writing {}", self.path.display()), e))
     }
 
+    /// Writes pre-formatted CSV text (whole lines).
+    pub fn raw(&mut self, text: &str) -> Result<()> {
+        self.w.write_all(text.as_bytes()).map_err(|e| Error::io(format!("writing {}", self.path.display()), e))
+    }
+
     /// Flushes the file.
     pub fn finish(mut self) -> Result<()> {
         self.w.flush().map_err(|e| Error::io(format!("writing {}", self.path.display()), e))

@@ -17,6 +17,7 @@ use crate::model::control::{Effort, PriorityRule, Strategy, TreatmentMethod};
 use crate::model::cover::DensityClass;
 use crate::model::cover::InvasionParams;
 use crate::model::network::{Network, NetworkError};
+use crate::model::uncertainty::{Sampling, UncertainParam};
 use std::path::{Path, PathBuf};
 
 /// A scenario with all its inputs read and validated.
@@ -48,6 +49,52 @@ pub struct Scenario {
     pub strategies: Vec<Strategy>,
     /// Discounting and the value of water.
     pub economics: Economics,
+    /// Treatment methods (`[[treatment]]`), in file order.
+    pub treatments: Vec<TreatmentMethod>,
+    /// Multiplier on every year's rainfall (`[climate] rain_scale`).
+    pub rain_scale: f64,
+    /// Multiplier on every year's PET (`[climate] pet_scale`).
+    pub pet_scale: f64,
+    /// Parameters given as distributions.
+    pub uncertain: Vec<UncertainParam>,
+    /// Ensemble settings (`[ensemble]`), if any.
+    pub ensemble: Option<EnsembleConfig>,
+}
+
+/// How an ensemble varies the climate between members.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum ClimateVariability {
+    /// Every member uses the scenario's climate.
+    None,
+    /// Moving-block bootstrap of the climate table's years.
+    Bootstrap {
+        /// Block length, years.
+        block_years: usize,
+    },
+    /// Log-normal AR(1) annual rainfall around each catchment's mean.
+    Stochastic {
+        /// Coefficient of variation of annual rainfall.
+        rain_cv: f64,
+        /// Lag-1 autocorrelation of (log) annual rainfall.
+        rain_lag1: f64,
+        /// Coefficient of variation of annual PET (0: held at its mean).
+        pet_cv: f64,
+    },
+}
+
+/// `[ensemble]` settings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct EnsembleConfig {
+    /// Members, ≥ 1.
+    pub members: usize,
+    /// Sampling scheme.
+    pub sampling: crate::model::uncertainty::Sampling,
+    /// Random seed.
+    pub seed: u64,
+    /// Climate variability between members.
+    pub climate: ClimateVariability,
+    /// Also write `members.csv` (large).
+    pub write_members: bool,
 }
 
 /// Discount rate and value of water for programme economics.
@@ -68,10 +115,16 @@ impl Scenario {
 
     /// The climate series of catchment `index` over the projected years.
     pub fn climate_series(&self, index: usize) -> Vec<ClimateYear> {
+        self.climate_series_scaled(index, self.rain_scale, self.pet_scale)
+    }
+
+    /// The climate series with rainfall and PET multiplied by the given scales.
+    pub fn climate_series_scaled(&self, index: usize, rain_scale: f64, pet_scale: f64) -> Vec<ClimateYear> {
         let c = &self.catchments[index];
+        let scale = |cl: ClimateYear| ClimateYear { rain_mm: cl.rain_mm * rain_scale, pet_mm: cl.pet_mm * pet_scale };
         match &self.climate {
-            Some(table) => self.years().map(|y| table.year_for(&c.id, y, c.mean_climate(), self.beyond_record)).collect(),
-            None => vec![c.mean_climate(); self.horizon_years + 1],
+            Some(table) => self.years().map(|y| scale(table.year_for(&c.id, y, c.mean_climate(), self.beyond_record))).collect(),
+            None => vec![scale(c.mean_climate()); self.horizon_years + 1],
         }
     }
 }
@@ -83,8 +136,15 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
     })?;
     let (doc, table) = TomlDoc::parse(path, text).map_err(Error::invalid)?;
     let base = path.parent().map(Path::to_path_buf).unwrap_or_default();
-    let raw = read_keys(&doc, &table, &base);
+    let mut raw = read_keys(&doc, &table, &base);
+    raw.uncertain = doc.take_uncertain();
     let mut problems = doc.take_problems();
+    if let (Some(e), Some(ClimateVariability::Bootstrap { .. })) = (&raw.ensemble, raw.ensemble.as_ref().map(|e| e.climate)) {
+        if raw.climate_path.is_none() {
+            let _ = e;
+            problems.push(Problem::in_file(path, "climate = \"bootstrap\" resamples the climate table's years, but the scenario has no [climate] table; use climate = \"stochastic\"").column("ensemble.climate"));
+        }
+    }
     if !problems.is_empty() {
         return Err(Error::Invalid(problems));
     }
@@ -166,6 +226,11 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
         beyond_record: raw.beyond_record,
         strategies,
         economics: raw.economics,
+        treatments: raw.treatments,
+        rain_scale: raw.rain_scale,
+        pet_scale: raw.pet_scale,
+        uncertain: raw.uncertain,
+        ensemble: raw.ensemble,
     })
 }
 
@@ -180,6 +245,11 @@ struct RawScenario {
     calibration: Vec<RawCalibration>,
     economics: Economics,
     strategies: Vec<RawStrategy>,
+    treatments: Vec<TreatmentMethod>,
+    rain_scale: f64,
+    pet_scale: f64,
+    ensemble: Option<EnsembleConfig>,
+    uncertain: Vec<UncertainParam>,
 }
 
 /// A `[[calibration]]` entry: fitted curve parameters for one catchment, or a donor.
@@ -281,7 +351,7 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
     let horizon_years = root.int_in("horizon_years", None, 1, 300, "years") as usize;
     let catchments_path = base.join(root.string("catchments", None).unwrap_or_default());
 
-    let (climate_path, beyond_record) = match root.section("climate") {
+    let (climate_path, beyond_record, (rain_scale, pet_scale)) = match root.section("climate") {
         Some(s) => {
             let p = s.opt_string("table").map(|t| base.join(t));
             let b = match s.choice("beyond_record", "cycle", &["cycle", "mean", "error"]).as_str() {
@@ -289,11 +359,17 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
                 "error" => BeyondRecord::Error,
                 _ => BeyondRecord::Cycle,
             };
+            let scales = (s.param("rain_scale", Some(1.0), 0.1, 3.0, ""), s.param("pet_scale", Some(1.0), 0.1, 3.0, ""));
             s.finish();
-            (p, b)
+            (p, b, scales)
         }
-        None => (None, BeyondRecord::Cycle),
+        None => (None, BeyondRecord::Cycle, (1.0, 1.0)),
     };
+    let ensemble = root.section("ensemble").map(|s| {
+        let e = read_ensemble(&s);
+        s.finish();
+        e
+    });
 
     let (curves, forest_pet_factor) = read_hydrology(root.section("hydrology"));
     let invasion = read_invasion(root.section("invasion"), root.section("canopy_closure"));
@@ -332,17 +408,50 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
         calibration,
         economics,
         strategies,
+        treatments,
+        rain_scale,
+        pet_scale,
+        ensemble,
+        uncertain: Vec::new(),
     }
+}
+
+fn read_ensemble(s: &Section<'_>) -> EnsembleConfig {
+    let members = s.int_in("members", Some(100), 1, 100_000, "members") as usize;
+    let sampling = match s.choice("sampling", "latin-hypercube", &["latin-hypercube", "monte-carlo"]).as_str() {
+        "monte-carlo" => Sampling::MonteCarlo,
+        _ => Sampling::LatinHypercube,
+    };
+    let seed = s.int_in("seed", Some(1), 0, i64::MAX, "") as u64;
+    let mode = s.choice("climate", "none", &["none", "bootstrap", "stochastic"]);
+    let block_years = s.int_in("block_years", Some(5), 1, 100, "years") as usize;
+    let rain_cv = s.f64_in("rain_cv", Some(0.15), 0.0, 2.0, "");
+    let rain_lag1 = s.f64_in("rain_lag1", Some(0.2), -0.95, 0.95, "");
+    let pet_cv = s.f64_in("pet_cv", Some(0.0), 0.0, 1.0, "");
+    let write_members = match s.get("write_members") {
+        None => false,
+        Some(toml::Value::Boolean(b)) => *b,
+        Some(_) => {
+            s.push("write_members", "must be true or false");
+            false
+        }
+    };
+    let climate = match mode.as_str() {
+        "bootstrap" => ClimateVariability::Bootstrap { block_years },
+        "stochastic" => ClimateVariability::Stochastic { rain_cv, rain_lag1, pet_cv },
+        _ => ClimateVariability::None,
+    };
+    EnsembleConfig { members, sampling, seed, climate, write_members }
 }
 
 fn read_hydrology(s: Option<Section<'_>>) -> (CoverCurves, f64) {
     let Some(s) = s else { return (CoverCurves::ZHANG_DEFAULT, 1.0) };
     let method = s.choice("method", "zhang", &["zhang", "fu"]);
-    let w_forest = s.f64_in("w_forest", Some(2.0), 0.01, 20.0, "");
-    let w_grass = s.f64_in("w_grass", Some(0.5), 0.01, 20.0, "");
-    let omega_forest = s.f64_in("omega_forest", Some(2.97), 1.01, 20.0, "");
-    let omega_grass = s.f64_in("omega_grass", Some(2.16), 1.01, 20.0, "");
-    let factor = s.f64_in("forest_pet_factor", Some(1.0), 0.5, 2.0, "");
+    let w_forest = s.param("w_forest", Some(2.0), 0.01, 20.0, "");
+    let w_grass = s.param("w_grass", Some(0.5), 0.01, 20.0, "");
+    let omega_forest = s.param("omega_forest", Some(2.97), 1.01, 20.0, "");
+    let omega_grass = s.param("omega_grass", Some(2.16), 1.01, 20.0, "");
+    let factor = s.param("forest_pet_factor", Some(1.0), 0.5, 2.0, "");
     s.finish();
     let curves = if method == "fu" {
         CoverCurves::Fu { omega_forest, omega_grass }
@@ -355,9 +464,13 @@ fn read_hydrology(s: Option<Section<'_>>) -> (CoverCurves, f64) {
 fn read_invasion(inv: Option<Section<'_>>, closure: Option<Section<'_>>) -> InvasionParams {
     let (spread, seed_age, seed_rain, medium, dense, span) = match &inv {
         Some(s) => {
-            let spread = s.f64_in("spread_rate_per_yr", Some(0.06), 0.0, 1.0, "1/yr");
-            let seed_age = s.int_in("seed_bearing_age_yr", Some(8), 0, 100, "years") as u32;
-            let seed_rain = s.f64_in("seed_rain_ha_per_yr", Some(0.0), 0.0, 1e7, "ha/yr");
+            let spread = s.param("spread_rate_per_yr", Some(0.06), 0.0, 1.0, "1/yr");
+            let seed_age = if matches!(s.get("seed_bearing_age_yr"), Some(toml::Value::Table(_))) {
+                s.param("seed_bearing_age_yr", Some(8.0), 0.0, 100.0, "years").round() as u32
+            } else {
+                s.int_in("seed_bearing_age_yr", Some(8), 0, 100, "years") as u32
+            };
+            let seed_rain = s.param("seed_rain_ha_per_yr", Some(0.0), 0.0, 1e7, "ha/yr");
             let medium = s.int_in("medium_age_yr", Some(10), 1, 100, "years") as u32;
             let dense = s.int_in("dense_age_yr", Some(20), 2, 200, "years") as u32;
             let span = s.int_in("initial_dense_span_yr", Some(10), 1, 100, "years") as u32;
@@ -373,9 +486,9 @@ fn read_invasion(inv: Option<Section<'_>>, closure: Option<Section<'_>>) -> Inva
         None => ClosureCurve::Logistic { half_closure_age_yr: 12.0, steepness_per_yr: 0.35, max_fraction: 1.0 },
         Some(s) => {
             let kind = s.choice("curve", "logistic", &["logistic", "table"]);
-            let half = s.f64_in("half_closure_age_yr", Some(12.0), 0.5, 200.0, "years");
-            let k = s.f64_in("steepness_per_yr", Some(0.35), 0.01, 10.0, "1/yr");
-            let max = s.f64_in("max_fraction", Some(1.0), 0.0, 1.0, "fraction");
+            let half = s.param("half_closure_age_yr", Some(12.0), 0.5, 200.0, "years");
+            let k = s.param("steepness_per_yr", Some(0.35), 0.01, 10.0, "1/yr");
+            let max = s.param("max_fraction", Some(1.0), 0.0, 1.0, "fraction");
             let ages = s.f64_list("ages_yr", 0.0, 500.0, "years");
             let fractions = s.f64_list("fractions", 0.0, 1.0, "fraction");
             let c = if kind == "table" {
@@ -421,8 +534,8 @@ fn read_contaminants(root: &Section<'_>) -> Vec<Contaminant> {
         if out.iter().any(|c| c.name == name) {
             s.push("name", format!("contaminant '{name}' is defined twice"));
         }
-        let open = s.f64_in("open_export_kg_per_ha_yr", None, 0.0, 1e4, "kg/ha/yr");
-        let forest = s.f64_in("forest_export_kg_per_ha_yr", None, 0.0, 1e4, "kg/ha/yr");
+        let open = s.param("open_export_kg_per_ha_yr", None, 0.0, 1e4, "kg/ha/yr");
+        let forest = s.param("forest_export_kg_per_ha_yr", None, 0.0, 1e4, "kg/ha/yr");
         let guideline = s.opt_f64_in("guideline_mg_per_l", 0.0, 1e6, "mg/L");
         s.finish();
         out.push(Contaminant { name, open_export_kg_per_ha_yr: open, forest_export_kg_per_ha_yr: forest, guideline_mg_per_l: guideline });
@@ -483,7 +596,7 @@ fn read_treatments(root: &Section<'_>) -> Vec<TreatmentMethod> {
         if !s.has("class") {
             s.push("class", "required key is missing; choose one of: scattered, medium, dense");
         }
-        let cost = s.f64_in("cost_per_ha", None, 0.0, 1e7, "$/ha");
+        let cost = s.param("cost_per_ha", None, 0.0, 1e7, "$/ha");
         let class = class_from_name(&class).unwrap_or(DensityClass::Scattered);
         if out.iter().any(|m| m.name == name && m.class == class) {
             s.push("name", format!("treatment '{name}' for class {} is defined twice", class.name()));
@@ -563,10 +676,10 @@ fn read_strategies(root: &Section<'_>, base: &Path, treatments: &[TreatmentMetho
             }
         };
         let _ = (s.get("budget_per_yr"), s.get("budget_table"), s.get("area_ha_per_yr"));
-        let efficacy = s.f64_in("efficacy", Some(0.95), 0.0, 1.0, "fraction");
-        let regrowth_fraction = s.f64_in("regrowth_fraction", Some(0.0), 0.0, 1.0, "fraction");
+        let efficacy = s.param("efficacy", Some(0.95), 0.0, 1.0, "fraction");
+        let regrowth_fraction = s.param("regrowth_fraction", Some(0.0), 0.0, 1.0, "fraction");
         let regrowth_years = s.int_in("regrowth_years", Some(5), 1, 50, "years") as u32;
-        let follow_up = s.f64_in("follow_up_cost_per_ha", Some(0.0), 0.0, 1e6, "$/ha/yr");
+        let follow_up = s.param("follow_up_cost_per_ha", Some(0.0), 0.0, 1e6, "$/ha/yr");
         let delays: Vec<u32> = s.f64_list("delays_yr", 0.0, 300.0, "years").unwrap_or_default().into_iter().map(|d| d as u32).collect();
         let mut fixed: [Option<String>; 3] = [None, None, None];
         if let Some(m) = s.section("methods") {

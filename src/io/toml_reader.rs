@@ -6,6 +6,7 @@
 
 use crate::error::Problem;
 use crate::io::table::{fmt_value, range_text, suggestion};
+use crate::model::uncertainty::{Distribution, UncertainParam};
 use std::cell::RefCell;
 use std::collections::BTreeSet;
 use std::path::{Path, PathBuf};
@@ -16,6 +17,8 @@ pub struct TomlDoc {
     path: PathBuf,
     text: String,
     problems: RefCell<Vec<Problem>>,
+    /// Parameters given as distributions, in reading order.
+    uncertain: RefCell<Vec<UncertainParam>>,
 }
 
 /// One table of the document (the root, a `[section]` or one `[[array]]` entry).
@@ -33,7 +36,7 @@ impl TomlDoc {
     pub fn parse(path: &Path, text: String) -> Result<(TomlDoc, toml::Table), Problem> {
         let text = text.strip_prefix('\u{feff}').map(str::to_string).unwrap_or(text);
         match text.parse::<toml::Table>() {
-            Ok(t) => Ok((TomlDoc { path: path.to_path_buf(), text, problems: RefCell::new(Vec::new()) }, t)),
+            Ok(t) => Ok((TomlDoc { path: path.to_path_buf(), text, problems: RefCell::new(Vec::new()), uncertain: RefCell::new(Vec::new()) }, t)),
             Err(e) => {
                 let line = e.span().map(|s| text[..s.start.min(text.len())].matches('\n').count() + 1);
                 let msg = format!("is not valid TOML: {}", e.message());
@@ -42,6 +45,11 @@ impl TomlDoc {
                 Err(p)
             }
         }
+    }
+
+    /// Every parameter given as a distribution, in reading order.
+    pub fn take_uncertain(&self) -> Vec<UncertainParam> {
+        std::mem::take(&mut self.uncertain.borrow_mut())
     }
 
     /// The file's path.
@@ -198,6 +206,93 @@ impl<'a> Section<'a> {
                 }
             },
         }
+    }
+
+    /// A parameter that may be uncertain: a number within `lo..=hi`, or an inline
+    /// table giving a distribution, e.g. `{ dist = "triangular", min = 0.04, mode = 0.06, max = 0.08 }`
+    /// with an optional `per = "catchment"` (default `"basin"`: one draw per member
+    /// shared by all catchments). Returns the number, or the distribution's central
+    /// value, and records the distribution.
+    pub fn param(&self, key: &str, default: Option<f64>, lo: f64, hi: f64, unit: &str) -> f64 {
+        let Some(toml::Value::Table(t)) = self.table.get(key) else {
+            return self.f64_in(key, default, lo, hi, unit);
+        };
+        self.used.borrow_mut().insert(key.to_string());
+        let fallback = default.unwrap_or(lo.max(0.0).min(hi));
+        let num = |k: &str| -> Option<f64> { t.get(k).and_then(as_f64) };
+        let need = |k: &str, problems: &mut Vec<String>| -> f64 {
+            num(k).unwrap_or_else(|| {
+                problems.push(format!("needs a number '{k}'"));
+                f64::NAN
+            })
+        };
+        let mut msgs = Vec::new();
+        let kind = match t.get("dist") {
+            Some(toml::Value::String(s)) => s.clone(),
+            _ => {
+                self.push(key, "a distribution needs dist = \"fixed\" | \"uniform\" | \"triangular\" | \"normal\" | \"lognormal\" | \"pert\"");
+                return fallback;
+            }
+        };
+        let allowed: &[&str] = match kind.as_str() {
+            "fixed" => &["value"],
+            "uniform" => &["min", "max"],
+            "triangular" | "pert" => &["min", "mode", "max"],
+            "normal" => &["mean", "sd", "min", "max"],
+            "lognormal" => &["median", "sigma_log"],
+            other => {
+                let kinds = ["fixed", "uniform", "triangular", "normal", "lognormal", "pert"];
+                self.push(key, format!("unknown distribution '{other}'{}", suggestion(other, &kinds)));
+                return fallback;
+            }
+        };
+        let dist = match kind.as_str() {
+            "fixed" => Distribution::Fixed { value: need("value", &mut msgs) },
+            "uniform" => Distribution::Uniform { min: need("min", &mut msgs), max: need("max", &mut msgs) },
+            "triangular" => Distribution::Triangular { min: need("min", &mut msgs), mode: need("mode", &mut msgs), max: need("max", &mut msgs) },
+            "pert" => Distribution::Pert { min: need("min", &mut msgs), mode: need("mode", &mut msgs), max: need("max", &mut msgs) },
+            "normal" => Distribution::Normal {
+                mean: need("mean", &mut msgs),
+                sd: need("sd", &mut msgs),
+                min: num("min").unwrap_or(lo).max(lo),
+                max: num("max").unwrap_or(hi).min(hi),
+            },
+            _ => Distribution::LogNormal { median: need("median", &mut msgs), sigma_log: need("sigma_log", &mut msgs) },
+        };
+        let per_catchment = match t.get("per") {
+            None => false,
+            Some(toml::Value::String(s)) if s == "basin" => false,
+            Some(toml::Value::String(s)) if s == "catchment" => true,
+            Some(_) => {
+                msgs.push("per must be \"basin\" (one draw per member, shared) or \"catchment\" (independent per catchment)".into());
+                false
+            }
+        };
+        for k in t.keys() {
+            if k != "dist" && k != "per" && !allowed.contains(&k.as_str()) {
+                msgs.push(format!("unknown key '{k}' for a {kind} distribution{}", suggestion(k, allowed)));
+            }
+        }
+        if msgs.is_empty() {
+            if let Err(m) = dist.validate() {
+                msgs.push(format!("{kind} distribution {m}"));
+            }
+        }
+        if msgs.is_empty() {
+            let (a, b) = dist.support();
+            if a < lo || (b > hi && !matches!(dist, Distribution::LogNormal { .. })) {
+                msgs.push(format!("the distribution reaches {}–{}, outside the allowed {}", fmt_value(a), fmt_value(b), range_text(lo, hi, unit)));
+            }
+        }
+        if !msgs.is_empty() {
+            for m in msgs {
+                self.push(key, m);
+            }
+            return fallback;
+        }
+        let central = dist.central().clamp(lo, hi);
+        self.doc.uncertain.borrow_mut().push(UncertainParam { path: self.key_path(key), dist, per_catchment });
+        central
     }
 
     /// An optional number within `lo..=hi`.

@@ -50,19 +50,24 @@ struct Slot {
 /// Projects every catchment, under `strategy` if given.
 ///
 /// `climates[i][t]` is catchment `i`'s climate in year `start_year + t`; all series
-/// must have the same length.
+/// must have the same length. `params` holds one set shared by all catchments, or
+/// one per catchment (ensemble members with per-catchment draws).
 pub fn project_basin(
     catchments: &[Catchment],
     climates: &[Vec<ClimateYear>],
-    p: &ModelParams,
+    params: &[ModelParams],
     start_year: i32,
     strategy: Option<&Strategy>,
 ) -> BasinRun {
     let n = catchments.len();
+    assert!(params.len() == 1 || params.len() == n, "one parameter set, or one per catchment");
+    let par = |i: usize| if params.len() == 1 { &params[0] } else { &params[i] };
     let n_years = climates.first().map_or(0, Vec::len);
     let mut states: Vec<State> = catchments
         .iter()
-        .map(|c| {
+        .enumerate()
+        .map(|(i, c)| {
+            let p = par(i);
             let cohorts = Cohorts::from_classes(&p.invasion, c.infested);
             let (_, q_open) = et_and_yield_mm(c, p, c.mean_climate(), 0.0);
             let (_, q_forest) = et_and_yield_mm(c, p, c.mean_climate(), 1.0);
@@ -70,13 +75,21 @@ pub fn project_basin(
         })
         .collect();
     let max_age = states.iter().map(|s| s.cohorts.oldest_age_yr()).max().unwrap_or(0) + 2 * n_years + 2;
-    let closure = p.invasion.closure.table_by_whole_year(max_age);
-    let mut closure_prefix = vec![0.0; closure.len() + 1];
-    for (i, c) in closure.iter().enumerate() {
-        closure_prefix[i + 1] = closure_prefix[i] + c;
-    }
-    for (s, c) in states.iter_mut().zip(catchments) {
-        s.f0 = canopy_fraction(c, &s.cohorts, &closure);
+    // Closure tables and their prefix sums: one shared, or one per catchment.
+    let tables: Vec<(Vec<f64>, Vec<f64>)> = params
+        .iter()
+        .map(|p| {
+            let closure = p.invasion.closure.table_by_whole_year(max_age);
+            let mut prefix = vec![0.0; closure.len() + 1];
+            for (i, c) in closure.iter().enumerate() {
+                prefix[i + 1] = prefix[i] + c;
+            }
+            (closure, prefix)
+        })
+        .collect();
+    let table = |i: usize| if tables.len() == 1 { &tables[0] } else { &tables[i] };
+    for (i, (s, c)) in states.iter_mut().zip(catchments).enumerate() {
+        s.f0 = canopy_fraction(c, &s.cohorts, &table(i).0);
     }
 
     let mut years: Vec<Vec<YearResult>> = (0..n).map(|_| Vec::with_capacity(n_years)).collect();
@@ -88,7 +101,8 @@ pub fn project_basin(
         let year = start_year + t as i32;
         for (i, c) in catchments.iter().enumerate() {
             let s = &states[i];
-            let f = canopy_fraction(c, &s.cohorts, &closure);
+            let p = par(i);
+            let f = canopy_fraction(c, &s.cohorts, &table(i).0);
             years[i].push(year_result(c, p, year, climates[i][t], f, s.f0, s.f_uninvaded, s.cohorts.class_areas(&p.invasion), s.new_ha));
         }
         let mut suppressed = vec![0.0; n];
@@ -117,11 +131,12 @@ pub fn project_basin(
                 // 2. Treatment in priority order.
                 let mut slots: Vec<Slot> = Vec::new();
                 for &i in &members {
+                    let (closure, closure_prefix) = table(i);
                     for (age, area) in states[i].cohorts.iter_by_age() {
                         if area <= 0.0 {
                             continue;
                         }
-                        let cost = st.class_cost(p.invasion.class_of(age));
+                        let cost = st.class_cost(par(i).invasion.class_of(age));
                         let key = match st.rule {
                             PriorityRule::ScatteredFirst => -(age as f64),
                             PriorityRule::DensestFirst => age as f64,
@@ -181,7 +196,7 @@ pub fn project_basin(
                     s.tracked.push(Tracked { cleared_ha: cleared, years_left: st.regrowth_years });
                 }
             }
-            s.new_ha = s.cohorts.step_with(&p.invasion, c.vulnerable_ha, regrowth);
+            s.new_ha = s.cohorts.step_with(&par(i).invasion, c.vulnerable_ha, regrowth);
             // Regrowth shares the new age-0 cohort with spread; both are capped by the free area.
             control[i][t].regrowth_ha = regrowth.min(s.new_ha);
         }

@@ -240,6 +240,19 @@ impl Cohorts {
         new_ha
     }
 
+    /// Cohort areas from oldest to youngest, ha.
+    #[inline]
+    pub fn areas_oldest_first(&self) -> &[f64] {
+        &self.areas_ha
+    }
+
+    /// Ages every cohort by one year and adds a new age-0 cohort of `new_ha`
+    /// (the caller has already capped it at the free vulnerable area).
+    #[inline]
+    pub fn push_new(&mut self, new_ha: f64) {
+        self.areas_ha.push(new_ha);
+    }
+
     /// Removes up to `ha` from the cohort of age `age_yr`; returns the area removed.
     pub fn remove_at_age(&mut self, age_yr: usize, ha: f64) -> f64 {
         let n = self.areas_ha.len();

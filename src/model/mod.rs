@@ -8,18 +8,22 @@
 pub mod basin;
 pub mod budyko;
 pub mod catchment;
+pub mod climate_gen;
 pub mod closure;
 pub mod control;
 pub mod cover;
 pub mod dilution;
+pub mod kernel;
 pub mod economics;
 pub mod fit;
 pub mod network;
 pub mod pet;
 pub mod projection;
+pub mod stats;
 pub mod roots;
 pub mod skill;
 pub mod summary;
+pub mod uncertainty;
 
 pub use budyko::{CoverCurves, WaterBalance};
 pub use catchment::{Catchment, ClimateYear, Contaminant, ModelParams};

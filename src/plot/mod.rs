@@ -5,9 +5,11 @@
 //! Every figure is drawn once per backend through [`save_figure`], so PNG and SVG
 //! always match.
 
+pub mod bands;
 pub mod palette;
 pub mod fit;
 pub mod series;
+pub mod tornado;
 
 use crate::error::{Error, Result};
 use plotters::coord::Shift;

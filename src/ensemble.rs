@@ -1,0 +1,658 @@
+//! Uncertainty ensembles: every member draws the uncertain parameters and (optionally)
+//! a climate sequence, is projected like the deterministic run, and the members are
+//! reduced to percentile bands (`ensemble.csv`), guideline-exceedance probabilities
+//! and a sensitivity ranking of the parameters (`sensitivity.csv`).
+//!
+//! Reproducibility: every draw depends only on the seed, the parameter (and
+//! catchment id, for per-catchment draws) and the member index
+//! ([`crate::model::uncertainty`]); catchments are processed in parallel but
+//! results are written in table order, so outputs are byte-identical whatever the
+//! number of threads.
+//!
+//! Memory: the `no-control` ensemble is computed catchment by catchment (each
+//! worker holds one catchment's members × years); a control strategy couples the
+//! catchments through its budget and is computed member by member for the whole
+//! basin, holding that strategy's basin members × years.
+
+use crate::error::{Error, Result};
+use crate::io::output::{num, opt_num, CsvOut};
+use crate::io::scenario::{ClimateVariability, EnsembleConfig, Scenario};
+use crate::model::basin::project_basin;
+use crate::model::catchment::{ClimateYear, ModelParams};
+use crate::model::climate_gen::{block_bootstrap, lognormal_ar1_multipliers};
+use crate::model::closure::ClosureCurve;
+use crate::model::control::Strategy;
+use crate::model::kernel::{concentration, project_lean, LeanYears};
+use crate::model::stats::{mean, percentile_sorted, spearman, src};
+use crate::model::uncertainty::{stable_hash, stream, uniforms, UncertainParam};
+use crate::model::CoverCurves;
+use crate::pipeline::{file_stem, BASIN_ID, NO_CONTROL};
+use crate::plot::bands::{BandChart, BandSeries};
+use crate::plot::tornado::Tornado;
+use crate::plot::{palette, save_figure, Formats};
+use rayon::prelude::*;
+use std::path::Path;
+
+/// Percentiles reported in `ensemble.csv`.
+pub const PERCENTILES: [f64; 5] = [0.05, 0.25, 0.50, 0.75, 0.95];
+
+/// Options of an ensemble run.
+#[derive(Debug, Clone, Copy)]
+pub struct EnsembleOptions {
+    /// Show a progress bar on stderr.
+    pub progress: bool,
+    /// Draw figures.
+    pub figures: bool,
+    /// Figure formats.
+    pub formats: Formats,
+}
+
+/// What the ensemble produced.
+#[derive(Debug, Clone)]
+pub struct EnsembleOutcome {
+    /// Members run.
+    pub members: usize,
+    /// Uncertain parameters.
+    pub parameters: usize,
+    /// Figures drawn.
+    pub figures: usize,
+}
+
+/// Parameters, scales and strategies of one member for one catchment.
+#[derive(Debug, Clone)]
+pub struct MemberSetup {
+    /// Model parameters.
+    pub params: ModelParams,
+    /// Control strategies (costs, efficacy…).
+    pub strategies: Vec<Strategy>,
+    /// Rainfall multiplier.
+    pub rain_scale: f64,
+    /// PET multiplier.
+    pub pet_scale: f64,
+}
+
+/// Sets the scenario parameter at `path` (as recorded by the scenario reader) to `v`.
+/// Unknown paths are ignored (they cannot occur for paths recorded by the reader).
+pub fn apply_param(s: &Scenario, path: &str, v: f64, m: &mut MemberSetup) {
+    let (head, key) = path.split_once('.').unwrap_or((path, ""));
+    let index = |h: &str, name: &str| -> Option<usize> {
+        h.strip_prefix(name)?.strip_prefix('[')?.strip_suffix(']')?.parse::<usize>().ok()?.checked_sub(1)
+    };
+    let p = &mut m.params;
+    match (head, key) {
+        ("hydrology", "w_forest") => {
+            if let CoverCurves::Zhang { w_forest, .. } = &mut p.curves {
+                *w_forest = v
+            }
+        }
+        ("hydrology", "w_grass") => {
+            if let CoverCurves::Zhang { w_grass, .. } = &mut p.curves {
+                *w_grass = v
+            }
+        }
+        ("hydrology", "omega_forest") => {
+            if let CoverCurves::Fu { omega_forest, .. } = &mut p.curves {
+                *omega_forest = v
+            }
+        }
+        ("hydrology", "omega_grass") => {
+            if let CoverCurves::Fu { omega_grass, .. } = &mut p.curves {
+                *omega_grass = v
+            }
+        }
+        ("hydrology", "forest_pet_factor") => p.forest_pet_factor = v,
+        ("invasion", "spread_rate_per_yr") => p.invasion.spread_rate_per_yr = v,
+        ("invasion", "seed_bearing_age_yr") => p.invasion.seed_bearing_age_yr = v.round().max(0.0) as u32,
+        ("invasion", "seed_rain_ha_per_yr") => p.invasion.seed_rain_ha_per_yr = v,
+        ("canopy_closure", k) => {
+            if let ClosureCurve::Logistic { half_closure_age_yr, steepness_per_yr, max_fraction } = &mut p.invasion.closure {
+                match k {
+                    "half_closure_age_yr" => *half_closure_age_yr = v,
+                    "steepness_per_yr" => *steepness_per_yr = v,
+                    "max_fraction" => *max_fraction = v,
+                    _ => {}
+                }
+            }
+        }
+        ("climate", "rain_scale") => m.rain_scale = v,
+        ("climate", "pet_scale") => m.pet_scale = v,
+        (h, k) if h.starts_with("contaminant[") => {
+            if let Some(c) = index(h, "contaminant").and_then(|i| p.contaminants.get_mut(i)) {
+                match k {
+                    "open_export_kg_per_ha_yr" => c.open_export_kg_per_ha_yr = v,
+                    "forest_export_kg_per_ha_yr" => c.forest_export_kg_per_ha_yr = v,
+                    _ => {}
+                }
+            }
+        }
+        (h, "cost_per_ha") if h.starts_with("treatment[") => {
+            if let Some(t) = index(h, "treatment").and_then(|i| s.treatments.get(i)) {
+                let class = t.class as usize;
+                for st in &mut m.strategies {
+                    if st.method_names[class] == t.name {
+                        st.cost_per_ha[class] = v;
+                    }
+                }
+            }
+        }
+        (h, k) if h.starts_with("strategy[") => {
+            if let Some(st) = index(h, "strategy").and_then(|i| m.strategies.get_mut(i)) {
+                match k {
+                    "efficacy" => st.efficacy = v,
+                    "regrowth_fraction" => st.regrowth_fraction = v,
+                    "follow_up_cost_per_ha" => st.follow_up_cost_per_ha = v,
+                    _ => {}
+                }
+            }
+        }
+        _ => {}
+    }
+}
+
+/// Drawn values `[parameter][member]` for one catchment (shared parameters take the
+/// basin draw, per-catchment ones this catchment's own).
+fn draws_for(s: &Scenario, cfg: &EnsembleConfig, shared: &[Option<Vec<f64>>], catchment_id: &str) -> Vec<Vec<f64>> {
+    s.uncertain
+        .iter()
+        .zip(shared)
+        .map(|(u, sh)| match sh {
+            Some(v) => v.clone(),
+            None => draw_values(u, cfg, Some(catchment_id)),
+        })
+        .collect()
+}
+
+fn draw_values(u: &UncertainParam, cfg: &EnsembleConfig, catchment_id: Option<&str>) -> Vec<f64> {
+    uniforms(cfg.sampling, cfg.seed, u.dimension(catchment_id), cfg.members).into_iter().map(|x| u.dist.quantile(x)).collect()
+}
+
+/// Member climate sequences, shared by all catchments.
+enum MemberClimate {
+    Fixed,
+    Years(Vec<Vec<i32>>),
+    Multipliers(Vec<Vec<f64>>, Vec<Vec<f64>>),
+}
+
+fn member_climates(s: &Scenario, cfg: &EnsembleConfig) -> MemberClimate {
+    let n = s.horizon_years + 1;
+    match cfg.climate {
+        ClimateVariability::None => MemberClimate::Fixed,
+        ClimateVariability::Bootstrap { block_years } => {
+            let cov = s.climate.as_ref().map(|t| t.coverage()).unwrap_or_default();
+            let first = cov.iter().map(|c| c.1).min().unwrap_or(s.start_year);
+            let last = cov.iter().map(|c| c.2).max().unwrap_or(s.start_year);
+            let len = (last - first + 1).max(1) as usize;
+            MemberClimate::Years(
+                (0..cfg.members)
+                    .map(|m| {
+                        let mut rng = stream(cfg.seed, stable_hash("climate:bootstrap"), m as u64);
+                        block_bootstrap(len, n, block_years, &mut rng).into_iter().map(|i| first + i as i32).collect()
+                    })
+                    .collect(),
+            )
+        }
+        ClimateVariability::Stochastic { rain_cv, rain_lag1, pet_cv } => {
+            let rain = (0..cfg.members)
+                .map(|m| lognormal_ar1_multipliers(n, rain_cv, rain_lag1, &mut stream(cfg.seed, stable_hash("climate:rain"), m as u64)))
+                .collect();
+            let pet = (0..cfg.members)
+                .map(|m| lognormal_ar1_multipliers(n, pet_cv, 0.0, &mut stream(cfg.seed, stable_hash("climate:pet"), m as u64)))
+                .collect();
+            MemberClimate::Multipliers(rain, pet)
+        }
+    }
+}
+
+fn member_series(s: &Scenario, mc: &MemberClimate, i: usize, m: usize, rain_scale: f64, pet_scale: f64) -> Vec<ClimateYear> {
+    let c = &s.catchments[i];
+    match mc {
+        MemberClimate::Fixed => s.climate_series_scaled(i, rain_scale, pet_scale),
+        MemberClimate::Years(ys) => {
+            let table = s.climate.as_ref();
+            ys[m]
+                .iter()
+                .map(|&y| {
+                    let cl = table.map_or(c.mean_climate(), |t| t.year_for(&c.id, y, c.mean_climate(), crate::io::climate::BeyondRecord::Cycle));
+                    ClimateYear { rain_mm: cl.rain_mm * rain_scale, pet_mm: cl.pet_mm * pet_scale }
+                })
+                .collect()
+        }
+        MemberClimate::Multipliers(r, p) => r[m]
+            .iter()
+            .zip(&p[m])
+            .map(|(a, b)| ClimateYear { rain_mm: c.rain_mm * a * rain_scale, pet_mm: c.pet_mm * b * pet_scale })
+            .collect(),
+    }
+}
+
+fn setup_for(s: &Scenario, draws: &[Vec<f64>], m: usize) -> MemberSetup {
+    let mut setup = MemberSetup { params: s.params.clone(), strategies: s.strategies.clone(), rain_scale: s.rain_scale, pet_scale: s.pet_scale };
+    for (u, d) in s.uncertain.iter().zip(draws) {
+        apply_param(s, &u.path, d[m], &mut setup);
+    }
+    setup
+}
+
+/// Per-member values of one catchment and strategy: `[variable][year][member]`.
+struct MemberValues {
+    vars: Vec<Vec<Vec<f64>>>,
+}
+
+/// Names of the ensemble variables for a scenario, in column order.
+pub fn variable_names(s: &Scenario) -> Vec<String> {
+    let mut v = vec!["yield_mm".to_string(), "yield_change_pct".to_string()];
+    v.extend(s.params.contaminants.iter().map(|c| format!("{}_mg_per_l", c.name)));
+    v.push("control_cost".into());
+    v
+}
+
+fn percentile_rows(s: &Scenario, id: &str, strategy: &str, mv: &MemberValues, names: &[String]) -> String {
+    let mut out = String::new();
+    let k = s.params.contaminants.len();
+    for (t, year) in s.years().enumerate() {
+        for (vi, name) in names.iter().enumerate() {
+            let mut vals: Vec<f64> = mv.vars[vi][t].iter().copied().filter(|v| v.is_finite()).collect();
+            vals.sort_by(f64::total_cmp);
+            let guideline = if vi >= 2 && vi < 2 + k { s.params.contaminants[vi - 2].guideline_mg_per_l } else { None };
+            let prob = guideline.filter(|_| !vals.is_empty()).map(|g| vals.iter().filter(|&&v| v > g).count() as f64 / vals.len() as f64);
+            let dec = if name == "control_cost" { 2 } else { 5 };
+            let mut fields = vec![id.to_string(), strategy.to_string(), year.to_string(), name.clone()];
+            for p in PERCENTILES {
+                fields.push(if vals.is_empty() { String::new() } else { num(percentile_sorted(&vals, p), dec) });
+            }
+            fields.push(if vals.is_empty() { String::new() } else { num(mean(&vals), dec) });
+            fields.push(vals.len().to_string());
+            fields.push(opt_num(prob, 4));
+            out.push_str(&csv_line(&fields));
+        }
+    }
+    out
+}
+
+fn csv_line(fields: &[String]) -> String {
+    let mut s = fields
+        .iter()
+        .map(|f| if f.contains([',', '"']) { format!("\"{}\"", f.replace('"', "\"\"")) } else { f.clone() })
+        .collect::<Vec<_>>()
+        .join(",");
+    s.push('\n');
+    s
+}
+
+/// Header of `ensemble.csv`.
+pub fn ensemble_header() -> Vec<String> {
+    ["catchment", "strategy", "year", "variable", "p5", "p25", "p50", "p75", "p95", "mean", "members", "prob_above_guideline"]
+        .iter()
+        .map(|s| s.to_string())
+        .collect()
+}
+
+/// Header of `sensitivity.csv`.
+pub fn sensitivity_header() -> Vec<String> {
+    ["catchment", "strategy", "at", "year", "parameter", "spearman_rho", "src", "rank"].iter().map(|s| s.to_string()).collect()
+}
+
+/// One sensitivity ranking: `(parameter label, ρ, SRC)` sorted by |ρ| descending.
+type Ranking = Vec<(String, Option<f64>, Option<f64>)>;
+
+fn rank(labels: &[String], xs: &[Vec<f64>], y: &[f64]) -> Ranking {
+    let ok: Vec<usize> = (0..y.len()).filter(|&m| y[m].is_finite()).collect();
+    let yv: Vec<f64> = ok.iter().map(|&m| y[m]).collect();
+    let xv: Vec<Vec<f64>> = xs.iter().map(|x| ok.iter().map(|&m| x[m]).collect()).collect();
+    let srcs = src(&xv, &yv);
+    let mut r: Ranking = labels
+        .iter()
+        .enumerate()
+        .map(|(j, l)| (l.clone(), spearman(&xv[j], &yv), srcs.as_ref().and_then(|s| s[j])))
+        .collect();
+    r.sort_by(|a, b| b.1.map_or(0.0, f64::abs).total_cmp(&a.1.map_or(0.0, f64::abs)).then(a.0.cmp(&b.0)));
+    r
+}
+
+fn sensitivity_rows(id: &str, strategy: &str, at: &str, year: i32, r: &Ranking) -> String {
+    r.iter()
+        .enumerate()
+        .map(|(k, (label, rho, srcv))| {
+            csv_line(&[id.into(), strategy.into(), at.into(), year.to_string(), label.clone(), opt_num(*rho, 4), opt_num(*srcv, 4), (k + 1).to_string()])
+        })
+        .collect()
+}
+
+/// Offsets (years after the start) at which sensitivity is ranked: year 20 (if within the horizon) and the horizon.
+fn sensitivity_points(s: &Scenario) -> Vec<(&'static str, usize)> {
+    let mut v = Vec::new();
+    if s.horizon_years >= 20 {
+        v.push(("year-20", 20));
+    }
+    v.push(("horizon", s.horizon_years));
+    v
+}
+
+struct CatchmentResult {
+    ensemble: String,
+    sensitivity: String,
+    members: String,
+    /// Per member: (yield volume, baseline volume) at each sensitivity point, m³.
+    basin_volumes: Vec<Vec<(f64, f64)>>,
+    /// Draws `[param][member]` (for basin-level sensitivity).
+    draws: Vec<Vec<f64>>,
+    bands: Option<BandSeries>,
+    ranking: Option<Ranking>,
+    /// No-control yield volume per member per year, m³ (kept only when strategies exist).
+    reference_m3: Vec<Vec<f64>>,
+}
+
+/// Runs the ensemble and writes `ensemble.csv`, `sensitivity.csv` (when any parameter
+/// is uncertain), `members.csv` (when asked) and band and tornado figures into `dir`.
+pub fn run_ensemble(s: &Scenario, cfg: &EnsembleConfig, dir: &Path, opts: &EnsembleOptions) -> Result<EnsembleOutcome> {
+    let m_count = cfg.members;
+    let names = variable_names(s);
+    let k = s.params.contaminants.len();
+    let n_years = s.horizon_years + 1;
+    let labels: Vec<String> = s.uncertain.iter().map(|u| u.path.clone()).collect();
+    let shared: Vec<Option<Vec<f64>>> = s.uncertain.iter().map(|u| (!u.per_catchment).then(|| draw_values(u, cfg, None))).collect();
+    let climates = member_climates(s, cfg);
+    let points = sensitivity_points(s);
+    let keep_reference = !s.strategies.is_empty();
+    let bar = progress_bar(opts.progress, (s.catchments.len() + s.strategies.len() * m_count) as u64);
+
+    let mut ens = CsvOut::create(&dir.join("ensemble.csv"), &ensemble_header())?;
+    let mut sens = if labels.is_empty() { None } else { Some(CsvOut::create(&dir.join("sensitivity.csv"), &sensitivity_header())?) };
+    let mut members_out = if cfg.write_members { Some(members_file(dir, s)?) } else { None };
+    let mut n_figures = 0;
+    let figdir = dir.join("figures");
+
+    // no-control, catchment by catchment, in parallel chunks written in order.
+    let mut basin_vol: Vec<Vec<(f64, f64)>> = vec![vec![(0.0, 0.0); points.len()]; m_count];
+    let mut basin_x: Vec<Vec<f64>> = vec![vec![0.0; m_count]; labels.len()];
+    let total_area: f64 = s.catchments.iter().map(|c| c.area_ha).sum();
+    let mut reference: Vec<Vec<Vec<f64>>> = Vec::new();
+    let chunk = 64;
+    for start in (0..s.catchments.len()).step_by(chunk) {
+        let end = (start + chunk).min(s.catchments.len());
+        let results: Vec<CatchmentResult> = (start..end)
+            .into_par_iter()
+            .map(|i| {
+                let r = no_control_catchment(s, cfg, i, &shared, &climates, &names, &labels, &points, keep_reference, opts.figures);
+                bar.inc(1);
+                r
+            })
+            .collect();
+        for (off, r) in results.into_iter().enumerate() {
+            let i = start + off;
+            write_str(&mut ens, &r.ensemble)?;
+            if let Some(sn) = sens.as_mut() {
+                write_str(sn, &r.sensitivity)?;
+            }
+            if let Some(mo) = members_out.as_mut() {
+                write_str(mo, &r.members)?;
+            }
+            let a = s.catchments[i].area_ha;
+            for m in 0..m_count {
+                for (pt, v) in r.basin_volumes[m].iter().enumerate() {
+                    basin_vol[m][pt].0 += v.0;
+                    basin_vol[m][pt].1 += v.1;
+                }
+                for (j, d) in r.draws.iter().enumerate() {
+                    basin_x[j][m] += d[m] * a / total_area;
+                }
+            }
+            if opts.figures {
+                if let Some(b) = &r.bands {
+                    save_figure(&BandChart::from_series(b), &figdir.join(format!("{}_yield_bands", file_stem(&s.catchments[i].id))), opts.formats)?;
+                    n_figures += 1;
+                }
+                if let Some(rk) = &r.ranking {
+                    n_figures += tornado(&figdir, s, &s.catchments[i].name, &file_stem(&s.catchments[i].id), rk, opts.formats)?;
+                }
+            }
+            if keep_reference {
+                reference.push(r.reference_m3);
+            }
+        }
+    }
+    // Basin-level sensitivity (no-control).
+    if let Some(sn) = sens.as_mut() {
+        for (pt, (at, off)) in points.iter().enumerate() {
+            let y: Vec<f64> = basin_vol.iter().map(|v| if v[pt].1 > 0.0 { 100.0 * (v[pt].0 - v[pt].1) / v[pt].1 } else { f64::NAN }).collect();
+            let r = rank(&labels, &basin_x, &y);
+            write_str(sn, &sensitivity_rows(BASIN_ID, NO_CONTROL, at, s.start_year + *off as i32, &r))?;
+            if opts.figures && *at == "horizon" {
+                n_figures += tornado(&figdir, s, &format!("{} (basin)", s.title), BASIN_ID, &r, opts.formats)?;
+            }
+        }
+    }
+
+    // Control strategies: member by member over the whole basin.
+    for (si, st) in s.strategies.iter().enumerate() {
+        let per_member: Vec<(Vec<Vec<Vec<f64>>>, Vec<Vec<f64>>)> = (0..m_count)
+            .into_par_iter()
+            .map(|m| {
+                let draws: Vec<Vec<Vec<f64>>> =
+                    s.catchments.iter().map(|c| draws_for_member(s, cfg, &shared, &c.id, m)).collect();
+                let setups: Vec<MemberSetup> = draws.iter().map(|d| setup_for_single(s, d)).collect();
+                let params: Vec<ModelParams> = setups.iter().map(|x| x.params.clone()).collect();
+                let climates_m: Vec<Vec<ClimateYear>> =
+                    (0..s.catchments.len()).map(|i| member_series(s, &climates, i, m, setups[i].rain_scale, setups[i].pet_scale)).collect();
+                // The programme's costs come from the basin-shared draws (first catchment's setup).
+                let strategy = &setups.first().map(|x| x.strategies[si].clone()).unwrap_or_else(|| st.clone());
+                let run = project_basin(&s.catchments, &climates_m, &params, s.start_year, Some(strategy));
+                bar.inc(1);
+                // values[catchment][var][year]
+                let vals: Vec<Vec<Vec<f64>>> = run
+                    .years
+                    .iter()
+                    .zip(&run.control)
+                    .map(|(ys, cs)| {
+                        let mut v = vec![vec![f64::NAN; n_years]; names.len()];
+                        for (t, (y, c)) in ys.iter().zip(cs).enumerate() {
+                            v[0][t] = y.yield_mm;
+                            v[1][t] = y.yield_change_pct().unwrap_or(f64::NAN);
+                            for j in 0..k {
+                                v[2 + j][t] = y.concentrations[j].unwrap_or(f64::NAN);
+                            }
+                            v[2 + k][t] = c.cost();
+                        }
+                        v
+                    })
+                    .collect();
+                let volumes: Vec<Vec<f64>> = run.years.iter().map(|ys| ys.iter().map(|y| y.yield_m3).collect()).collect();
+                (vals, volumes)
+            })
+            .collect();
+        for (i, c) in s.catchments.iter().enumerate() {
+            let mut mv = MemberValues { vars: vec![vec![vec![0.0; m_count]; n_years]; names.len()] };
+            for (m, (vals, _)) in per_member.iter().enumerate() {
+                for (vi, series) in vals[i].iter().enumerate() {
+                    for (t, x) in series.iter().enumerate() {
+                        mv.vars[vi][t][m] = *x;
+                    }
+                }
+            }
+            write_str(&mut ens, &percentile_rows(s, &c.id, &st.name, &mv, &names))?;
+            if let Some(mo) = members_out.as_mut() {
+                let mut text = String::new();
+                for m in 0..m_count {
+                    for (t, year) in s.years().enumerate() {
+                        let saved = per_member[m].1[i][t] - reference[i][m][t];
+                        text.push_str(&member_line(&c.id, &st.name, m, year, &mv, t, m, Some(saved)));
+                    }
+                }
+                write_str(mo, &text)?;
+            }
+        }
+    }
+    ens.finish()?;
+    if let Some(sn) = sens {
+        sn.finish()?;
+    }
+    if let Some(mo) = members_out {
+        mo.finish()?;
+    }
+    bar.finish_and_clear();
+    Ok(EnsembleOutcome { members: m_count, parameters: labels.len(), figures: n_figures })
+}
+
+fn draws_for_member(s: &Scenario, cfg: &EnsembleConfig, shared: &[Option<Vec<f64>>], id: &str, m: usize) -> Vec<Vec<f64>> {
+    s.uncertain
+        .iter()
+        .zip(shared)
+        .map(|(u, sh)| match sh {
+            Some(v) => vec![v[m]],
+            None => {
+                let all = draw_values(u, cfg, Some(id));
+                vec![all[m]]
+            }
+        })
+        .collect()
+}
+
+fn setup_for_single(s: &Scenario, draws: &[Vec<f64>]) -> MemberSetup {
+    setup_for(s, draws, 0)
+}
+
+#[allow(clippy::too_many_arguments)]
+fn no_control_catchment(
+    s: &Scenario,
+    cfg: &EnsembleConfig,
+    i: usize,
+    shared: &[Option<Vec<f64>>],
+    climates: &MemberClimate,
+    names: &[String],
+    labels: &[String],
+    points: &[(&'static str, usize)],
+    keep_reference: bool,
+    figures: bool,
+) -> CatchmentResult {
+    let c = &s.catchments[i];
+    let m_count = cfg.members;
+    let n_years = s.horizon_years + 1;
+    let k = s.params.contaminants.len();
+    let draws = draws_for(s, cfg, shared, &c.id);
+    let mut mv = MemberValues { vars: vec![vec![vec![0.0; m_count]; n_years]; names.len()] };
+    let mut lean = LeanYears::default();
+    let mut basin_volumes = Vec::with_capacity(m_count);
+    let mut reference_m3 = Vec::new();
+    let mut members = String::new();
+    let mut setup = setup_for(s, &draws, 0);
+    for m in 0..m_count {
+        // Every uncertain parameter is re-applied, so one setup serves all members.
+        for (u, d) in s.uncertain.iter().zip(&draws) {
+            apply_param(s, &u.path, d[m], &mut setup);
+        }
+        let climate = member_series(s, climates, i, m, setup.rain_scale, setup.pet_scale);
+        project_lean(c, &climate, &setup.params, &mut lean);
+        for t in 0..n_years {
+            mv.vars[0][t][m] = lean.yield_mm[t];
+            mv.vars[1][t][m] = lean.change_pct(t).unwrap_or(f64::NAN);
+            for j in 0..k {
+                mv.vars[2 + j][t][m] =
+                    concentration(lean.loads_kg_per_yr[t * k + j], lean.yield_mm[t], c.area_ha, setup.params.min_runoff_mm).unwrap_or(f64::NAN);
+            }
+            mv.vars[2 + k][t][m] = 0.0;
+        }
+        basin_volumes.push(points.iter().map(|&(_, off)| (lean.yield_mm[off] * c.area_ha * 10.0, lean.baseline_yield_mm[off] * c.area_ha * 10.0)).collect());
+        if keep_reference {
+            reference_m3.push(lean.yield_mm.iter().map(|q| q * c.area_ha * 10.0).collect());
+        }
+        if cfg.write_members {
+            for (t, year) in s.years().enumerate() {
+                members.push_str(&member_line(&c.id, NO_CONTROL, m, year, &mv, t, m, Some(0.0)));
+            }
+        }
+    }
+    let ensemble = percentile_rows(s, &c.id, NO_CONTROL, &mv, names);
+    let mut sensitivity = String::new();
+    let mut ranking = None;
+    if !labels.is_empty() {
+        for (at, off) in points {
+            let r = rank(labels, &draws, &mv.vars[1][*off]);
+            sensitivity.push_str(&sensitivity_rows(&c.id, NO_CONTROL, at, s.start_year + *off as i32, &r));
+            if *at == "horizon" {
+                ranking = Some(r);
+            }
+        }
+    }
+    let bands = figures.then(|| BandSeries {
+        title: format!("{} — water yield, {} members", c.name, m_count),
+        y_label: "Water yield (mm/yr)".into(),
+        years: s.years().map(|y| y as f64).collect(),
+        quantiles: (0..n_years)
+            .map(|t| {
+                let mut v: Vec<f64> = mv.vars[0][t].iter().copied().filter(|x| x.is_finite()).collect();
+                v.sort_by(f64::total_cmp);
+                PERCENTILES.map(|p| percentile_sorted(&v, p))
+            })
+            .collect(),
+        colour: palette::YIELD,
+    });
+    CatchmentResult {
+        ensemble,
+        sensitivity,
+        members,
+        basin_volumes,
+        draws: if labels.is_empty() { Vec::new() } else { draws },
+        bands,
+        ranking,
+        reference_m3,
+    }
+}
+
+fn members_file(dir: &Path, s: &Scenario) -> Result<CsvOut> {
+    let mut h: Vec<String> = ["catchment", "strategy", "member", "year", "yield_mm", "yield_change_pct"].iter().map(|x| x.to_string()).collect();
+    h.extend(s.params.contaminants.iter().map(|c| format!("{}_mg_per_l", c.name)));
+    h.push("control_cost".into());
+    h.push("water_saved_m3".into());
+    CsvOut::create(&dir.join("members.csv"), &h)
+}
+
+#[allow(clippy::too_many_arguments)]
+fn member_line(id: &str, strategy: &str, m: usize, year: i32, mv: &MemberValues, t: usize, col: usize, saved: Option<f64>) -> String {
+    let mut f = vec![id.to_string(), strategy.to_string(), m.to_string(), year.to_string()];
+    for (vi, var) in mv.vars.iter().enumerate() {
+        let x = var[t][col];
+        f.push(if x.is_finite() { num(x, if vi == mv.vars.len() - 1 { 2 } else { 5 }) } else { String::new() });
+    }
+    f.push(opt_num(saved, 1));
+    csv_line(&f)
+}
+
+fn write_str(out: &mut CsvOut, text: &str) -> Result<()> {
+    out.raw(text)
+}
+
+fn tornado(dir: &Path, s: &Scenario, name: &str, stem: &str, r: &Ranking, formats: Formats) -> Result<usize> {
+    let bars: Vec<(String, f64)> = r.iter().filter_map(|(l, rho, _)| rho.map(|v| (l.clone(), v))).collect();
+    if bars.is_empty() {
+        return Ok(0);
+    }
+    let t = Tornado {
+        title: format!("{name} — what drives yield change by {}", s.start_year + s.horizon_years as i32),
+        x_label: "Spearman ρ with yield change at the horizon (right: higher parameter, less loss)".into(),
+        bars,
+    };
+    save_figure(&t, &dir.join(format!("{stem}_sensitivity")), formats)?;
+    Ok(1)
+}
+
+fn progress_bar(show: bool, len: u64) -> indicatif::ProgressBar {
+    use std::io::IsTerminal;
+    if show && std::io::stderr().is_terminal() {
+        let pb = indicatif::ProgressBar::new(len);
+        pb.set_style(
+            indicatif::ProgressStyle::with_template("ensemble {bar:40} {pos}/{len} ({eta} left)").unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+        );
+        pb
+    } else {
+        indicatif::ProgressBar::hidden()
+    }
+}
+
+/// Error for a thread pool that cannot be built.
+pub fn pool(threads: Option<usize>) -> Result<rayon::ThreadPool> {
+    let mut b = rayon::ThreadPoolBuilder::new();
+    if let Some(n) = threads {
+        b = b.num_threads(n);
+    }
+    b.build().map_err(|e| Error::Other(format!("cannot start worker threads: {e}")))
+}

@@ -1,0 +1,95 @@
+//! A lean no-control projection for ensembles: the same equations as
+//! [`super::projection::project_catchment`] (and tested to give the same numbers),
+//! computing only what ensemble statistics need, into reusable buffers, with two
+//! curve evaluations per year (ET of a mixed cover is linear in the canopy
+//! fraction, so the baseline needs no extra evaluation).
+
+use super::budyko::CoverCurves;
+use super::catchment::{Catchment, ClimateYear, ModelParams};
+use super::cover::{new_infestation_ha, Cohorts};
+use super::dilution::M3_PER_MM_HA;
+
+/// Per-year outputs of one catchment, reused between members.
+#[derive(Debug, Clone, Default)]
+pub struct LeanYears {
+    /// Water yield, mm/yr.
+    pub yield_mm: Vec<f64>,
+    /// Baseline yield (starting cover held), mm/yr.
+    pub baseline_yield_mm: Vec<f64>,
+    /// Loads, kg/yr, `k` per year (year-major).
+    pub loads_kg_per_yr: Vec<f64>,
+    /// Canopy fraction per year.
+    pub canopy_fraction: Vec<f64>,
+    closure: Vec<f64>,
+}
+
+impl LeanYears {
+    /// Yield change vs baseline in year `t`, % (`None` for a zero baseline).
+    #[inline]
+    pub fn change_pct(&self, t: usize) -> Option<f64> {
+        let b = self.baseline_yield_mm[t];
+        (b > 0.0).then(|| 100.0 * (self.yield_mm[t] - b) / b)
+    }
+}
+
+#[inline]
+fn et_pair(curves: &CoverCurves, c: &Catchment, p: &ModelParams, cl: ClimateYear) -> (f64, f64) {
+    let pet_forest = c.forest_pet_mm(cl.pet_mm, p.forest_pet_factor);
+    (curves.forest_et_mm(cl.rain_mm, pet_forest), curves.grass_et_mm(cl.rain_mm, cl.pet_mm))
+}
+
+/// Projects one catchment with no control, filling `out`.
+///
+/// Per year the canopy sum is one contiguous dot product of the cohort areas with
+/// the closure table read backwards, and the infested and seed-bearing areas are
+/// kept as running sums.
+pub fn project_lean(c: &Catchment, climate: &[ClimateYear], p: &ModelParams, out: &mut LeanYears) {
+    let n = climate.len();
+    let k = p.contaminants.len();
+    let curves = c.curves(p);
+    let inv = &p.invasion;
+    let mut cohorts = Cohorts::from_classes(inv, c.infested);
+    let max_age = cohorts.oldest_age_yr() + n;
+    // closure read backwards: rev[j] = closure(max_age − j)
+    out.closure.clear();
+    out.closure.extend((0..=max_age).rev().map(|a| inv.closure.fraction_at(a as f64)));
+    out.yield_mm.clear();
+    out.baseline_yield_mm.clear();
+    out.loads_kg_per_yr.clear();
+    out.canopy_fraction.clear();
+    let sb = inv.seed_bearing_age_yr as usize;
+    let canopy = |areas: &[f64], rev: &[f64]| -> f64 {
+        let off = max_age + 1 - areas.len();
+        areas.iter().zip(&rev[off..]).map(|(a, c)| a * c).sum::<f64>()
+    };
+    let mut infested = cohorts.infested_ha();
+    let mut seed = cohorts.area_at_least_age(sb);
+    let f0 = ((c.forest_ha + canopy(cohorts.areas_oldest_first(), &out.closure)) / c.area_ha).clamp(0.0, 1.0);
+    for &cl in climate {
+        let f = ((c.forest_ha + canopy(cohorts.areas_oldest_first(), &out.closure)) / c.area_ha).clamp(0.0, 1.0);
+        let (et_f, et_g) = et_pair(curves, c, p, cl);
+        let et = f * et_f + (1.0 - f) * et_g;
+        let et0 = f0 * et_f + (1.0 - f0) * et_g;
+        out.yield_mm.push((cl.rain_mm - et).max(0.0));
+        out.baseline_yield_mm.push((cl.rain_mm - et0).max(0.0));
+        out.canopy_fraction.push(f);
+        for (j, m) in p.contaminants.iter().enumerate() {
+            let point = c.point_kg_per_yr.get(j).copied().unwrap_or(0.0);
+            out.loads_kg_per_yr.push(c.area_ha * (f * m.forest_export_kg_per_ha_yr + (1.0 - f) * m.open_export_kg_per_ha_yr) + point);
+        }
+        let new = new_infestation_ha(inv.spread_rate_per_yr, seed, inv.seed_rain_ha_per_yr, infested, c.vulnerable_ha);
+        cohorts.push_new(new);
+        infested += new;
+        // The cohort that has just reached the seed-bearing age joins the seed source.
+        seed += if sb == 0 { new } else { cohorts.area_at_age(sb) };
+    }
+    debug_assert_eq!(out.loads_kg_per_yr.len(), n * k);
+}
+
+/// Concentration, mg/L, of load `l` (kg/yr) in yield `q` (mm) over `area_ha`;
+/// `None` below `min_runoff_mm`.
+#[inline]
+pub fn concentration(l: f64, q_mm: f64, area_ha: f64, min_runoff_mm: f64) -> Option<f64> {
+    let v = q_mm * area_ha * M3_PER_MM_HA;
+    (v > 0.0 && q_mm >= min_runoff_mm).then(|| 1000.0 * l / v)
+}

@@ -1,0 +1,185 @@
+//! Ensembles: distributions, sampling, percentiles, collapse onto the deterministic
+//! run, and reproducibility across thread counts.
+
+mod common;
+
+use approx::assert_abs_diff_eq;
+use common::{params, tussock};
+use statrs::distribution::{ContinuousCDF, Normal};
+use std::path::Path;
+use std::process::Command;
+use yieldshift::model::kernel::{project_lean, LeanYears};
+use yieldshift::model::stats::percentile_sorted;
+use yieldshift::model::uncertainty::{uniforms, Distribution, Sampling};
+use yieldshift::model::{project_catchment, ClassAreas, ClimateYear};
+
+fn sample(d: &Distribution, n: usize) -> Vec<f64> {
+    uniforms(Sampling::LatinHypercube, 11, 5, n).into_iter().map(|u| d.quantile(u)).collect()
+}
+
+fn mean_var(x: &[f64]) -> (f64, f64) {
+    let m = x.iter().sum::<f64>() / x.len() as f64;
+    (m, x.iter().map(|v| (v - m) * (v - m)).sum::<f64>() / (x.len() - 1) as f64)
+}
+
+#[test]
+fn distribution_moments_match_their_formulas() {
+    let n = 20_000;
+    // (distribution, analytic mean, analytic variance, source)
+    let cases: Vec<(Distribution, f64, f64)> = vec![
+        // Source: uniform moments (a + b)/2, (b − a)²/12 (e.g. Johnson, Kotz & Balakrishnan 1995, ch. 26).
+        (Distribution::Uniform { min: 2.0, max: 5.0 }, 3.5, 9.0 / 12.0),
+        // Source: triangular moments (a + b + c)/3, (a² + b² + c² − ab − ac − bc)/18 (Evans, Hastings & Peacock 2000, ch. 40).
+        (Distribution::Triangular { min: 0.04, mode: 0.06, max: 0.08 }, 0.06, (0.04f64.powi(2) + 0.06f64.powi(2) + 0.08f64.powi(2) - 0.04 * 0.06 - 0.04 * 0.08 - 0.06 * 0.08) / 18.0),
+        // Source: normal moments (untruncated: bounds at ±10 sd change nothing measurable).
+        (Distribution::Normal { mean: 12.0, sd: 2.0, min: -8.0, max: 32.0 }, 12.0, 4.0),
+        // Source: log-normal moments exp(μ + σ²/2), (e^{σ²} − 1) e^{2μ + σ²} (Aitchison & Brown 1957).
+        (Distribution::LogNormal { median: 3.0, sigma_log: 0.25 }, 3.0 * (0.25f64.powi(2) / 2.0).exp(), (0.0625f64.exp() - 1.0) * 9.0 * 0.0625f64.exp()),
+        // Source: beta-PERT mean (a + 4m + b)/6 and variance (μ − a)(b − μ)/7 (Vose 2008, §10.3.5; exact for the PERT form with λ = 4 when the mode is central).
+        (Distribution::Pert { min: 1.5, mode: 2.0, max: 2.5 }, 2.0, (0.5 * 0.5) / 7.0),
+        (Distribution::Fixed { value: 7.0 }, 7.0, 0.0),
+    ];
+    for (d, m, v) in cases {
+        let (sm, sv) = mean_var(&sample(&d, n));
+        assert_abs_diff_eq!(sm, m, epsilon = 1e-3 * m.abs().max(1e-3) + 1e-12);
+        assert_abs_diff_eq!(sv, v, epsilon = 0.01 * v + 1e-12);
+    }
+}
+
+#[test]
+fn truncated_normal_stays_inside_and_matches_its_mean() {
+    // Source: truncated-normal mean μ + σ(φ(α) − φ(β))/(Φ(β) − Φ(α)) (Johnson, Kotz & Balakrishnan 1994, §10.1).
+    let d = Distribution::Normal { mean: 0.0, sd: 1.0, min: 0.0, max: f64::INFINITY };
+    let x = sample(&d, 20_000);
+    assert!(x.iter().all(|&v| v >= 0.0));
+    let expected = (2.0 / std::f64::consts::PI).sqrt(); // half-normal mean
+    assert_abs_diff_eq!(mean_var(&x).0, expected, epsilon = 2e-3);
+}
+
+#[test]
+fn percentiles_of_a_normal_sample_match_the_inverse_cdf() {
+    // Source: statrs Normal::inverse_cdf as the reference quantile function; the
+    // sample is the LHS of N(100, 15²), whose order statistics sit at the stratum centres.
+    let d = Distribution::Normal { mean: 100.0, sd: 15.0, min: f64::NEG_INFINITY, max: f64::INFINITY };
+    let mut x = sample(&d, 40_000);
+    x.sort_by(f64::total_cmp);
+    let n = Normal::new(100.0, 15.0).unwrap();
+    for p in [0.05, 0.25, 0.5, 0.75, 0.95] {
+        assert_abs_diff_eq!(percentile_sorted(&x, p), n.inverse_cdf(p), epsilon = 0.05);
+    }
+}
+
+#[test]
+fn lean_kernel_matches_the_reference_projection() {
+    let p = params();
+    let c = tussock(2000.0, 1200.0, 900.0, 1800.0, ClassAreas { scattered_ha: 120.0, medium_ha: 60.0, dense_ha: 30.0 });
+    let clim: Vec<ClimateYear> = (0..61).map(|t| ClimateYear { rain_mm: 1200.0 + 150.0 * ((t as f64) * 0.7).sin(), pet_mm: 900.0 }).collect();
+    let reference = project_catchment(&c, &clim, &p, 2027);
+    let mut lean = LeanYears::default();
+    project_lean(&c, &clim, &p, &mut lean);
+    for (t, y) in reference.iter().enumerate() {
+        assert_abs_diff_eq!(lean.yield_mm[t], y.yield_mm, epsilon = 1e-9);
+        assert_abs_diff_eq!(lean.baseline_yield_mm[t], y.baseline_yield_mm, epsilon = 1e-9);
+        assert_abs_diff_eq!(lean.loads_kg_per_yr[t], y.loads_kg_per_yr[0], epsilon = 1e-9);
+    }
+}
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_yieldshift"))
+}
+
+fn demo_dir() -> std::path::PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data")
+}
+
+fn scenario_with(dir: &Path, extra: &str, replace_spread: Option<&str>) -> std::path::PathBuf {
+    for f in ["catchments.csv", "climate.csv"] {
+        std::fs::copy(demo_dir().join(f), dir.join(f)).unwrap();
+    }
+    let mut text = std::fs::read_to_string(demo_dir().join("scenario.toml")).unwrap();
+    // Keep the deterministic demo but replace its [ensemble] section.
+    let start = text.find("[ensemble]").unwrap();
+    let end = start + text[start..].find("[dilution]").unwrap();
+    text.replace_range(start..end, extra);
+    if let Some(r) = replace_spread {
+        for line in text.clone().lines() {
+            if line.contains("dist =") {
+                let key = line.split('=').next().unwrap().trim();
+                let fixed = format!("{key} = {r}");
+                text = text.replace(line, &fixed);
+            }
+        }
+    }
+    let p = dir.join("scenario.toml");
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+#[test]
+fn fixed_parameters_and_no_climate_variability_collapse_onto_the_deterministic_run() {
+    let tmp = tempfile::tempdir().unwrap();
+    // Every distribution replaced by a fixed distribution at its central value is
+    // approximated here by replacing them with plain numbers; climate = "none".
+    let s = scenario_with(tmp.path(), "[ensemble]\nmembers = 7\nclimate = \"none\"\n\n", Some("{ dist = \"fixed\", value = 0.5 }"));
+    let text = std::fs::read_to_string(&s).unwrap();
+    // Fixed values valid for every key that had a distribution in the demo:
+    let text = text
+        .replace("spread_rate_per_yr = { dist = \"fixed\", value = 0.5 }", "spread_rate_per_yr = { dist = \"fixed\", value = 0.06 }")
+        .replace("w_forest = { dist = \"fixed\", value = 0.5 }", "w_forest = { dist = \"fixed\", value = 2.0 }")
+        .replace("half_closure_age_yr = { dist = \"fixed\", value = 0.5 }", "half_closure_age_yr = { dist = \"fixed\", value = 12 }");
+    std::fs::write(&s, text).unwrap();
+    let out = tmp.path().join("res");
+    let o = bin().args(["run", s.to_str().unwrap(), "--out", out.to_str().unwrap(), "--figures", "none"]).output().unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let yearly = std::fs::read_to_string(out.join("yearly.csv")).unwrap();
+    let hdr: Vec<&str> = yearly.lines().next().unwrap().split(',').collect();
+    let col = |n: &str| hdr.iter().position(|h| *h == n).unwrap();
+    let ens = std::fs::read_to_string(out.join("ensemble.csv")).unwrap();
+    let mut checked = 0;
+    for line in yearly.lines().skip(1) {
+        let f: Vec<&str> = line.split(',').collect();
+        let key = format!("{},{},{},yield_mm,", f[0], f[1], f[2]);
+        let row = ens.lines().find(|l| l.starts_with(&key)).unwrap_or_else(|| panic!("{key}"));
+        let e: Vec<&str> = row.split(',').collect();
+        let det: f64 = f[col("yield_mm")].parse().unwrap();
+        for q in &e[4..10] {
+            let v: f64 = q.parse().unwrap();
+            assert_abs_diff_eq!(v, det, epsilon = 1e-3);
+        }
+        checked += 1;
+    }
+    assert!(checked >= 6 * 61 * 4);
+}
+
+#[test]
+fn same_seed_gives_identical_bytes_with_one_or_two_threads() {
+    let tmp = tempfile::tempdir().unwrap();
+    let s = scenario_with(tmp.path(), "[ensemble]\nmembers = 24\nseed = 9\nclimate = \"bootstrap\"\nblock_years = 4\nwrite_members = true\n\n", None);
+    let mut outputs = Vec::new();
+    for threads in ["1", "2"] {
+        let out = tmp.path().join(format!("res{threads}"));
+        let o = bin()
+            .args(["run", s.to_str().unwrap(), "--out", out.to_str().unwrap(), "--figures", "none", "--threads", threads, "--quiet"])
+            .output()
+            .unwrap();
+        assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+        outputs.push(out);
+    }
+    for f in ["ensemble.csv", "sensitivity.csv", "members.csv", "yearly.csv", "summary.csv"] {
+        let a = std::fs::read(outputs[0].join(f)).unwrap();
+        let b = std::fs::read(outputs[1].join(f)).unwrap();
+        assert!(!a.is_empty());
+        assert!(a == b, "{f} differs between 1 and 2 threads");
+    }
+    let ens = std::fs::read_to_string(outputs[0].join("ensemble.csv")).unwrap();
+    assert!(ens.starts_with("catchment,strategy,year,variable,p5,p25,p50,p75,p95,mean,members,prob_above_guideline\n"));
+    // Bands are ordered and not degenerate for yield.
+    let row = ens.lines().find(|l| l.starts_with("cairn,no-control,2057,yield_mm,")).unwrap();
+    let q: Vec<f64> = row.split(',').skip(4).take(5).map(|v| v.parse().unwrap()).collect();
+    assert!(q.windows(2).all(|w| w[0] <= w[1]) && q[4] > q[0], "{row}");
+    let sens = std::fs::read_to_string(outputs[0].join("sensitivity.csv")).unwrap();
+    assert!(sens.lines().any(|l| l.starts_with("basin,no-control,horizon,")));
+    // Members file: catchments × members × years × strategies rows.
+    let members = std::fs::read_to_string(outputs[0].join("members.csv")).unwrap();
+    assert_eq!(members.lines().count() - 1, 6 * 24 * 61 * 4);
+}
