@@ -8,9 +8,9 @@
 //! Catchments with no rows use their long-term means in every year.
 
 use crate::error::Problem;
-use crate::io::table::{read_table, suggestion};
+use crate::io::table::{fmt_value, read_table, suggestion, MAX_SUGGESTIONS};
 use crate::model::catchment::{Catchment, ClimateYear};
-use std::collections::HashMap;
+use std::collections::{HashMap, HashSet};
 use std::path::Path;
 
 /// Known columns of the climate table.
@@ -68,77 +68,161 @@ impl ClimateTable {
 }
 
 /// Reads and validates the climate table against the catchments.
+///
+/// Every row is checked; the year sequence of each catchment is checked in file
+/// order (a repeated year, a year out of order and each gap are reported at the
+/// row where they show). Rows naming a catchment the scenario does not have are
+/// reported once per unknown name, at its first row.
 pub fn read_climate(path: &Path, catchments: &[Catchment]) -> Result<ClimateTable, Vec<Problem>> {
     let table = read_table(path)?;
     let mut problems = table.check_columns(&["catchment", "year"], &CLIMATE_COLUMNS, |_| false);
     if table.col("rain_mm").is_none() && table.col("pet_mm").is_none() {
         problems.push(Problem::in_file(path, "needs a rain_mm or pet_mm column (or both)").row(1).column("rain_mm"));
     }
-    if !problems.is_empty() {
+    if table.col("catchment").is_none() || table.col("year").is_none() {
         return Err(problems);
     }
     let ids: Vec<&str> = catchments.iter().map(|c| c.id.as_str()).collect();
-    let mut series: HashMap<String, (i32, Vec<(Option<f64>, Option<f64>)>, usize)> = HashMap::new();
+    let id_set: HashSet<&str> = ids.iter().copied().collect();
+    // Unknown catchment name → (first row, number of rows).
+    let mut unknown: HashMap<String, (usize, usize)> = HashMap::new();
+    // Catchment → its rows in file order.
+    let mut records: HashMap<String, Vec<Record>> = HashMap::new();
+    let mut order: Vec<String> = Vec::new();
     for (line, rec) in &table.rows {
         let line = *line;
         let mut p = Vec::new();
         let id = table.text(rec, "catchment").to_string();
-        if !ids.contains(&id.as_str()) {
-            p.push(Problem::in_file(path, format!("'{id}' is not a catchment of the scenario{}", suggestion(&id, &ids))).row(line).column("catchment"));
+        let known = id_set.contains(id.as_str());
+        if id.is_empty() {
+            p.push(Problem::in_file(path, "catchment is empty; give the id of a catchment of the scenario").row(line).column("catchment"));
+        } else if !known {
+            let e = unknown.entry(id.clone()).or_insert((line, 0));
+            e.1 += 1;
         }
         let year = table.required_in(line, rec, "year", 1000.0, 3000.0, "", &mut p);
         if let Some(y) = year {
             if y.fract() != 0.0 {
-                p.push(Problem::in_file(path, format!("year {y} must be a whole number")).row(line).column("year"));
+                p.push(Problem::in_file(path, format!("year {} must be a whole number", fmt_value(y))).row(line).column("year"));
             }
         }
         let rain = table.optional_in(line, rec, "rain_mm", 0.0, 30_000.0, "mm/yr", &mut p);
         let pet = table.optional_in(line, rec, "pet_mm", 0.0, 6_000.0, "mm/yr", &mut p);
-        if table.text(rec, "pet_status") == "incomplete" {
-            p.push(
+        let status = table.text(rec, "pet_status");
+        match status.to_ascii_lowercase().as_str() {
+            "" | "complete" => {}
+            "incomplete" => p.push(
                 Problem::in_file(path, "PET for this year was computed from an incomplete weather record; fill the gaps or drop the year")
                     .row(line)
                     .column("pet_status"),
-            );
+            ),
+            _ => p.push(
+                Problem::in_file(path, format!("'{status}' is not a PET status; allowed: complete, incomplete (or empty)"))
+                    .row(line)
+                    .column("pet_status"),
+            ),
         }
-        if !p.is_empty() {
-            problems.extend(p);
-            continue;
+        let valid = p.is_empty();
+        problems.extend(p);
+        // The year sequence is checked for every row with a usable year, even when
+        // another cell of the row is wrong, so gaps and repeats are reported together.
+        if let (true, Some(y)) = (known, year.filter(|y| y.fract() == 0.0)) {
+            let list = records.entry(id.clone()).or_insert_with(|| {
+                order.push(id.clone());
+                Vec::new()
+            });
+            list.push(Record { year: y as i32, row: line, rain, pet, valid });
         }
-        let y = year.unwrap_or(0.0) as i32;
-        match series.get_mut(&id) {
-            None => {
-                series.insert(id, (y, vec![(rain, pet)], line));
-            }
-            Some((first, vals, _)) => {
-                let expected = *first + vals.len() as i32;
-                if y == expected {
-                    vals.push((rain, pet));
-                } else if y < expected {
-                    let what = if y >= *first { "repeats an earlier year" } else { "is out of order" };
-                    problems.push(
-                        Problem::in_file(path, format!("year {y} of catchment '{id}' {what}; years must increase by one down the file"))
-                            .row(line)
-                            .column("year"),
-                    );
-                } else {
-                    problems.push(
-                        Problem::in_file(
-                            path,
-                            format!("catchment '{id}' has no climate for {}{}; the record must have no gaps", expected, if y - 1 > expected { format!("–{}", y - 1) } else { String::new() }),
-                        )
-                        .row(line)
-                        .column("year"),
-                    );
-                    vals.push((rain, pet));
-                    *first = y - vals.len() as i32 + 1;
-                }
+    }
+    let mut unknown: Vec<(String, (usize, usize))> = unknown.into_iter().collect();
+    unknown.sort_by_key(|(_, (row, _))| *row);
+    for (k, (id, (row, n))) in unknown.into_iter().enumerate() {
+        let also = if n > 1 { format!(" (and {} more rows)", n - 1) } else { String::new() };
+        let hint = if k < MAX_SUGGESTIONS { suggestion(&id, &ids) } else { String::new() };
+        problems.push(
+            Problem::in_file(path, format!("'{id}' is not a catchment of the scenario{hint}{also}"))
+                .row(row)
+                .column("catchment"),
+        );
+    }
+    let mut series = HashMap::new();
+    for id in order {
+        let list = records.remove(&id).unwrap_or_default();
+        problems.extend(check_years(path, &id, &list));
+        if let Some(first) = list.first() {
+            if list.iter().all(|r| r.valid) {
+                series.insert(id, (first.year, list.iter().map(|r| (r.rain, r.pet)).collect()));
             }
         }
     }
+    problems.sort_by_key(|p| p.row.unwrap_or(0));
     if problems.is_empty() {
-        Ok(ClimateTable { series: series.into_iter().map(|(k, (f, v, _))| (k, (f, v))).collect() })
+        Ok(ClimateTable { series })
     } else {
         Err(problems)
     }
+}
+
+/// One row of a catchment's climate record.
+struct Record {
+    year: i32,
+    row: usize,
+    rain: Option<f64>,
+    pet: Option<f64>,
+    /// The row had no other problem.
+    valid: bool,
+}
+
+/// Years of one catchment must increase by one down the file.
+fn check_years(path: &Path, id: &str, list: &[Record]) -> Vec<Problem> {
+    let mut problems = Vec::new();
+    let mut first_row: HashMap<i32, usize> = HashMap::new();
+    let mut last = None::<&Record>;
+    for r in list {
+        if let Some(&row) = first_row.get(&r.year) {
+            problems.push(
+                Problem::in_file(path, format!("year {} of catchment '{id}' repeats row {row}; each year appears once", r.year))
+                    .row(r.row)
+                    .column("year"),
+            );
+            continue;
+        }
+        first_row.insert(r.year, r.row);
+        if let Some(prev) = last {
+            if r.year < prev.year {
+                problems.push(
+                    Problem::in_file(
+                        path,
+                        format!(
+                            "year {} of catchment '{id}' is out of order (it follows {} on row {}); years must increase by one down the file",
+                            r.year, prev.year, prev.row
+                        ),
+                    )
+                    .row(r.row)
+                    .column("year"),
+                );
+            } else if r.year > prev.year + 1 {
+                let missing = if r.year - 1 > prev.year + 1 {
+                    format!("{}–{}", prev.year + 1, r.year - 1)
+                } else {
+                    format!("{}", prev.year + 1)
+                };
+                problems.push(
+                    Problem::in_file(
+                        path,
+                        format!(
+                            "catchment '{id}' has no climate for {missing} (between row {} and this row); the record must have no gaps",
+                            prev.row
+                        ),
+                    )
+                    .row(r.row)
+                    .column("year"),
+                );
+            }
+        }
+        if last.map_or(true, |p| r.year > p.year) {
+            last = Some(r);
+        }
+    }
+    problems
 }

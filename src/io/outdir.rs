@@ -1,6 +1,16 @@
 //! Safe output folders: results are written to a temporary folder beside the
 //! target and moved into place only when the whole run succeeded, so a failed or
 //! interrupted run leaves earlier results untouched.
+//!
+//! Beside a target `DIR` the staging folder is `.DIR.partial-<pid>`; while the
+//! finished results are swapped in, the earlier results sit in
+//! `.DIR.previous-<pid>` for the instant between two renames. A run killed
+//! outright (SIGKILL, power loss, Ctrl-C: no destructor runs) can leave either
+//! behind. The next run into the same `DIR` tidies them up: a staging folder of a
+//! process that no longer exists is removed, and earlier results stranded in a
+//! `.previous-` folder are moved back into `DIR` when `DIR` itself is missing.
+//! Whether a process exists is known only where `/proc` is available (Linux);
+//! elsewhere nothing is removed.
 
 use crate::error::{Error, Problem, Result};
 use std::path::{Path, PathBuf};
@@ -13,6 +23,7 @@ pub const MARKER: &str = "run_info.json";
 pub struct Staging {
     target: PathBuf,
     tmp: PathBuf,
+    previous: PathBuf,
     committed: bool,
 }
 
@@ -20,6 +31,13 @@ impl Staging {
     /// Prepares to write `target`. Refuses a non-empty folder that does not look
     /// like a yieldshift output unless `force` is set.
     pub fn new(target: &Path, force: bool) -> Result<Staging> {
+        let Some(name) = target.file_name().map(|n| n.to_string_lossy().into_owned()) else {
+            return Err(Error::invalid(Problem::in_file(target, "is not a folder name; give --out a named folder, e.g. --out results")));
+        };
+        let parent = target.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new(".")).to_path_buf();
+        if parent.is_dir() {
+            tidy_leftovers(&parent, &name, target);
+        }
         if target.exists() {
             if !target.is_dir() {
                 return Err(Error::invalid(Problem::in_file(target, "exists and is not a folder; choose another --out")));
@@ -32,15 +50,15 @@ impl Staging {
                 )));
             }
         }
-        let parent = target.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
-        std::fs::create_dir_all(parent).map_err(|e| Error::io(format!("creating {}", parent.display()), e))?;
-        let name = target.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_else(|| "out".into());
-        let tmp = parent.join(format!(".{name}.partial-{}", std::process::id()));
+        std::fs::create_dir_all(&parent).map_err(|e| Error::io(format!("creating {}", parent.display()), e))?;
+        let pid = std::process::id();
+        let tmp = parent.join(format!(".{name}{PARTIAL}{pid}"));
+        let previous = parent.join(format!(".{name}{PREVIOUS}{pid}"));
         if tmp.exists() {
             let _ = std::fs::remove_dir_all(&tmp);
         }
         std::fs::create_dir_all(&tmp).map_err(|e| Error::io(format!("creating {}", tmp.display()), e))?;
-        Ok(Staging { target: target.to_path_buf(), tmp, committed: false })
+        Ok(Staging { target: target.to_path_buf(), tmp, previous, committed: false })
     }
 
     /// The folder to write into now.
@@ -55,7 +73,10 @@ impl Staging {
 
     /// Moves the staged results into place, replacing any earlier results.
     pub fn commit(mut self) -> Result<PathBuf> {
-        let old = self.tmp.with_extension("old");
+        let old = self.previous.clone();
+        if old.exists() {
+            std::fs::remove_dir_all(&old).map_err(|e| Error::io(format!("removing {}", old.display()), e))?;
+        }
         if self.target.exists() {
             std::fs::rename(&self.target, &old).map_err(|e| Error::io(format!("moving aside {}", self.target.display()), e))?;
         }
@@ -78,5 +99,122 @@ impl Drop for Staging {
         if !self.committed {
             let _ = std::fs::remove_dir_all(&self.tmp);
         }
+    }
+}
+
+const PARTIAL: &str = ".partial-";
+const PREVIOUS: &str = ".previous-";
+
+/// Removes staging folders of dead runs into `target` and restores earlier
+/// results stranded by a run killed mid-swap. Errors are ignored: tidying is a
+/// courtesy, never a reason to fail a run.
+fn tidy_leftovers(parent: &Path, name: &str, target: &Path) {
+    let Ok(entries) = std::fs::read_dir(parent) else { return };
+    let partial = format!(".{name}{PARTIAL}");
+    let previous = format!(".{name}{PREVIOUS}");
+    let mut stranded = Vec::new();
+    for e in entries.flatten() {
+        let file = e.file_name().to_string_lossy().into_owned();
+        let (kind, pid) = if let Some(p) = file.strip_prefix(&partial) {
+            (PARTIAL, p)
+        } else if let Some(p) = file.strip_prefix(&previous) {
+            (PREVIOUS, p)
+        } else {
+            continue;
+        };
+        let Ok(pid) = pid.parse::<u32>() else { continue };
+        if !process_is_gone(pid) {
+            continue;
+        }
+        if kind == PARTIAL {
+            let _ = std::fs::remove_dir_all(e.path());
+        } else {
+            stranded.push(e.path());
+        }
+    }
+    for old in stranded {
+        if !target.exists() && old.join(MARKER).exists() {
+            let _ = std::fs::rename(&old, target);
+        } else if target.join(MARKER).exists() {
+            // Newer results are in place: the stranded copy is superseded.
+            let _ = std::fs::remove_dir_all(&old);
+        }
+    }
+}
+
+/// True only when the process is known not to exist (Linux `/proc`); false when
+/// it exists or cannot be known.
+fn process_is_gone(pid: u32) -> bool {
+    if pid == std::process::id() {
+        return false;
+    }
+    let proc_root = Path::new("/proc");
+    cfg!(target_os = "linux") && proc_root.join("self").exists() && !proc_root.join(pid.to_string()).exists()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A pid that is not running: the largest pid Linux can hand out is 2²² (4 194 304).
+    // Source: Linux kernel documentation, /proc/sys/kernel/pid_max ("PID_MAX_LIMIT, approximately 4 million").
+    const DEAD_PID: u32 = 4_194_305;
+
+    #[test]
+    fn commit_replaces_earlier_results_and_leaves_nothing_beside() {
+        let tmp = tempfile::tempdir().unwrap();
+        let target = tmp.path().join("res");
+        for round in 0..2 {
+            let s = Staging::new(&target, false).unwrap();
+            std::fs::write(s.dir().join(MARKER), format!("{round}")).unwrap();
+            s.commit().unwrap();
+            assert_eq!(std::fs::read_to_string(target.join(MARKER)).unwrap(), format!("{round}"));
+        }
+        let names: Vec<String> = std::fs::read_dir(tmp.path()).unwrap().map(|e| e.unwrap().file_name().to_string_lossy().into_owned()).collect();
+        assert_eq!(names, vec!["res".to_string()]);
+    }
+
+    #[test]
+    fn a_dropped_staging_leaves_earlier_results_untouched() {
+        let tmp = tempfile::tempdir().unwrap();
+        let target = tmp.path().join("res");
+        std::fs::create_dir(&target).unwrap();
+        std::fs::write(target.join(MARKER), "earlier").unwrap();
+        {
+            let s = Staging::new(&target, false).unwrap();
+            std::fs::write(s.dir().join(MARKER), "half-written").unwrap();
+        }
+        assert_eq!(std::fs::read_to_string(target.join(MARKER)).unwrap(), "earlier");
+        assert_eq!(std::fs::read_dir(tmp.path()).unwrap().count(), 1);
+    }
+
+    #[test]
+    fn leftovers_of_a_killed_run_are_tidied() {
+        if !(cfg!(target_os = "linux") && Path::new("/proc/self").exists()) || Path::new(&format!("/proc/{DEAD_PID}")).exists() {
+            return;
+        }
+        let tmp = tempfile::tempdir().unwrap();
+        let target = tmp.path().join("res");
+        // Killed mid-swap: the earlier results sit in .previous-, DIR is missing.
+        let stranded = tmp.path().join(format!(".res{PREVIOUS}{DEAD_PID}"));
+        std::fs::create_dir(&stranded).unwrap();
+        std::fs::write(stranded.join(MARKER), "earlier").unwrap();
+        let partial = tmp.path().join(format!(".res{PARTIAL}{DEAD_PID}"));
+        std::fs::create_dir(&partial).unwrap();
+        let s = Staging::new(&target, false).unwrap();
+        assert_eq!(std::fs::read_to_string(target.join(MARKER)).unwrap(), "earlier", "earlier results restored");
+        assert!(!stranded.exists() && !partial.exists());
+        drop(s);
+        assert_eq!(std::fs::read_to_string(target.join(MARKER)).unwrap(), "earlier");
+    }
+
+    #[test]
+    fn refuses_unnamed_and_foreign_targets() {
+        assert!(Staging::new(Path::new(".."), false).unwrap_err().is_invalid_input());
+        let tmp = tempfile::tempdir().unwrap();
+        std::fs::write(tmp.path().join("mine.txt"), "keep").unwrap();
+        let e = Staging::new(tmp.path(), false).unwrap_err();
+        assert!(e.to_string().contains("--force"), "{e}");
+        assert_eq!(std::fs::read_to_string(tmp.path().join("mine.txt")).unwrap(), "keep");
     }
 }

@@ -41,6 +41,22 @@ pub fn opt_num(v: Option<f64>, decimals: usize) -> String {
     v.map(|x| num(x, decimals)).unwrap_or_default()
 }
 
+/// Appends one CSV line (with its newline) to `out`; fields containing a comma,
+/// quote or line break are quoted. Every CSV this crate writes goes through here.
+pub fn push_csv_line<'a>(out: &mut String, fields: impl IntoIterator<Item = &'a str>) {
+    for (i, f) in fields.into_iter().enumerate() {
+        if i > 0 {
+            out.push(',');
+        }
+        if f.bytes().any(|b| matches!(b, b',' | b'"' | b'\n' | b'\r')) {
+            let _ = write!(out, "\"{}\"", f.replace('"', "\"\""));
+        } else {
+            out.push_str(f);
+        }
+    }
+    out.push('\n');
+}
+
 /// A buffered CSV writer that reports the file on failure.
 pub struct CsvOut {
     w: std::io::BufWriter<std::fs::File>,
@@ -57,20 +73,10 @@ impl CsvOut {
         Ok(out)
     }
 
-    /// Writes one row; fields containing a comma or quote are quoted.
+    /// Writes one row; fields containing a comma, quote or line break are quoted.
     pub fn row<'a>(&mut self, fields: impl IntoIterator<Item = &'a str>) -> Result<()> {
         self.line.clear();
-        for (i, f) in fields.into_iter().enumerate() {
-            if i > 0 {
-                self.line.push(',');
-            }
-            if f.contains([',', '"', '\n']) {
-                let _ = write!(self.line, "\"{}\"", f.replace('"', "\"\""));
-            } else {
-                self.line.push_str(f);
-            }
-        }
-        self.line.push('\n');
+        push_csv_line(&mut self.line, fields);
         self.w.write_all(self.line.as_bytes()).map_err(|e| Error::io(format!("writing {}", self.path.display()), e))
     }
 

@@ -131,9 +131,7 @@ impl Scenario {
 
 /// Reads and validates a scenario and all the tables it names.
 pub fn load_scenario(path: &Path) -> Result<Scenario> {
-    let text = std::fs::read_to_string(path).map_err(|e| {
-        Error::invalid(Problem::in_file(path, format!("cannot read the scenario file: {e}")))
-    })?;
+    let text = crate::io::toml_reader::read_toml_file(path).map_err(Error::invalid)?;
     let (doc, table) = TomlDoc::parse(path, text).map_err(Error::invalid)?;
     let base = path.parent().map(Path::to_path_buf).unwrap_or_default();
     let mut raw = read_keys(&doc, &table, &base);

@@ -231,12 +231,32 @@ impl Table {
 
     /// Checks that every header is known and every required column present.
     /// `known` lists all valid names; `is_known` may accept patterned names too.
+    ///
+    /// A column with no name is accepted when all its cells are empty (spreadsheets
+    /// export such trailing columns); otherwise it is reported by its position and
+    /// spreadsheet letter. A missing required column names the unknown header that
+    /// is probably meant for it.
     pub fn check_columns(&self, required: &[&str], known: &[&str], is_known: impl Fn(&str) -> bool) -> Vec<Problem> {
         let mut problems = Vec::new();
-        for h in &self.headers {
+        let mut unknown: Vec<&str> = Vec::new();
+        for (i, h) in self.headers.iter().enumerate() {
             if h.is_empty() {
-                problems.push(Problem::in_file(&self.path, "a column has an empty name").row(1));
+                let filled = self.rows.iter().find(|(_, r)| r.get(i).is_some_and(|f| !f.trim().is_empty()));
+                if let Some((line, _)) = filled {
+                    problems.push(
+                        Problem::in_file(
+                            &self.path,
+                            format!(
+                                "column {} ({}) has values (first on row {line}) but no name in the header; name it or delete it",
+                                i + 1,
+                                column_letter(i)
+                            ),
+                        )
+                        .row(1),
+                    );
+                }
             } else if !known.contains(&h.as_str()) && !is_known(h) {
+                unknown.push(h);
                 problems.push(
                     Problem::in_file(&self.path, format!("unknown column{}", suggestion(h, known))).row(1).column(h.clone()),
                 );
@@ -244,7 +264,13 @@ impl Table {
         }
         for r in required {
             if self.col(r).is_none() {
-                problems.push(Problem::in_file(&self.path, "required column is missing from the header").row(1).column(*r));
+                let hint = match nearest(r, &unknown) {
+                    Some(u) => format!(" (is '{u}' meant to be this column?)"),
+                    None => String::new(),
+                };
+                problems.push(
+                    Problem::in_file(&self.path, format!("required column is missing from the header{hint}")).row(1).column(*r),
+                );
             }
         }
         problems
@@ -265,6 +291,7 @@ impl Table {
     }
 
     /// A required numeric cell within `lo..=hi` (unit named in messages).
+    #[allow(clippy::too_many_arguments)]
     pub fn required_in(
         &self,
         line: usize,
@@ -285,7 +312,37 @@ impl Table {
                 );
                 None
             }
-            Err(p) => {
+            Err(mut p) => {
+                p.message.push_str(&format!("; expected a number in {}", range_text(lo, hi, unit)));
+                problems.push(p);
+                None
+            }
+        }
+    }
+
+    /// A required numeric cell that must be more than 0 and at most `hi`.
+    pub fn required_positive(
+        &self,
+        line: usize,
+        rec: &csv::StringRecord,
+        col: &str,
+        hi: f64,
+        unit: &str,
+        problems: &mut Vec<Problem>,
+    ) -> Option<f64> {
+        let allowed = format!("more than 0 and at most {} {unit}", group_thousands(hi));
+        match self.number(line, rec, col) {
+            Ok(Some(v)) if v > 0.0 && v <= hi => Some(v),
+            Ok(Some(v)) => {
+                problems.push(Problem::in_file(&self.path, format!("{} is out of range; allowed {allowed}", fmt_value(v))).row(line).column(col));
+                None
+            }
+            Ok(None) => {
+                problems.push(Problem::in_file(&self.path, format!("value is missing; expected a number {allowed}")).row(line).column(col));
+                None
+            }
+            Err(mut p) => {
+                p.message.push_str(&format!("; expected a number {allowed}"));
                 problems.push(p);
                 None
             }
@@ -307,7 +364,8 @@ impl Table {
         match self.number(line, rec, col) {
             Ok(Some(v)) => self.in_range(line, col, v, lo, hi, unit, problems),
             Ok(None) => None,
-            Err(p) => {
+            Err(mut p) => {
+                p.message.push_str(&format!("; expected a number in {} (or an empty cell)", range_text(lo, hi, unit)));
                 problems.push(p);
                 None
             }
@@ -317,16 +375,36 @@ impl Table {
     #[allow(clippy::too_many_arguments)]
     fn in_range(&self, line: usize, col: &str, v: f64, lo: f64, hi: f64, unit: &str, problems: &mut Vec<Problem>) -> Option<f64> {
         if v < lo || v > hi {
-            let mut msg = format!("{} is out of range; allowed {}", fmt_value(v), range_text(lo, hi, unit));
-            if unit == "fraction" && v > 1.0 && v <= 100.0 {
-                msg.push_str(&format!(" (it looks like a percentage: write {} for {}%)", fmt_value(v / 100.0), fmt_value(v)));
-            }
+            let msg = format!("{} is out of range; allowed {}{}", fmt_value(v), range_text(lo, hi, unit), percent_hint(v, unit));
             problems.push(Problem::in_file(&self.path, msg).row(line).column(col));
             None
         } else {
             Some(v)
         }
     }
+}
+
+/// " (it looks like a percentage: write 0.45 for 45%)" for a fraction above 1 and
+/// at most 100; empty otherwise.
+pub fn percent_hint(v: f64, unit: &str) -> String {
+    if unit == "fraction" && v > 1.0 && v <= 100.0 {
+        format!(" (it looks like a percentage: write {} for {}%)", fmt_value(v / 100.0), fmt_value(v))
+    } else {
+        String::new()
+    }
+}
+
+/// Spreadsheet column letter of a 0-based column index (0 → A, 26 → AA).
+pub fn column_letter(index: usize) -> String {
+    let mut n = index + 1;
+    let mut s = Vec::new();
+    while n > 0 {
+        let r = (n - 1) % 26;
+        s.push(b'A' + r as u8);
+        n = (n - 1) / 26;
+    }
+    s.reverse();
+    String::from_utf8(s).unwrap_or_default()
 }
 
 /// Formats a number for messages without trailing noise.
@@ -339,13 +417,34 @@ pub fn fmt_value(v: f64) -> String {
     }
 }
 
+/// A whole number of 10 000 or more with thin-space-free digit groups of three
+/// (`20 000`, as the documentation writes them); other numbers as [`fmt_value`].
+pub fn group_thousands(v: f64) -> String {
+    if v.fract() != 0.0 || v.abs() < 10_000.0 || v.abs() >= 1e15 {
+        return fmt_value(v);
+    }
+    let digits = format!("{}", v.abs() as u64);
+    let mut out = String::new();
+    for (i, c) in digits.chars().enumerate() {
+        if i > 0 && (digits.len() - i) % 3 == 0 {
+            out.push(' ');
+        }
+        out.push(c);
+    }
+    if v < 0.0 {
+        format!("-{out}")
+    } else {
+        out
+    }
+}
+
 /// "0 to 10 000 mm/yr" style range text.
 pub fn range_text(lo: f64, hi: f64, unit: &str) -> String {
     let u = if unit.is_empty() { String::new() } else { format!(" {unit}") };
     if hi.is_infinite() {
-        format!("{} or more{u}", fmt_value(lo))
+        format!("{} or more{u}", group_thousands(lo))
     } else {
-        format!("{} to {}{u}", fmt_value(lo), fmt_value(hi))
+        format!("{} to {}{u}", group_thousands(lo), group_thousands(hi))
     }
 }
 
@@ -360,24 +459,76 @@ pub fn parse_number(s: &str, decimal_comma: bool) -> Result<f64, String> {
     match candidate.parse::<f64>() {
         Ok(v) if v.is_finite() => Ok(v),
         Ok(_) => Err(format!("'{t}' is not a finite number (NaN and infinity are not allowed)")),
-        Err(_) => Err(number_hint(t)),
+        Err(_) => Err(number_hint(t, decimal_comma)),
     }
 }
 
-fn number_hint(t: &str) -> String {
+/// Characters people (and spreadsheets) put between digit groups.
+const GROUP_SEPARATORS: [char; 5] = [' ', '\u{a0}', '\u{202f}', '\u{2009}', '\''];
+
+fn number_hint(t: &str, decimal_comma: bool) -> String {
+    let parses = |s: &str| parse_number(s, decimal_comma).is_ok();
     if let Some(p) = t.strip_suffix('%') {
         if p.trim().parse::<f64>().is_ok() {
             return format!("'{t}' has a percent sign; write a plain number (a fraction 0–1 where a fraction is asked)");
         }
     }
-    if t.contains(',') {
-        let dotted = t.replace(',', ".");
-        if dotted.parse::<f64>().is_ok() && t.matches(',').count() == 1 {
-            return format!("'{t}' uses a decimal comma; write {dotted} (decimal point), or give the whole file ';' separators");
+    let lower = t.to_ascii_lowercase();
+    if lower.starts_with('#') {
+        return format!("'{t}' is a spreadsheet error value; fix the formula in the sheet and export again");
+    }
+    if matches!(lower.as_str(), "na" | "n/a" | "-" | "--" | "?" | "none" | "null" | "missing" | "unknown" | "x") {
+        return format!("'{t}' is not a number; give a value (optional columns may be left empty)");
+    }
+    if let Some(rest) = t.strip_prefix(['\u{2212}', '\u{2013}', '\u{2014}']) {
+        if parses(rest) {
+            return format!("'{t}' starts with a typographic dash; write -{rest} with the ASCII minus sign");
         }
-        let plain = t.replace(',', "");
-        if plain.parse::<f64>().is_ok() {
-            return format!("'{t}' has a thousands separator; write {plain}");
+    }
+    if t.contains(GROUP_SEPARATORS) {
+        let plain: String = t.chars().filter(|c| !GROUP_SEPARATORS.contains(c)).collect();
+        if parses(&plain) {
+            return format!("'{t}' has a space or apostrophe between digit groups; write {plain}");
+        }
+    }
+    if t.contains(',') {
+        let commas = t.matches(',').count();
+        if decimal_comma {
+            // Semicolon file: the decimal comma is fine; a dot can only group thousands.
+            if t.contains('.') {
+                let plain = t.replace('.', "");
+                if parses(&plain) {
+                    return format!("'{t}' uses '.' between digit groups; write {plain} (no thousands separator)");
+                }
+            }
+        } else if t.contains('.') {
+            let (comma, dot) = (t.rfind(',').unwrap_or(0), t.rfind('.').unwrap_or(0));
+            if dot > comma && t.replace(',', "").parse::<f64>().is_ok() {
+                return format!("'{t}' has a thousands separator; write {}", t.replace(',', ""));
+            }
+            let european = t.replace('.', "").replace(',', ".");
+            if european.parse::<f64>().is_ok() {
+                return format!("'{t}' uses '.' between digit groups and a decimal comma; write {european}");
+            }
+        } else if commas == 1 {
+            let dotted = t.replace(',', ".");
+            let plain = t.replace(',', "");
+            let (before, after) = t.split_once(',').unwrap_or((t, ""));
+            let digits_only = |s: &str| !s.is_empty() && s.trim_start_matches(['-', '+']).chars().all(|c| c.is_ascii_digit());
+            if digits_only(before) && after.len() == 3 && digits_only(after) && before.trim_start_matches(['-', '+']).len() <= 3 {
+                return format!(
+                    "'{t}' has a comma: write {plain} if it separates thousands, or {dotted} if it is a decimal comma \
+                     (or give the whole file ';' separators)"
+                );
+            }
+            if dotted.parse::<f64>().is_ok() {
+                return format!("'{t}' uses a decimal comma; write {dotted} (decimal point), or give the whole file ';' separators");
+            }
+        } else {
+            let plain = t.replace(',', "");
+            if plain.parse::<f64>().is_ok() {
+                return format!("'{t}' has a thousands separator; write {plain}");
+            }
         }
     }
     let digits: String = t.chars().take_while(|c| c.is_ascii_digit() || *c == '.' || *c == '-' || *c == '+').collect();
@@ -387,22 +538,42 @@ fn number_hint(t: &str) -> String {
     format!("'{t}' is not a number")
 }
 
-/// ", did you mean 'x'?" when a close known name exists.
-pub fn suggestion(given: &str, known: &[&str]) -> String {
-    let lower = given.to_ascii_lowercase();
-    let best = known
+/// The known name nearest to `given` (case-insensitive Damerau–Levenshtein
+/// distance at most a third of its length, and at least 2), if any.
+///
+/// For very long lists (more than [`NEAREST_LIMIT`] names, e.g. the ids of a
+/// 100 000-catchment table) no search is made: the cost would grow with every
+/// unknown value and the suggestion would rarely help.
+pub fn nearest<'a>(given: &str, known: &[&'a str]) -> Option<&'a str> {
+    if known.len() > NEAREST_LIMIT || given.chars().count() > 200 {
+        return None;
+    }
+    let lower = given.to_lowercase();
+    let limit = (given.chars().count() / 3).max(2);
+    known
         .iter()
-        .map(|k| (strsim::damerau_levenshtein(&lower, &k.to_ascii_lowercase()), *k))
-        .min_by_key(|(d, _)| *d);
-    match best {
-        Some((d, k)) if d <= (given.len() / 3).max(2) => format!(" (did you mean '{k}'?)"),
-        _ => {
-            if known.len() <= 24 {
-                format!(" (valid: {})", known.join(", "))
-            } else {
-                String::new()
-            }
-        }
+        .filter(|k| k.chars().count().abs_diff(lower.chars().count()) <= limit)
+        .map(|k| (strsim::damerau_levenshtein(&lower, &k.to_lowercase()), *k))
+        .min_by_key(|(d, _)| *d)
+        .filter(|(d, _)| *d <= limit)
+        .map(|(_, k)| k)
+}
+
+/// Longest list of names [`nearest`] searches.
+pub const NEAREST_LIMIT: usize = 5_000;
+
+/// Most distinct unknown values of one file that get a "did you mean"
+/// suggestion; past this the file is probably the wrong one and searching would
+/// only cost time.
+pub const MAX_SUGGESTIONS: usize = 100;
+
+/// ", did you mean 'x'?" when a close known name exists; the list of valid names
+/// when it is short; nothing otherwise.
+pub fn suggestion(given: &str, known: &[&str]) -> String {
+    match nearest(given, known) {
+        Some(k) => format!(" (did you mean '{k}'?)"),
+        None if !known.is_empty() && known.len() <= 24 => format!(" (valid: {})", known.join(", ")),
+        None => String::new(),
     }
 }
 
@@ -423,9 +594,38 @@ mod tests {
     }
 
     #[test]
+    fn ambiguous_and_regional_separators_get_the_right_hint() {
+        // "1,250" may be thousands or a decimal comma: both readings are offered.
+        let m = parse_number("1,250", false).unwrap_err();
+        assert!(m.contains("write 1250 if it separates thousands") && m.contains("1.250 if it is a decimal comma"), "{m}");
+        // A dot between digit groups in a semicolon file is not a decimal point.
+        let m = parse_number("1.234,5", true).unwrap_err();
+        assert!(m.contains("write 1234,5"), "{m}");
+        let m = parse_number("1.234,5", false).unwrap_err();
+        assert!(m.contains("write 1234.5"), "{m}");
+        assert!(parse_number("1,234.5", false).unwrap_err().contains("write 1234.5"));
+        assert!(parse_number("1 250", false).unwrap_err().contains("write 1250"));
+        assert!(parse_number("\u{2212}5", false).unwrap_err().contains("write -5"));
+        assert!(parse_number("#DIV/0!", false).unwrap_err().contains("spreadsheet error"));
+        assert!(parse_number("n/a", false).unwrap_err().contains("left empty"));
+    }
+
+    #[test]
     fn suggests_near_names() {
         assert_eq!(suggestion("area_hectares", &["area_ha", "rain_mm"]), " (valid: area_ha, rain_mm)");
         assert_eq!(suggestion("rian_mm", &["area_ha", "rain_mm"]), " (did you mean 'rain_mm'?)");
+        assert_eq!(suggestion("Rain_MM", &["area_ha", "rain_mm"]), " (did you mean 'rain_mm'?)");
+        assert_eq!(suggestion("x", &[]), "");
+    }
+
+    #[test]
+    fn groups_and_letters() {
+        assert_eq!(range_text(1.0, 20_000.0, "mm/yr"), "1 to 20 000 mm/yr");
+        assert_eq!(group_thousands(1e9), "1 000 000 000");
+        assert_eq!(group_thousands(0.5), "0.5");
+        assert_eq!(column_letter(0), "A");
+        assert_eq!(column_letter(25), "Z");
+        assert_eq!(column_letter(26), "AA");
     }
 
     #[test]
@@ -436,5 +636,32 @@ mod tests {
         assert_eq!(t.rows.len(), 2);
         assert_eq!(t.rows[1].0, 5);
         assert_eq!(t.number(2, &t.rows[0].1, "a").unwrap(), Some(1.5));
+    }
+
+    #[test]
+    fn rows_are_counted_as_a_spreadsheet_shows_them() {
+        // A quoted cell spanning three lines is one spreadsheet row; blank lines and
+        // lone CR line ends are rows too.
+        let text = b"id,notes,x\na,\"line one\nline two\nline three\",1\n\nb,plain,2\rc,\"say \"\"hi\"\"\",3\r\n";
+        let t = parse_table(Path::new("x.csv"), text).unwrap();
+        let rows: Vec<usize> = t.rows.iter().map(|(r, _)| *r).collect();
+        assert_eq!(rows, vec![2, 4, 5]);
+        // A quote inside an unquoted cell is literal and does not open a quoted cell.
+        let t = parse_table(Path::new("x.csv"), b"id,notes\na,6\" trees\nb,ok\n").unwrap();
+        assert_eq!(t.rows.iter().map(|(r, _)| *r).collect::<Vec<_>>(), vec![2, 3]);
+    }
+
+    #[test]
+    fn trailing_empty_cells_and_tabs() {
+        let t = parse_table(Path::new("x.csv"), b"a,b,,\n1,2,,\n3,4\n").unwrap();
+        assert_eq!(t.rows.len(), 2);
+        assert!(t.check_columns(&["a", "b"], &["a", "b"], |_| false).is_empty());
+        let t = parse_table(Path::new("x.csv"), b"a,b,\n1,2,3\n").unwrap();
+        let p = t.check_columns(&["a", "b"], &["a", "b"], |_| false);
+        assert!(p[0].message.contains("column 3 (C) has values"), "{p:?}");
+        let e = parse_table(Path::new("x.csv"), b"a,b\n1,2,3\n").unwrap_err();
+        assert!(e[0].message.contains("3 fields but the header has 2"), "{e:?}");
+        let e = parse_table(Path::new("x.csv"), b"a\tb\n1\t2\n").unwrap_err();
+        assert!(e[0].message.contains("tabs"), "{e:?}");
     }
 }

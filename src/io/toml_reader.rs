@@ -1,15 +1,40 @@
 //! A schema-checked reader over a parsed TOML document.
 //!
 //! Every key read is recorded; keys never read are reported as unknown with the
-//! nearest valid name. Every problem is collected with the file, the line of the
-//! key (found in the source text) and the dotted key path, and the allowed range.
+//! nearest valid name, or with the section they belong in when they were read in
+//! another section. Every problem is collected with the file, the line of the
+//! key (found in the source text) and the dotted key path, and the allowed range;
+//! [`TomlDoc::take_problems`] returns them in file order.
 
 use crate::error::Problem;
-use crate::io::table::{fmt_value, range_text, suggestion};
+use crate::io::table::{fmt_value, nearest, parse_number, percent_hint, range_text, read_limited, suggestion};
 use crate::model::uncertainty::{Distribution, UncertainParam};
-use std::cell::RefCell;
-use std::collections::BTreeSet;
+use std::cell::{OnceCell, RefCell};
+use std::collections::{BTreeSet, HashMap};
 use std::path::{Path, PathBuf};
+
+/// Largest scenario file accepted, bytes (16 MiB; real scenarios are a few KiB).
+pub const MAX_TOML_BYTES: u64 = 16 * 1024 * 1024;
+
+/// Reads a TOML file as text: a regular file of at most [`MAX_TOML_BYTES`], in
+/// UTF-8 (a byte-order mark is accepted). Problems name the file (and the line of
+/// the first byte that is not UTF-8).
+pub fn read_toml_file(path: &Path) -> Result<String, Problem> {
+    let bytes = read_limited(path, MAX_TOML_BYTES, "scenario files", "a TOML file")?;
+    String::from_utf8(bytes).map_err(|e| {
+        let bytes = e.as_bytes();
+        let valid = e.utf8_error().valid_up_to();
+        let line = bytes[..valid].iter().filter(|&&b| b == b'\n').count() + 1;
+        Problem::in_file(path, "is not UTF-8 text; save it as UTF-8").row(line)
+    })
+}
+
+/// Display name of the root table in messages.
+const TOP_LEVEL: &str = "the top level";
+
+/// Most problems recorded for one file; the rest are counted. A real scenario
+/// never comes near this; a generated or corrupted one could list millions.
+pub const MAX_PROBLEMS: usize = 1000;
 
 /// Shared state of one TOML file being read.
 #[derive(Debug)]
@@ -17,8 +42,60 @@ pub struct TomlDoc {
     path: PathBuf,
     text: String,
     problems: RefCell<Vec<Problem>>,
+    /// Keys read in each section, by the section's display name (`[invasion]`).
+    known: RefCell<Vec<(String, BTreeSet<String>)>>,
+    /// Unknown keys whose message may gain a "belongs in" hint:
+    /// (index into `problems`, key, display name of its section).
+    unknown: RefCell<Vec<(usize, String, String)>>,
     /// Parameters given as distributions, in reading order.
     uncertain: RefCell<Vec<UncertainParam>>,
+    /// Where headers and keys are in the text, built on the first lookup.
+    index: OnceCell<LineIndex>,
+    /// Problems beyond [`MAX_PROBLEMS`], counted but not kept.
+    dropped: RefCell<usize>,
+}
+
+/// Lines of the headers and keys of the source text, so that locating a key is
+/// a lookup rather than a scan (a file with many problems stays fast).
+#[derive(Debug, Default)]
+struct LineIndex {
+    /// Header name (quotes and spaces removed) → its 0-based lines, in order.
+    headers: HashMap<String, Vec<usize>>,
+    /// Every dotted prefix of every header name → the first 0-based line with it.
+    prefixes: HashMap<String, usize>,
+    /// (0-based line of the table's header, or `usize::MAX` for the top level,
+    /// first segment of the key) → the first 0-based line assigning it.
+    keys: HashMap<(usize, String), usize>,
+}
+
+/// Block id of the top level in [`LineIndex::keys`].
+const TOP: usize = usize::MAX;
+
+/// Largest file searched line by line for keys of inline tables.
+const SCAN_LIMIT_LINES: usize = 20_000;
+
+impl LineIndex {
+    fn build(text: &str) -> LineIndex {
+        let mut ix = LineIndex::default();
+        let mut block = TOP;
+        for (i, line) in text.lines().enumerate() {
+            if let Some(name) = header_name(line) {
+                block = i;
+                let mut prefix = String::new();
+                for part in name.split('.') {
+                    if !prefix.is_empty() {
+                        prefix.push('.');
+                    }
+                    prefix.push_str(part);
+                    ix.prefixes.entry(prefix.clone()).or_insert(i);
+                }
+                ix.headers.entry(name).or_default().push(i);
+            } else if let Some(key) = leading_key(line) {
+                ix.keys.entry((block, key)).or_insert(i);
+            }
+        }
+        ix
+    }
 }
 
 /// One table of the document (the root, a `[section]` or one `[[array]]` entry).
@@ -36,7 +113,19 @@ impl TomlDoc {
     pub fn parse(path: &Path, text: String) -> Result<(TomlDoc, toml::Table), Problem> {
         let text = text.strip_prefix('\u{feff}').map(str::to_string).unwrap_or(text);
         match text.parse::<toml::Table>() {
-            Ok(t) => Ok((TomlDoc { path: path.to_path_buf(), text, problems: RefCell::new(Vec::new()), uncertain: RefCell::new(Vec::new()) }, t)),
+            Ok(t) => Ok((
+                TomlDoc {
+                    path: path.to_path_buf(),
+                    text,
+                    problems: RefCell::new(Vec::new()),
+                    known: RefCell::new(Vec::new()),
+                    unknown: RefCell::new(Vec::new()),
+                    uncertain: RefCell::new(Vec::new()),
+                    index: OnceCell::new(),
+                    dropped: RefCell::new(0),
+                },
+                t,
+            )),
             Err(e) => {
                 let line = e.span().map(|s| text[..s.start.min(text.len())].matches('\n').count() + 1);
                 let msg = format!("is not valid TOML: {}", e.message());
@@ -62,49 +151,202 @@ impl TomlDoc {
         Section { doc: self, path: String::new(), header: None, table, used: RefCell::new(BTreeSet::new()) }
     }
 
-    /// Records a problem.
+    /// Records a problem (beyond [`MAX_PROBLEMS`] only counts it).
     pub fn push(&self, p: Problem) {
-        self.problems.borrow_mut().push(p);
+        self.try_push(p);
     }
 
-    /// All problems recorded so far.
+    /// Records a problem; false when it was only counted.
+    fn try_push(&self, p: Problem) -> bool {
+        let mut problems = self.problems.borrow_mut();
+        if problems.len() >= MAX_PROBLEMS {
+            *self.dropped.borrow_mut() += 1;
+            return false;
+        }
+        problems.push(p);
+        true
+    }
+
+    /// True once [`MAX_PROBLEMS`] are recorded.
+    fn full(&self) -> bool {
+        self.problems.borrow().len() >= MAX_PROBLEMS
+    }
+
+    /// All problems recorded so far, in file order (problems with no line last).
+    ///
+    /// An unknown key with no close match in its own section, but read in another
+    /// section, is told where it belongs.
     pub fn take_problems(&self) -> Vec<Problem> {
-        std::mem::take(&mut self.problems.borrow_mut())
+        let mut problems = std::mem::take(&mut *self.problems.borrow_mut());
+        let known = self.known.borrow();
+        for (i, key, own) in self.unknown.borrow_mut().drain(..) {
+            let mut homes: Vec<&str> =
+                known.iter().filter(|(name, keys)| name != &own && keys.contains(&key)).map(|(n, _)| n.as_str()).collect();
+            homes.dedup();
+            let Some(p) = problems.get_mut(i) else { continue };
+            if homes.is_empty() {
+                continue;
+            }
+            let place = |name: &str| {
+                if name == TOP_LEVEL {
+                    "at the top level (before any [section])".to_string()
+                } else {
+                    format!("in {name}")
+                }
+            };
+            let here = if own == TOP_LEVEL { "at the top level".to_string() } else { format!("in {own}") };
+            let there: Vec<String> = homes.iter().map(|h| place(h)).collect();
+            p.message = format!("unknown key {here}; '{key}' belongs {}", there.join(" or "));
+        }
+        problems.sort_by_key(|p| p.row.unwrap_or(usize::MAX));
+        let dropped = std::mem::take(&mut *self.dropped.borrow_mut());
+        if dropped > 0 {
+            problems.push(Problem::in_file(&self.path, format!("… and {dropped} more problems not listed (only the first {MAX_PROBLEMS} are)")));
+        }
+        problems
+    }
+
+    /// Records the keys a section reads, for "belongs in" hints.
+    fn record_known(&self, section: String, keys: &BTreeSet<String>) {
+        let mut known = self.known.borrow_mut();
+        match known.iter_mut().find(|(n, _)| *n == section) {
+            Some((_, k)) => k.extend(keys.iter().cloned()),
+            None => known.push((section, keys.clone())),
+        }
     }
 
     /// Line (1-based) of `key` inside the table with header `[name]` / `[[name]]`
     /// (its `nth` occurrence), or at the top of the file when `header` is `None`.
+    ///
+    /// Falls back, in order, to a sub-table header `[name.key]`, to the first
+    /// `key =` anywhere when the table has no header of its own (an inline or
+    /// dotted-key table), and to the table's header line (for a missing key).
     fn line_of(&self, header: Option<&(String, usize)>, key: &str) -> Option<usize> {
-        let lines: Vec<&str> = self.text.lines().collect();
-        let mut start = 0;
-        if let Some((name, nth)) = header {
-            let mut seen = 0;
-            let mut found = None;
-            for (i, l) in lines.iter().enumerate() {
-                let t = l.trim();
-                if t == format!("[{name}]") || t == format!("[[{name}]]") {
-                    if seen == *nth {
-                        found = Some(i);
-                        break;
+        let ix = self.index.get_or_init(|| LineIndex::build(&self.text));
+        let block = match header {
+            None => TOP,
+            Some((name, nth)) => match find_header(ix, name, *nth) {
+                Some(i) => i,
+                None => {
+                    // No header of its own: an inline table or dotted keys.
+                    let lines = self.text.lines();
+                    if self.text.len() / 16 > SCAN_LIMIT_LINES && lines.clone().count() > SCAN_LIMIT_LINES {
+                        return None;
                     }
-                    seen += 1;
+                    return lines.enumerate().find(|(_, l)| assigns(l, key, true)).map(|(i, _)| i + 1);
                 }
-            }
-            start = found? + 1;
+            },
+        };
+        if let Some(&i) = ix.keys.get(&(block, key.to_string())) {
+            return Some(i + 1);
         }
-        for (i, l) in lines.iter().enumerate().skip(start) {
-            let t = l.trim_start();
-            if t.starts_with('[') {
-                break;
-            }
-            if let Some(rest) = t.strip_prefix(key) {
-                if rest.trim_start().starts_with('=') {
-                    return Some(i + 1);
-                }
-            }
+        let full = match header {
+            Some((name, _)) => format!("{}.{key}", strip_indices(name)),
+            None => key.to_string(),
+        };
+        if let Some(&i) = ix.prefixes.get(&full) {
+            return Some(i + 1);
         }
-        None
+        (block != TOP).then(|| block + 1)
     }
+}
+
+/// The first segment of the key a line assigns (`key`, `"key"`, `key.sub`),
+/// when the line is `key = …` or `key.sub = …`.
+fn leading_key(line: &str) -> Option<String> {
+    let t = line.trim_start();
+    let (key, rest) = if let Some(q) = t.strip_prefix('"') {
+        let end = q.find('"')?;
+        (&q[..end], &q[end + 1..])
+    } else if let Some(q) = t.strip_prefix('\'') {
+        let end = q.find('\'')?;
+        (&q[..end], &q[end + 1..])
+    } else {
+        let end = t.find(|c: char| !(c.is_ascii_alphanumeric() || c == '_' || c == '-')).unwrap_or(t.len());
+        (&t[..end], &t[end..])
+    };
+    let rest = rest.trim_start();
+    (!key.is_empty() && (rest.starts_with('=') || rest.starts_with('.'))).then(|| key.to_string())
+}
+
+/// The dotted name of a `[table]` or `[[array]]` header line (spaces and quotes
+/// removed), or `None` when the line is not a header.
+fn header_name(line: &str) -> Option<String> {
+    let t = line.trim();
+    if !t.starts_with('[') {
+        return None;
+    }
+    let close = t.rfind(']')?;
+    let after = t[close + 1..].trim_start();
+    if !(after.is_empty() || after.starts_with('#')) {
+        return None;
+    }
+    let inner = t[..=close].trim_start_matches('[').trim_end_matches(']');
+    let name: String = inner.chars().filter(|c| !c.is_whitespace() && *c != '"' && *c != '\'').collect();
+    (!name.is_empty()).then_some(name)
+}
+
+/// Index (0-based) of the line holding the `nth` header of the table at dotted
+/// `path`. Inside an array entry (`strategy[2].methods`) the search starts at
+/// that entry's own `[[strategy]]` header.
+fn find_header(ix: &LineIndex, path: &str, nth: usize) -> Option<usize> {
+    let want = strip_indices(path);
+    let mut from = 0;
+    if let Some(pos) = path.rfind("].") {
+        let parent = &path[..=pos];
+        let open = parent.rfind('[')?;
+        let k: usize = parent[open + 1..parent.len() - 1].parse().ok()?;
+        from = find_header(ix, &parent[..open], k.checked_sub(1)?)? + 1;
+    }
+    let lines = ix.headers.get(&want)?;
+    let first = lines.partition_point(|&l| l < from);
+    lines.get(first + nth).copied()
+}
+
+/// `contaminant[2].x` → `contaminant.x`.
+fn strip_indices(path: &str) -> String {
+    let mut out = String::with_capacity(path.len());
+    let mut depth = 0;
+    for c in path.chars() {
+        match c {
+            '[' => depth += 1,
+            ']' => depth -= 1,
+            _ if depth == 0 => out.push(c),
+            _ => {}
+        }
+    }
+    out
+}
+
+/// True when `line` assigns `key` (`key =`, `"key" =`, or `key.sub =`); with
+/// `anywhere`, also inside an inline table or after a dotted prefix.
+fn assigns(line: &str, key: &str, anywhere: bool) -> bool {
+    let t = line.trim_start();
+    let matches_at = |s: &str| -> bool {
+        for k in [key.to_string(), format!("\"{key}\""), format!("'{key}'")] {
+            if let Some(rest) = s.strip_prefix(k.as_str()) {
+                let rest = rest.trim_start();
+                if rest.starts_with('=') || rest.starts_with('.') {
+                    return true;
+                }
+            }
+        }
+        false
+    };
+    if matches_at(t) {
+        return true;
+    }
+    if !anywhere {
+        return false;
+    }
+    let is_key_char = |c: char| c.is_ascii_alphanumeric() || c == '_' || c == '-';
+    t.char_indices().any(|(i, _)| {
+        let after_boundary = match t[..i].chars().next_back() {
+            None => true,
+            Some(c) => !is_key_char(c),
+        };
+        after_boundary && matches_at(&t[i..])
+    })
 }
 
 impl<'a> Section<'a> {
@@ -125,7 +367,11 @@ impl<'a> Section<'a> {
 
     /// Records a problem located at `key`.
     pub fn push(&self, key: &str, message: impl Into<String>) {
-        self.doc.push(self.problem(key, message));
+        if self.doc.full() {
+            self.doc.push(Problem::new(""));
+        } else {
+            self.doc.push(self.problem(key, message));
+        }
     }
 
     /// The raw value of `key`, marking it used.
@@ -197,11 +443,11 @@ impl<'a> Section<'a> {
             Some(v) => match as_f64(v) {
                 Some(x) if x.is_finite() && x >= lo && x <= hi => x,
                 Some(x) => {
-                    self.push(key, format!("{} is out of range; allowed {}", fmt_value(x), range_text(lo, hi, unit)));
+                    self.push(key, format!("{} is out of range; allowed {}{}", fmt_value(x), range_text(lo, hi, unit), percent_hint(x, unit)));
                     fallback
                 }
                 None => {
-                    self.push(key, format!("must be a number in {}", range_text(lo, hi, unit)));
+                    self.push(key, format!("must be a number in {}{}", range_text(lo, hi, unit), quoted_number_hint(v)));
                     fallback
                 }
             },
@@ -314,7 +560,10 @@ impl<'a> Section<'a> {
             Some(toml::Value::Float(f)) if f.fract() == 0.0 && *f >= lo as f64 && *f <= hi as f64 => *f as i64,
             Some(v) => {
                 let shown = as_f64(v).map(fmt_value).unwrap_or_else(|| v.to_string());
-                self.push(key, format!("{shown} is not allowed; expected a whole number in {}", range_text(lo as f64, hi as f64, unit)));
+                self.push(
+                    key,
+                    format!("{shown} is not allowed; expected a whole number in {}{}", range_text(lo as f64, hi as f64, unit), quoted_number_hint(v)),
+                );
                 fallback
             }
         }
@@ -352,7 +601,8 @@ impl<'a> Section<'a> {
         if choices.contains(&s.as_str()) {
             s
         } else {
-            self.push(key, format!("'{s}' is not allowed; choose one of: {}{}", choices.join(", "), suggestion(&s, choices)));
+            let hint = nearest(&s, choices).map(|k| format!(" (did you mean '{k}'?)")).unwrap_or_default();
+            self.push(key, format!("'{s}' is not allowed; choose one of: {}{hint}", choices.join(", ")));
             default.to_string()
         }
     }
@@ -365,7 +615,11 @@ impl<'a> Section<'a> {
                 for (i, v) in items.iter().enumerate() {
                     match as_f64(v) {
                         Some(x) if x.is_finite() && x >= lo && x <= hi => out.push(x),
-                        _ => self.push(key, format!("item {} must be a number in {}", i + 1, range_text(lo, hi, unit))),
+                        Some(x) => self.push(
+                            key,
+                            format!("item {} is {}; each must be a number in {}{}", i + 1, fmt_value(x), range_text(lo, hi, unit), percent_hint(x, unit)),
+                        ),
+                        None => self.push(key, format!("item {} must be a number in {}{}", i + 1, range_text(lo, hi, unit), quoted_number_hint(v))),
                     }
                 }
                 Some(out)
@@ -378,14 +632,36 @@ impl<'a> Section<'a> {
     }
 
     /// Reports every key of this table that was never read, suggesting the nearest
-    /// known key. Call after reading all keys.
+    /// known key (or, when it was read in another section, where it belongs; see
+    /// [`TomlDoc::take_problems`]). Call after reading all keys.
     pub fn finish(&self) {
         let used = self.used.borrow();
         let known: Vec<&str> = used.iter().map(String::as_str).collect();
+        let display = self.display_name();
         for key in self.table.keys() {
             if !used.contains(key) {
-                self.push(key, format!("unknown key{}", suggestion(key, &known)));
+                if self.doc.full() {
+                    self.doc.push(Problem::new(""));
+                    continue;
+                }
+                let close = nearest(key, &known).is_some();
+                if self.doc.try_push(self.problem(key, format!("unknown key{}", suggestion(key, &known)))) && !close {
+                    let index = self.doc.problems.borrow().len() - 1;
+                    self.doc.unknown.borrow_mut().push((index, key.clone(), display.clone()));
+                }
             }
+        }
+        self.doc.record_known(display, &used);
+    }
+
+    /// How the section is written in the file: `the top level`, `[invasion]`, `[[contaminant]]`.
+    fn display_name(&self) -> String {
+        if self.path.is_empty() {
+            TOP_LEVEL.to_string()
+        } else if self.path.ends_with(']') {
+            format!("[[{}]]", strip_indices(&self.path))
+        } else {
+            format!("[{}]", strip_indices(&self.path))
         }
     }
 
@@ -398,10 +674,95 @@ impl<'a> Section<'a> {
     }
 }
 
+/// "; write 0.06 without quotes" when a text value holds a number.
+fn quoted_number_hint(v: &toml::Value) -> String {
+    match v {
+        toml::Value::String(t) => match parse_number(t, false) {
+            Ok(x) => format!("; write {} without quotes", fmt_value(x)),
+            Err(m) => format!(" (the value is text: {m})"),
+        },
+        _ => String::new(),
+    }
+}
+
 fn as_f64(v: &toml::Value) -> Option<f64> {
     match v {
         toml::Value::Float(f) => Some(*f),
         toml::Value::Integer(i) => Some(*i as f64),
         _ => None,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn doc(text: &str) -> (TomlDoc, toml::Table) {
+        TomlDoc::parse(Path::new("s.toml"), text.to_string()).unwrap()
+    }
+
+    #[test]
+    fn keys_are_located_in_every_way_tables_can_be_written() {
+        let text = "title = \"t\"\nhydrology = { method = \"fu\" }\ndilution.min_runoff_mm = 3\n\n\
+                    [ invasion ]  # spread\nspread_rate_per_yr = 0.1\n\n[[contaminant]]\nname = \"a\"\n\n[[contaminant]]\n\"name\" = \"b\"\n\n\
+                    [[strategy]]\nname = \"x\"\n[[strategy]]\nname = \"y\"\n[strategy.methods]\ndense = \"aerial\"\n";
+        let (d, t) = doc(text);
+        let root = d.root(&t);
+        assert_eq!(root.problem("title", "").row, Some(1));
+        assert_eq!(root.section("hydrology").unwrap().problem("method", "").row, Some(2), "inline table");
+        assert_eq!(root.section("dilution").unwrap().problem("min_runoff_mm", "").row, Some(3), "dotted keys");
+        let inv = root.section("invasion").unwrap();
+        assert_eq!(inv.problem("spread_rate_per_yr", "").row, Some(6), "header with spaces and a comment");
+        assert_eq!(inv.problem("medium_age_yr", "").row, Some(5), "a missing key points at its table");
+        let c = root.array_of_tables("contaminant");
+        assert_eq!(c[1].problem("name", "").row, Some(12), "quoted key in the second entry");
+        let s = root.array_of_tables("strategy");
+        assert_eq!(s[1].section("methods").unwrap().problem("dense", "").row, Some(19), "sub-table of the second entry");
+    }
+
+    #[test]
+    fn unknown_keys_are_told_where_they_belong_and_problems_come_in_file_order() {
+        let (d, t) = doc("start_year = 2030\nw_grass = 0.4\n\n[hydrology]\nw_grass = 0.5\nhorizon_years = 9\n\n[hydrolgy]\nx = 1\n");
+        let root = d.root(&t);
+        let _ = root.int_in("start_year", None, 1800, 2500, "");
+        let _ = root.int_in("horizon_years", None, 1, 300, "years");
+        let h = root.section("hydrology").unwrap();
+        let _ = h.f64_in("w_grass", Some(0.5), 0.01, 20.0, "");
+        h.finish();
+        root.finish();
+        let p = d.take_problems();
+        let rows: Vec<Option<usize>> = p.iter().map(|p| p.row).collect();
+        assert_eq!(rows, vec![Some(2), Some(6), Some(8), None], "{p:#?}");
+        assert!(p[0].message.contains("'w_grass' belongs in [hydrology]"), "{}", p[0].message);
+        assert!(p[1].message.contains("'horizon_years' belongs at the top level"), "{}", p[1].message);
+        assert!(p[2].message.contains("did you mean 'hydrology'"), "{}", p[2].message);
+        assert!(p[3].message.contains("required key is missing"), "{}", p[3].message);
+    }
+
+    #[test]
+    fn values_get_hints_for_quotes_and_percentages() {
+        let (d, t) = doc("a = \"0.06\"\nb = 85\nc = [0.5, 40]\n");
+        let root = d.root(&t);
+        let _ = root.f64_in("a", Some(0.0), 0.0, 1.0, "1/yr");
+        let _ = root.f64_in("b", Some(0.0), 0.0, 1.0, "fraction");
+        let _ = root.f64_list("c", 0.0, 1.0, "fraction");
+        let p = d.take_problems();
+        assert!(p[0].message.contains("write 0.06 without quotes"), "{}", p[0].message);
+        assert!(p[1].message.contains("write 0.85 for 85%"), "{}", p[1].message);
+        assert!(p[2].message.contains("item 2 is 40") && p[2].message.contains("write 0.4 for 40%"), "{}", p[2].message);
+    }
+
+    #[test]
+    fn scenario_files_are_read_with_limits() {
+        let tmp = tempfile::tempdir().unwrap();
+        let big = tmp.path().join("big.toml");
+        std::fs::File::create(&big).unwrap().set_len(MAX_TOML_BYTES + 1).unwrap();
+        assert!(read_toml_file(&big).unwrap_err().message.contains("are refused"));
+        let latin = tmp.path().join("latin.toml");
+        std::fs::write(&latin, b"title = \"ok\"\nname = \"Lac \xe9\"\n").unwrap();
+        assert_eq!(read_toml_file(&latin).unwrap_err().row, Some(2));
+        assert!(read_toml_file(tmp.path()).unwrap_err().message.contains("is a folder"));
+        std::fs::write(&latin, "\u{feff}title = \"ok\"\n").unwrap();
+        assert!(read_toml_file(&latin).is_ok());
     }
 }

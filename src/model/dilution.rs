@@ -74,7 +74,12 @@ pub fn concentration_mg_per_l(
     if !(volume_m3 > 0.0) || depth_mm < min_runoff_mm {
         return Err(ConcentrationFlag::LowRunoff);
     }
-    Ok(1000.0 * load_kg_per_yr / volume_m3)
+    let c = 1000.0 * load_kg_per_yr / volume_m3;
+    if c.is_finite() {
+        Ok(c)
+    } else {
+        Err(ConcentrationFlag::LowRunoff)
+    }
 }
 
 /// Concentration, mg/L, of an areal load `load_kg_per_ha_yr` in runoff depth `yield_mm`:
