@@ -44,12 +44,11 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     )?;
     let scenario = load_scenario(&dir.join("scenario.toml"))?;
     let opts = RunOptions {
-        out: dir.join("out"),
         force: true,
         figures: FigureChoice::None,
         formats: Formats { png: false, svg: false },
         threads,
-        progress: false,
+        ..RunOptions::new(dir.join("out"))
     };
     let t0 = Instant::now();
     run(&scenario, &opts)?;

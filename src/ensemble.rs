@@ -26,7 +26,7 @@ use crate::model::kernel::{concentration, project_lean, LeanYears};
 use crate::model::stats::{mean, percentile_sorted, spearman, src};
 use crate::model::uncertainty::{stable_hash, stream, uniforms, UncertainParam};
 use crate::model::CoverCurves;
-use crate::pipeline::{file_stem, BASIN_ID, NO_CONTROL};
+use crate::pipeline::{file_stem, NO_CONTROL};
 use crate::plot::bands::{BandChart, BandSeries};
 use crate::plot::tornado::Tornado;
 use crate::plot::{palette, save_figure, Formats};
@@ -56,6 +56,8 @@ pub struct EnsembleOutcome {
     pub parameters: usize,
     /// Figures drawn.
     pub figures: usize,
+    /// Basin sums for the basin-level sensitivity (when any parameter is uncertain).
+    pub sensitivity: Option<crate::basin_totals::SensitivitySums>,
 }
 
 /// Parameters, scales and strategies of one member for one catchment.
@@ -270,12 +272,8 @@ fn percentile_rows(s: &Scenario, id: &str, strategy: &str, mv: &MemberValues, na
 }
 
 fn csv_line(fields: &[String]) -> String {
-    let mut s = fields
-        .iter()
-        .map(|f| if f.contains([',', '"']) { format!("\"{}\"", f.replace('"', "\"\"")) } else { f.clone() })
-        .collect::<Vec<_>>()
-        .join(",");
-    s.push('\n');
+    let mut s = String::new();
+    crate::io::output::push_csv_line(&mut s, fields.iter().map(String::as_str));
     s
 }
 
@@ -293,9 +291,10 @@ pub fn sensitivity_header() -> Vec<String> {
 }
 
 /// One sensitivity ranking: `(parameter label, ρ, SRC)` sorted by |ρ| descending.
-type Ranking = Vec<(String, Option<f64>, Option<f64>)>;
+pub type Ranking = Vec<(String, Option<f64>, Option<f64>)>;
 
-fn rank(labels: &[String], xs: &[Vec<f64>], y: &[f64]) -> Ranking {
+/// Ranks parameters by |Spearman ρ| with `y` (members with a non-finite `y` left out).
+pub fn rank(labels: &[String], xs: &[Vec<f64>], y: &[f64]) -> Ranking {
     let ok: Vec<usize> = (0..y.len()).filter(|&m| y[m].is_finite()).collect();
     let yv: Vec<f64> = ok.iter().map(|&m| y[m]).collect();
     let xv: Vec<Vec<f64>> = xs.iter().map(|x| ok.iter().map(|&m| x[m]).collect()).collect();
@@ -309,7 +308,8 @@ fn rank(labels: &[String], xs: &[Vec<f64>], y: &[f64]) -> Ranking {
     r
 }
 
-fn sensitivity_rows(id: &str, strategy: &str, at: &str, year: i32, r: &Ranking) -> String {
+/// `sensitivity.csv` rows of one ranking.
+pub fn sensitivity_rows(id: &str, strategy: &str, at: &str, year: i32, r: &Ranking) -> String {
     r.iter()
         .enumerate()
         .map(|(k, (label, rho, srcv))| {
@@ -344,7 +344,13 @@ struct CatchmentResult {
 
 /// Runs the ensemble and writes `ensemble.csv`, `sensitivity.csv` (when any parameter
 /// is uncertain), `members.csv` (when asked) and band and tornado figures into `dir`.
-pub fn run_ensemble(s: &Scenario, cfg: &EnsembleConfig, dir: &Path, opts: &EnsembleOptions) -> Result<EnsembleOutcome> {
+pub fn run_ensemble(
+    s: &Scenario,
+    cfg: &EnsembleConfig,
+    dir: &Path,
+    opts: &EnsembleOptions,
+    meta: &crate::basin_totals::BasinMeta,
+) -> Result<EnsembleOutcome> {
     let m_count = cfg.members;
     let names = variable_names(s);
     let k = s.params.contaminants.len();
@@ -363,9 +369,11 @@ pub fn run_ensemble(s: &Scenario, cfg: &EnsembleConfig, dir: &Path, opts: &Ensem
     let figdir = dir.join("figures");
 
     // no-control, catchment by catchment, in parallel chunks written in order.
-    let mut basin_vol: Vec<Vec<(f64, f64)>> = vec![vec![(0.0, 0.0); points.len()]; m_count];
-    let mut basin_x: Vec<Vec<f64>> = vec![vec![0.0; m_count]; labels.len()];
-    let total_area: f64 = s.catchments.iter().map(|c| c.area_ha).sum();
+    let mut basin = crate::basin_totals::SensitivitySums::new(
+        labels.clone(),
+        points.iter().map(|(at, off)| (at.to_string(), s.start_year + *off as i32)).collect(),
+        m_count,
+    );
     let mut reference: Vec<Vec<Vec<f64>>> = Vec::new();
     let chunk = 64;
     for start in (0..s.catchments.len()).step_by(chunk) {
@@ -388,13 +396,14 @@ pub fn run_ensemble(s: &Scenario, cfg: &EnsembleConfig, dir: &Path, opts: &Ensem
                 write_str(mo, &r.members)?;
             }
             let a = s.catchments[i].area_ha;
+            basin.area_ha.add(a);
             for m in 0..m_count {
                 for (pt, v) in r.basin_volumes[m].iter().enumerate() {
-                    basin_vol[m][pt].0 += v.0;
-                    basin_vol[m][pt].1 += v.1;
+                    basin.volumes[m][pt].0.add(v.0);
+                    basin.volumes[m][pt].1.add(v.1);
                 }
                 for (j, d) in r.draws.iter().enumerate() {
-                    basin_x[j][m] += d[m] * a / total_area;
+                    basin.weighted_draws[j][m].add(d[m] * a);
                 }
             }
             if opts.figures {
@@ -403,7 +412,7 @@ pub fn run_ensemble(s: &Scenario, cfg: &EnsembleConfig, dir: &Path, opts: &Ensem
                     n_figures += 1;
                 }
                 if let Some(rk) = &r.ranking {
-                    n_figures += tornado(&figdir, s, &s.catchments[i].name, &file_stem(&s.catchments[i].id), rk, opts.formats)?;
+                    n_figures += tornado(&figdir, meta, &s.catchments[i].name, &file_stem(&s.catchments[i].id), rk, opts.formats)?;
                 }
             }
             if keep_reference {
@@ -411,18 +420,6 @@ pub fn run_ensemble(s: &Scenario, cfg: &EnsembleConfig, dir: &Path, opts: &Ensem
             }
         }
     }
-    // Basin-level sensitivity (no-control).
-    if let Some(sn) = sens.as_mut() {
-        for (pt, (at, off)) in points.iter().enumerate() {
-            let y: Vec<f64> = basin_vol.iter().map(|v| if v[pt].1 > 0.0 { 100.0 * (v[pt].0 - v[pt].1) / v[pt].1 } else { f64::NAN }).collect();
-            let r = rank(&labels, &basin_x, &y);
-            write_str(sn, &sensitivity_rows(BASIN_ID, NO_CONTROL, at, s.start_year + *off as i32, &r))?;
-            if opts.figures && *at == "horizon" {
-                n_figures += tornado(&figdir, s, &format!("{} (basin)", s.title), BASIN_ID, &r, opts.formats)?;
-            }
-        }
-    }
-
     // Control strategies: member by member over the whole basin.
     for (si, st) in s.strategies.iter().enumerate() {
         let per_member: Vec<(Vec<Vec<Vec<f64>>>, Vec<Vec<f64>>)> = (0..m_count)
@@ -490,7 +487,8 @@ pub fn run_ensemble(s: &Scenario, cfg: &EnsembleConfig, dir: &Path, opts: &Ensem
         mo.finish()?;
     }
     bar.finish_and_clear();
-    Ok(EnsembleOutcome { members: m_count, parameters: labels.len(), figures: n_figures })
+    let sensitivity = (!labels.is_empty()).then_some(basin);
+    Ok(EnsembleOutcome { members: m_count, parameters: labels.len(), figures: n_figures, sensitivity })
 }
 
 fn draws_for_member(s: &Scenario, cfg: &EnsembleConfig, shared: &[Option<Vec<f64>>], id: &str, m: usize) -> Vec<Vec<f64>> {
@@ -621,13 +619,14 @@ fn write_str(out: &mut CsvOut, text: &str) -> Result<()> {
     out.raw(text)
 }
 
-fn tornado(dir: &Path, s: &Scenario, name: &str, stem: &str, r: &Ranking, formats: Formats) -> Result<usize> {
+/// Draws a tornado figure of a ranking; returns 1 when drawn.
+pub fn tornado(dir: &Path, meta: &crate::basin_totals::BasinMeta, name: &str, stem: &str, r: &Ranking, formats: Formats) -> Result<usize> {
     let bars: Vec<(String, f64)> = r.iter().filter_map(|(l, rho, _)| rho.map(|v| (l.clone(), v))).collect();
     if bars.is_empty() {
         return Ok(0);
     }
     let t = Tornado {
-        title: format!("{name} — what drives yield change by {}", s.start_year + s.horizon_years as i32),
+        title: format!("{name} — what drives yield change by {}", meta.start_year + meta.horizon_years as i32),
         x_label: "Spearman ρ with yield change at the horizon (right: higher parameter, less loss)".into(),
         bars,
     };

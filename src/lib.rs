@@ -20,12 +20,14 @@
 #![deny(missing_docs)]
 
 pub mod ensemble;
+pub mod basin_totals;
 pub mod error;
 pub mod fit_run;
 pub mod io;
 pub mod model;
 pub mod pipeline;
 pub mod plot;
+pub mod shard;
 pub mod cli;
 
 pub use error::{Error, Problem, Result};

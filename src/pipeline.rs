@@ -13,21 +13,20 @@ use crate::io::outdir::Staging;
 use crate::io::output::{self, ControlCells, CsvOut};
 use crate::io::scenario::Scenario;
 use crate::model::basin::project_basin;
-use crate::model::control::{ControlYear, Strategy};
-use crate::model::cover::ClassAreas;
+use crate::basin_totals::{BasinMeta, DelaySums, Partials, StrategySums};
+use crate::model::control::ControlYear;
 use crate::model::dilution;
 use crate::model::economics::ProgrammeTotals;
 use crate::model::summary::{node_totals, summarise, CatchmentSummary};
 use crate::model::{project_catchment, Catchment, YearResult};
-use crate::plot::series::{Corner, CoverChart, Line, LineChart, Panels};
+use crate::plot::series::{CoverChart, Line, LineChart};
 use crate::plot::{palette, save_figure, Formats};
 use std::path::{Path, PathBuf};
 
 /// Name of the reference strategy (no control).
 pub const NO_CONTROL: &str = "no-control";
 
-/// Id used for basin-wide rows in `summary.csv`.
-pub const BASIN_ID: &str = "basin";
+pub use crate::basin_totals::BASIN_ID;
 
 /// When to draw per-catchment figures.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -58,6 +57,15 @@ pub struct RunOptions {
     pub threads: Option<usize>,
     /// Show a progress bar on stderr (when it is a terminal).
     pub progress: bool,
+    /// Run only the `k`-th of `n` slices of the catchments (1-based), for `merge`.
+    pub shard: Option<(usize, usize)>,
+}
+
+impl RunOptions {
+    /// Defaults: figures `Auto` in PNG and SVG, all cores, no progress bar, no shard.
+    pub fn new(out: impl Into<PathBuf>) -> RunOptions {
+        RunOptions { out: out.into(), force: false, figures: FigureChoice::Auto, formats: Formats::default(), threads: None, progress: false, shard: None }
+    }
 }
 
 /// What a run produced.
@@ -75,93 +83,6 @@ pub struct RunOutcome {
     pub figures: usize,
     /// Ensemble members run (0 without an ensemble).
     pub members: usize,
-}
-
-/// Basin-wide sums of one strategy, year by year.
-struct BasinSeries {
-    years: Vec<YearResult>,
-    cost: Vec<f64>,
-    water_saved_m3: Vec<f64>,
-    vulnerable_ha: f64,
-}
-
-impl BasinSeries {
-    fn new(s: &Scenario) -> BasinSeries {
-        let k = s.params.contaminants.len();
-        let years = s
-            .years()
-            .map(|y| YearResult {
-                year: y,
-                rain_mm: 0.0,
-                pet_mm: 0.0,
-                et_mm: 0.0,
-                yield_mm: 0.0,
-                yield_m3: 0.0,
-                baseline_yield_mm: 0.0,
-                uninvaded_yield_mm: 0.0,
-                canopy_fraction: 0.0,
-                classes: ClassAreas::default(),
-                new_infestation_ha: 0.0,
-                loads_kg_per_yr: vec![0.0; k],
-                concentrations: vec![Ok(0.0); k],
-            })
-            .collect();
-        let n = s.horizon_years + 1;
-        BasinSeries { years, cost: vec![0.0; n], water_saved_m3: vec![0.0; n], vulnerable_ha: 0.0 }
-    }
-
-    /// Adds one catchment (area-weighted depths; summed volumes, loads and areas).
-    fn add(&mut self, c: &Catchment, ys: &[YearResult], cells: &[ControlCells]) {
-        self.vulnerable_ha += c.vulnerable_ha;
-        for (t, (b, y)) in self.years.iter_mut().zip(ys).enumerate() {
-            let a = c.area_ha;
-            b.rain_mm += y.rain_mm * a;
-            b.pet_mm += y.pet_mm * a;
-            b.et_mm += y.et_mm * a;
-            b.yield_mm += y.yield_mm * a;
-            b.yield_m3 += y.yield_m3;
-            b.baseline_yield_mm += y.baseline_yield_mm * a;
-            b.uninvaded_yield_mm += y.uninvaded_yield_mm * a;
-            b.canopy_fraction += y.canopy_fraction * a;
-            b.classes.scattered_ha += y.classes.scattered_ha;
-            b.classes.medium_ha += y.classes.medium_ha;
-            b.classes.dense_ha += y.classes.dense_ha;
-            b.new_infestation_ha += y.new_infestation_ha;
-            for (l, v) in b.loads_kg_per_yr.iter_mut().zip(&y.loads_kg_per_yr) {
-                *l += v;
-            }
-            if let Some(cell) = cells.get(t) {
-                self.cost[t] += cell.control.cost();
-                self.water_saved_m3[t] += cell.water_saved_m3;
-            }
-        }
-    }
-
-    /// Turns sums into basin means and concentrations; returns the pooled "catchment".
-    fn finish(&mut self, s: &Scenario) -> Catchment {
-        let area: f64 = s.catchments.iter().map(|c| c.area_ha).sum();
-        for b in &mut self.years {
-            for v in [&mut b.rain_mm, &mut b.pet_mm, &mut b.et_mm, &mut b.yield_mm, &mut b.baseline_yield_mm, &mut b.uninvaded_yield_mm, &mut b.canopy_fraction] {
-                *v /= area;
-            }
-            b.concentrations =
-                b.loads_kg_per_yr.iter().map(|&l| dilution::concentration_mg_per_l(l, b.yield_m3, area, s.params.min_runoff_mm)).collect();
-        }
-        Catchment {
-            id: BASIN_ID.into(),
-            name: format!("{} (all catchments)", s.title),
-            area_ha: area,
-            rain_mm: 0.0,
-            pet_mm: 0.0,
-            pet_forest_mm: None,
-            vulnerable_ha: self.vulnerable_ha,
-            infested: ClassAreas::default(),
-            forest_ha: 0.0,
-            flows_to: None,
-            point_kg_per_yr: vec![],
-            curves: None,
-        }
-    }
 }
 
 /// Writes one catchment's rows of one strategy; returns its summary and programme totals.
@@ -193,25 +114,26 @@ fn write_catchment_rows(
     Ok((summarise(c, years, contaminants), totals, cells))
 }
 
-struct StrategyOutcome {
-    name: String,
-    summaries: Vec<(CatchmentSummary, ProgrammeTotals)>,
-    basin: BasinSeries,
-    basin_catchment: Catchment,
-    basin_summary: CatchmentSummary,
-    basin_totals: ProgrammeTotals,
-}
-
 /// Runs the projection and writes every output.
 pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
     let staging = Staging::new(&opts.out, opts.force)?;
     let dir = staging.dir().to_path_buf();
-    let s = scenario;
+    let full = scenario;
+    let sub;
+    let s = match opts.shard {
+        Some((k, n)) => {
+            sub = crate::shard::shard_scenario(full, k, n)?;
+            &sub
+        }
+        None => full,
+    };
     let contaminants = &s.params.contaminants;
+    let n_years = s.horizon_years + 1;
+    let k = contaminants.len();
     let draw = match opts.figures {
         FigureChoice::All => true,
         FigureChoice::None => false,
-        FigureChoice::Auto => s.catchments.len() <= AUTO_FIGURE_LIMIT,
+        FigureChoice::Auto => full.catchments.len() <= AUTO_FIGURE_LIMIT,
     };
     let figdir = dir.join("figures");
     std::fs::create_dir_all(&figdir).map_err(|e| Error::io("creating figures/", e))?;
@@ -223,102 +145,134 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
         v
     };
     let climates: Vec<_> = if s.strategies.is_empty() { Vec::new() } else { (0..s.catchments.len()).map(|i| s.climate_series(i)).collect() };
+    let mut partials = Partials { meta: basin_meta(full, draw || !full.strategies.is_empty()), strategies: Vec::new(), delays: Vec::new(), sensitivity: None };
 
     let mut yearly = CsvOut::create(&dir.join("yearly.csv"), &output::yearly_header(contaminants))?;
     let mut nodes = CsvOut::create(&dir.join("nodes.csv"), &output::nodes_header(contaminants))?;
+    let mut budget = CsvOut::create(&dir.join("budget.csv"), &output::budget_header())?;
     let mut n_figures = 0;
+    // summary.csv rows of each catchment, per strategy (basin rows are added at the end).
+    let mut summary_rows: Vec<Vec<Vec<String>>> = Vec::new();
 
     // The no-control reference, streamed catchment by catchment.
-    let mut outcomes: Vec<StrategyOutcome> = Vec::new();
-    {
-        let mut basin = BasinSeries::new(s);
-        let mut summaries = Vec::with_capacity(s.catchments.len());
-        let mut kept: Vec<Option<Vec<YearResult>>> = Vec::with_capacity(s.catchments.len());
-        let mut reference: Vec<Vec<f64>> = Vec::new();
-        for (i, c) in s.catchments.iter().enumerate() {
-            let years = project_catchment(c, &s.climate_series(i), &s.params, s.start_year);
-            let (sum, totals, cells) = write_catchment_rows(&mut yearly, s, c, NO_CONTROL, &years, None, None)?;
-            basin.add(c, &years, &cells);
-            summaries.push((sum, totals));
-            if draw {
-                n_figures += catchment_figures(&figdir, s, i, &years, opts.formats)?;
-            }
-            if !s.strategies.is_empty() {
-                reference.push(years.iter().map(|y| y.yield_m3).collect());
-            }
-            kept.push(in_network[i].then_some(years));
+    let mut sums = StrategySums::new(NO_CONTROL, n_years, k);
+    let mut rows = Vec::with_capacity(s.catchments.len());
+    let mut kept: Vec<Option<Vec<YearResult>>> = Vec::with_capacity(s.catchments.len());
+    let mut reference: Vec<Vec<f64>> = Vec::new();
+    for (i, c) in s.catchments.iter().enumerate() {
+        let years = project_catchment(c, &s.climate_series(i), &s.params, s.start_year);
+        let (sum, totals, cells) = write_catchment_rows(&mut yearly, s, c, NO_CONTROL, &years, None, None)?;
+        sums.add(c, &years, &cells);
+        rows.push(output::summary_fields(c, NO_CONTROL, &sum, &totals, s.economics.water_value_per_m3));
+        if draw {
+            n_figures += catchment_figures(&figdir, s, i, &years, opts.formats)?;
         }
-        write_nodes(&mut nodes, s, NO_CONTROL, kept)?;
-        outcomes.push(finish_outcome(s, NO_CONTROL, summaries, basin));
-
-        for st in &s.strategies {
-            let run = project_basin(&s.catchments, &climates, std::slice::from_ref(&s.params), s.start_year, Some(st));
-            let mut basin = BasinSeries::new(s);
-            let mut summaries = Vec::with_capacity(s.catchments.len());
-            for (i, c) in s.catchments.iter().enumerate() {
-                let (sum, totals, cells) =
-                    write_catchment_rows(&mut yearly, s, c, &st.name, &run.years[i], Some(&run.control[i]), Some(&reference[i]))?;
-                basin.add(c, &run.years[i], &cells);
-                summaries.push((sum, totals));
-            }
-            let kept = run.years.into_iter().enumerate().map(|(i, y)| in_network[i].then_some(y)).collect();
-            write_nodes(&mut nodes, s, &st.name, kept)?;
-            write_budget(&dir, s, st, &run.budget)?;
-            outcomes.push(finish_outcome(s, &st.name, summaries, basin));
-        }
-        let delays = delay_rows(s, &climates, &reference, &outcomes[0].basin);
-        write_delay(&dir, &delays)?;
         if !s.strategies.is_empty() {
-            n_figures += strategy_figures(&figdir, s, &outcomes, &delays, opts.formats)?;
+            reference.push(years.iter().map(|y| y.yield_m3).collect());
         }
+        kept.push(in_network[i].then_some(years));
     }
+    write_nodes(&mut nodes, s, NO_CONTROL, kept)?;
+    partials.strategies.push(sums);
+    summary_rows.push(rows);
+
+    for st in &s.strategies {
+        let run = project_basin(&s.catchments, &climates, std::slice::from_ref(&s.params), s.start_year, Some(st));
+        let mut sums = StrategySums::new(&st.name, n_years, k);
+        let mut rows = Vec::with_capacity(s.catchments.len());
+        for (i, c) in s.catchments.iter().enumerate() {
+            let (sum, totals, cells) =
+                write_catchment_rows(&mut yearly, s, c, &st.name, &run.years[i], Some(&run.control[i]), Some(&reference[i]))?;
+            sums.add(c, &run.years[i], &cells);
+            rows.push(output::summary_fields(c, &st.name, &sum, &totals, s.economics.water_value_per_m3));
+        }
+        for b in &run.budget {
+            let pool = b.pool.map_or(BASIN_ID, |i| s.catchments[i].id.as_str());
+            budget.row(output::budget_fields(&st.name, pool, b).iter().map(String::as_str))?;
+        }
+        let kept = run.years.into_iter().enumerate().map(|(i, y)| in_network[i].then_some(y)).collect();
+        write_nodes(&mut nodes, s, &st.name, kept)?;
+        partials.strategies.push(sums);
+        summary_rows.push(rows);
+    }
+    partials.delays = delay_sums(s, &climates, &reference);
     yearly.finish()?;
     nodes.finish()?;
-    if !dir.join("budget.csv").exists() {
-        CsvOut::create(&dir.join("budget.csv"), &output::budget_header())?.finish()?;
-    }
+    budget.finish()?;
 
-    let mut summary = CsvOut::create(&dir.join("summary.csv"), &output::summary_header(contaminants))?;
-    for o in &outcomes {
-        for (c, (sm, tot)) in s.catchments.iter().zip(&o.summaries) {
-            summary.row(output::summary_fields(c, &o.name, sm, tot, s.economics.water_value_per_m3).iter().map(String::as_str))?;
-        }
-        summary.row(
-            output::summary_fields(&o.basin_catchment, &o.name, &o.basin_summary, &o.basin_totals, s.economics.water_value_per_m3)
-                .iter()
-                .map(String::as_str),
-        )?;
-    }
-    summary.finish()?;
-    if draw || !s.strategies.is_empty() {
-        n_figures += basin_cover_figure(&figdir, s, &outcomes[0], opts.formats)?;
-    }
     let mut members = 0;
     if let Some(cfg) = &s.ensemble {
         let eopts = crate::ensemble::EnsembleOptions { progress: opts.progress, figures: draw, formats: opts.formats };
         let pool = crate::ensemble::pool(opts.threads)?;
-        let e = pool.install(|| crate::ensemble::run_ensemble(s, cfg, &dir, &eopts))?;
+        let e = pool.install(|| crate::ensemble::run_ensemble(s, cfg, &dir, &eopts, &partials.meta))?;
         n_figures += e.figures;
         members = e.members;
+        partials.sensitivity = e.sensitivity;
     }
-    copy_inputs(&dir, s)?;
-    output::write_run_info(&dir, &run_info(s))?;
+    copy_inputs(&dir, full)?;
+    output::write_run_info(&dir, &run_info(full))?;
+    match opts.shard {
+        Some((k, n)) => {
+            // A shard writes its catchments' rows and its partial basin sums; `merge` finishes.
+            let mut summary = CsvOut::create(&dir.join("summary.csv"), &output::summary_header(contaminants))?;
+            for rows in &summary_rows {
+                for r in rows {
+                    summary.row(r.iter().map(String::as_str))?;
+                }
+            }
+            summary.finish()?;
+            crate::shard::write_shard_info(&dir, full, s, k, n, &partials)?;
+        }
+        None => n_figures += finish_basin(&dir, &partials, &summary_rows, opts.formats)?,
+    }
     let out = staging.commit()?;
     Ok(RunOutcome {
         out,
         catchments: s.catchments.len(),
         years: s.horizon_years + 1,
-        strategies: outcomes.iter().map(|o| o.name.clone()).collect(),
+        strategies: partials.meta.strategies.clone(),
         figures: n_figures,
         members,
     })
 }
 
-fn finish_outcome(s: &Scenario, name: &str, summaries: Vec<(CatchmentSummary, ProgrammeTotals)>, mut basin: BasinSeries) -> StrategyOutcome {
-    let basin_catchment = basin.finish(s);
-    let basin_summary = summarise(&basin_catchment, &basin.years, &s.params.contaminants);
-    let basin_totals = ProgrammeTotals::from_years(s.economics.discount_rate, &basin.cost, &basin.water_saved_m3);
-    StrategyOutcome { name: name.to_string(), summaries, basin, basin_catchment, basin_summary, basin_totals }
+/// Writes everything basin-wide from the (possibly merged) partial sums:
+/// `summary.csv` (catchment rows per strategy, each followed by its basin row),
+/// `delay.csv`, the basin rows of `sensitivity.csv` and the basin figures.
+/// Returns the number of figures drawn.
+pub fn finish_basin(dir: &Path, partials: &Partials, summary_rows: &[Vec<Vec<String>>], formats: Formats) -> Result<usize> {
+    let names: Vec<(String, Option<f64>)> = partials.meta.contaminants.clone();
+    let contaminants: Vec<crate::model::Contaminant> = names
+        .iter()
+        .map(|(n, g)| crate::model::Contaminant { name: n.clone(), open_export_kg_per_ha_yr: 0.0, forest_export_kg_per_ha_yr: 0.0, guideline_mg_per_l: *g })
+        .collect();
+    let mut summary = CsvOut::create(&dir.join("summary.csv"), &output::summary_header(&contaminants))?;
+    for (k, rows) in summary_rows.iter().enumerate() {
+        for r in rows {
+            summary.row(r.iter().map(String::as_str))?;
+        }
+        summary.row(partials.summary_row(k).iter().map(String::as_str))?;
+    }
+    summary.finish()?;
+    partials.write_delay(dir)?;
+    partials.append_sensitivity(dir)?;
+    partials.draw_figures(dir, formats)
+}
+
+fn basin_meta(s: &Scenario, figures: bool) -> BasinMeta {
+    let mut strategies = vec![NO_CONTROL.to_string()];
+    strategies.extend(s.strategies.iter().map(|st| st.name.clone()));
+    BasinMeta {
+        title: s.title.clone(),
+        start_year: s.start_year,
+        horizon_years: s.horizon_years,
+        min_runoff_mm: s.params.min_runoff_mm,
+        discount_rate: s.economics.discount_rate,
+        water_value_per_m3: s.economics.water_value_per_m3,
+        contaminants: s.params.contaminants.iter().map(|c| (c.name.clone(), c.guideline_mg_per_l)).collect(),
+        strategies,
+        figures,
+    }
 }
 
 fn write_nodes(nodes: &mut CsvOut, s: &Scenario, strategy: &str, kept: Vec<Option<Vec<YearResult>>>) -> Result<()> {
@@ -340,86 +294,35 @@ fn write_nodes(nodes: &mut CsvOut, s: &Scenario, strategy: &str, kept: Vec<Optio
     Ok(())
 }
 
-fn write_budget(dir: &Path, s: &Scenario, st: &Strategy, rows: &[crate::model::control::BudgetYear]) -> Result<()> {
-    let path = dir.join("budget.csv");
-    let exists = path.exists();
-    let mut text = String::new();
-    if !exists {
-        text.push_str(&output::budget_header().join(","));
-        text.push('\n');
-    }
-    for b in rows {
-        let pool = b.pool.map_or(BASIN_ID, |i| s.catchments[i].id.as_str());
-        text.push_str(&output::budget_fields(&st.name, pool, b).join(","));
-        text.push('\n');
-    }
-    use std::io::Write;
-    let mut f = std::fs::OpenOptions::new()
-        .create(true)
-        .append(true)
-        .open(&path)
-        .map_err(|e| Error::io(format!("writing {}", path.display()), e))?;
-    f.write_all(text.as_bytes()).map_err(|e| Error::io(format!("writing {}", path.display()), e))
-}
-
-/// One row of the cost-of-delay table.
-struct DelayRow {
-    strategy: String,
-    delay_yr: u32,
-    start_year: i32,
-    totals: ProgrammeTotals,
-    water_lost_m3: f64,
-    final_infested_ha: f64,
-}
-
-fn delay_rows(s: &Scenario, climates: &[Vec<crate::model::ClimateYear>], reference: &[Vec<f64>], _nc: &BasinSeries) -> Vec<DelayRow> {
+fn delay_sums(s: &Scenario, climates: &[Vec<crate::model::ClimateYear>], reference: &[Vec<f64>]) -> Vec<DelaySums> {
     let mut rows = Vec::new();
+    let n_years = s.horizon_years + 1;
     for st in &s.strategies {
         for &d in &st.delays_yr {
             let variant = st.delayed(d);
             let run = project_basin(&s.catchments, climates, std::slice::from_ref(&s.params), s.start_year, Some(&variant));
-            let n_years = s.horizon_years + 1;
-            let mut cost = vec![0.0; n_years];
-            let mut saved = vec![0.0; n_years];
-            let mut lost = 0.0;
-            for (i, c) in s.catchments.iter().enumerate() {
-                for t in 0..n_years {
-                    let y = &run.years[i][t];
-                    cost[t] += run.control[i][t].cost();
-                    saved[t] += y.yield_m3 - reference[i][t];
-                    lost += dilution::volume_m3(y.baseline_yield_mm - y.yield_mm, c.area_ha);
-                }
-            }
-            let final_infested_ha = run.years.iter().map(|ys| ys.last().map_or(0.0, |y| y.classes.total_ha())).sum();
-            rows.push(DelayRow {
+            let mut row = DelaySums {
                 strategy: st.name.clone(),
                 delay_yr: d,
                 start_year: variant.start_year,
-                totals: ProgrammeTotals::from_years(s.economics.discount_rate, &cost, &saved),
-                water_lost_m3: lost,
-                final_infested_ha,
-            });
+                cost: vec![Default::default(); n_years],
+                saved: vec![Default::default(); n_years],
+                lost: Default::default(),
+                final_infested_ha: Default::default(),
+            };
+            for (i, c) in s.catchments.iter().enumerate() {
+                for t in 0..n_years {
+                    let y = &run.years[i][t];
+                    row.cost[t].add(run.control[i][t].cost());
+                    row.saved[t].add(y.yield_m3 - reference[i][t]);
+                    row.lost.add(dilution::volume_m3(y.baseline_yield_mm - y.yield_mm, c.area_ha));
+                }
+                row.final_infested_ha.add(run.years[i].last().map_or(0.0, |y| y.classes.total_ha()));
+            }
+            rows.push(row);
         }
     }
     rows
-}
-
-fn write_delay(dir: &Path, rows: &[DelayRow]) -> Result<()> {
-    let mut out = CsvOut::create(&dir.join("delay.csv"), &output::delay_header())?;
-    for r in rows {
-        let f = [
-            r.strategy.clone(),
-            r.delay_yr.to_string(),
-            r.start_year.to_string(),
-            output::num(r.totals.cost, 2),
-            output::num(r.totals.cost_pv, 2),
-            output::num(r.totals.water_saved_m3, 1),
-            output::num(r.water_lost_m3, 1),
-            output::num(r.final_infested_ha, 3),
-        ];
-        out.row(f.iter().map(String::as_str))?;
-    }
-    out.finish()
 }
 
 fn zero_years(start_year: i32, n: usize, k: usize) -> Vec<YearResult> {
@@ -502,7 +405,7 @@ fn copy_inputs(dir: &Path, s: &Scenario) -> Result<()> {
 
 /// Safe file-name stem for a catchment or strategy name.
 pub fn file_stem(id: &str) -> String {
-    id.chars().map(|c| if c.is_ascii_alphanumeric() || c == '-' || c == '_' { c } else { '_' }).collect()
+    crate::io::catchments::file_stem(id)
 }
 
 fn catchment_figures(dir: &Path, s: &Scenario, i: usize, years: &[YearResult], formats: Formats) -> Result<usize> {
@@ -539,89 +442,4 @@ fn catchment_figures(dir: &Path, s: &Scenario, i: usize, years: &[YearResult], f
     };
     save_figure(&cover, &dir.join(format!("{stem}_cover")), formats)?;
     Ok(n + 1)
-}
-
-fn cover_chart(title: String, b: &BasinSeries) -> CoverChart {
-    CoverChart {
-        title,
-        years: b.years.iter().map(|y| y.year as f64).collect(),
-        classes: b.years.iter().map(|y| [y.classes.scattered_ha, y.classes.medium_ha, y.classes.dense_ha]).collect(),
-        vulnerable_ha: b.vulnerable_ha,
-    }
-}
-
-fn basin_cover_figure(dir: &Path, s: &Scenario, nc: &StrategyOutcome, formats: Formats) -> Result<usize> {
-    let chart = cover_chart(format!("{} — infestation, {}", s.title, NO_CONTROL), &nc.basin);
-    save_figure(&chart, &dir.join(format!("basin_{NO_CONTROL}_cover")), formats)?;
-    Ok(1)
-}
-
-fn strategy_figures(dir: &Path, s: &Scenario, outcomes: &[StrategyOutcome], delays: &[DelayRow], formats: Formats) -> Result<usize> {
-    let mut n = 0;
-    // Cumulative cost vs cumulative water saved, basin totals, one line per strategy.
-    let lines: Vec<Line> = outcomes
-        .iter()
-        .skip(1)
-        .enumerate()
-        .map(|(k, o)| {
-            let (mut cc, mut cw) = (0.0, 0.0);
-            let points = o
-                .basin
-                .cost
-                .iter()
-                .zip(&o.basin.water_saved_m3)
-                .map(|(c, w)| {
-                    cc += c;
-                    cw += w;
-                    (cc / 1e6, Some(cw / 1e6))
-                })
-                .collect();
-            Line { label: o.name.clone(), points, colour: palette::series(k), dashed: false }
-        })
-        .collect();
-    let mut chart = LineChart::over_years(
-        format!("{} — what control buys", s.title),
-        "Cumulative water saved (million m³)".into(),
-        lines,
-    );
-    chart.x_label = "Cumulative control cost (million $)".into();
-    chart.x_decimals = 1;
-    chart.legend_at = Corner::LowerRight;
-    save_figure(&chart, &dir.join("strategies_cost_vs_water"), formats)?;
-    n += 1;
-    for o in outcomes.iter().skip(1) {
-        let chart = cover_chart(format!("{} — infestation under {}", s.title, o.name), &o.basin);
-        save_figure(&chart, &dir.join(format!("basin_{}_cover", file_stem(&o.name))), formats)?;
-        n += 1;
-    }
-    for st in &s.strategies {
-        let rows: Vec<&DelayRow> = delays.iter().filter(|r| r.strategy == st.name).collect();
-        if rows.is_empty() {
-            continue;
-        }
-        let line = |label: &str, f: &dyn Fn(&DelayRow) -> f64, k: usize| Line {
-            label: label.into(),
-            points: rows.iter().map(|r| (r.delay_yr as f64, Some(f(r)))).collect(),
-            colour: palette::series(k),
-            dashed: false,
-        };
-        let mut cost = LineChart::over_years(
-            format!("{}: cost of delay", st.name),
-            "Total control cost (million $)".into(),
-            vec![line("Nominal", &|r| r.totals.cost / 1e6, 0), line("Present value", &|r| r.totals.cost_pv / 1e6, 1)],
-        );
-        cost.x_label = "Delay of the start (years)".into();
-        cost.legend_at = Corner::UpperLeft;
-        let mut water = LineChart::over_years(
-            format!("{}: water lost with delay", st.name),
-            "Water lost vs baseline over the horizon (million m³)".into(),
-            vec![line("Water lost (negative: more water than today)", &|r| r.water_lost_m3 / 1e6, 2)],
-        );
-        water.x_label = "Delay of the start (years)".into();
-        water.legend_at = Corner::UpperLeft;
-        water.y_from_zero = false;
-        save_figure(&Panels(vec![cost, water]), &dir.join(format!("delay_{}", file_stem(&st.name))), formats)?;
-        n += 1;
-    }
-    Ok(n)
 }

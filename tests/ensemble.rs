@@ -183,3 +183,64 @@ fn same_seed_gives_identical_bytes_with_one_or_two_threads() {
     let members = std::fs::read_to_string(outputs[0].join("members.csv")).unwrap();
     assert_eq!(members.lines().count() - 1, 6 * 24 * 61 * 4);
 }
+
+fn files_under(dir: &Path) -> Vec<std::path::PathBuf> {
+    let mut out = Vec::new();
+    for e in std::fs::read_dir(dir).unwrap() {
+        let p = e.unwrap().path();
+        if p.is_dir() {
+            out.extend(files_under(&p));
+        } else {
+            out.push(p);
+        }
+    }
+    out.sort();
+    out
+}
+
+#[test]
+fn sharded_and_merged_equals_unsharded_byte_for_byte() {
+    let tmp = tempfile::tempdir().unwrap();
+    let s = scenario_with(tmp.path(), "[ensemble]\nmembers = 12\nseed = 5\nclimate = \"bootstrap\"\nwrite_members = true\n\n", None);
+    // Per-catchment budgets: the only strategies that can be sharded.
+    let text = std::fs::read_to_string(&s).unwrap().replace("budget_per_yr = 150000", "budget_per_yr = 30000\nbudget_scope = \"catchment\"");
+    std::fs::write(&s, text).unwrap();
+    let run = |args: &[&str]| {
+        let o = bin().args(args).output().unwrap();
+        assert!(o.status.success(), "{:?}: {}", args, String::from_utf8_lossy(&o.stderr));
+    };
+    let p = |n: &str| tmp.path().join(n).to_str().unwrap().to_string();
+    run(&["run", s.to_str().unwrap(), "--out", &p("full"), "--quiet", "--figure-format", "png"]);
+    for k in 1..=3 {
+        run(&["run", s.to_str().unwrap(), "--out", &p(&format!("s{k}")), "--shard", &format!("{k}/3"), "--quiet", "--figure-format", "png"]);
+    }
+    run(&["merge", &p("s3"), &p("s1"), &p("s2"), "--out", &p("merged")]);
+    let full = files_under(&tmp.path().join("full"));
+    let merged = files_under(&tmp.path().join("merged"));
+    let rel = |v: &[std::path::PathBuf], root: &str| v.iter().map(|f| f.strip_prefix(tmp.path().join(root)).unwrap().to_path_buf()).collect::<Vec<_>>();
+    assert_eq!(rel(&full, "full"), rel(&merged, "merged"));
+    for (a, b) in full.iter().zip(&merged) {
+        assert!(std::fs::read(a).unwrap() == std::fs::read(b).unwrap(), "{} differs", a.display());
+    }
+    assert!(full.iter().any(|f| f.ends_with("summary.csv")) && full.len() > 40);
+}
+
+#[test]
+fn shared_budgets_cannot_be_sharded_and_incomplete_merges_are_refused() {
+    let tmp = tempfile::tempdir().unwrap();
+    let s = scenario_with(tmp.path(), "[ensemble]\nmembers = 4\n\n", None);
+    let o = bin().args(["run", s.to_str().unwrap(), "--out", tmp.path().join("x").to_str().unwrap(), "--shard", "1/2"]).output().unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("budget_scope = \"catchment\""));
+    let o = bin().args(["run", s.to_str().unwrap(), "--out", "x", "--shard", "3/2"]).output().unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    let text = std::fs::read_to_string(&s).unwrap().replace("budget_per_yr = 150000", "budget_per_yr = 30000\nbudget_scope = \"catchment\"");
+    std::fs::write(&s, text).unwrap();
+    let one = tmp.path().join("s1");
+    let o = bin().args(["run", s.to_str().unwrap(), "--out", one.to_str().unwrap(), "--shard", "1/2", "--figures", "none"]).output().unwrap();
+    assert!(o.status.success());
+    let o = bin().args(["merge", one.to_str().unwrap(), "--out", tmp.path().join("m").to_str().unwrap()]).output().unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("shard 2/2 is missing"));
+    assert!(!tmp.path().join("m").exists());
+}

@@ -28,6 +28,8 @@ pub enum Command {
     Check(run::CheckArgs),
     /// Evaluate the water-balance curve at one point.
     Curve(curve::CurveArgs),
+    /// Combine the output folders of a sharded run (`run --shard K/N`) into one.
+    Merge(run::MergeArgs),
     /// Fit the water-balance curve parameter of gauged catchments to observed annual flows.
     Fit(fit::FitArgs),
     /// Compute reference evapotranspiration (FAO-56) from weather records.
@@ -49,6 +51,7 @@ pub fn main() -> ExitCode {
         Command::Check(a) => run::check(a),
         Command::Curve(a) => curve::run(a),
         Command::Fit(a) => fit::run(a),
+        Command::Merge(a) => run::merge(a),
         Command::Pet(a) => pet::run(a),
     };
     match result {

@@ -26,6 +26,9 @@ pub struct RunArgs {
     /// Worker threads for ensembles (default: one per core). Results do not depend on it.
     #[arg(long, value_name = "N", value_parser = clap::value_parser!(u16).range(1..=1024))]
     pub threads: Option<u16>,
+    /// Run only the K-th of N deterministic slices of the catchments (e.g. 3/8); combine with `merge`.
+    #[arg(long, value_name = "K/N", value_parser = crate::shard::parse_shard)]
+    pub shard: Option<(usize, usize)>,
     /// Print nothing but errors (no progress bar).
     #[arg(long, short)]
     pub quiet: bool,
@@ -53,6 +56,27 @@ pub enum FormatArg {
     PngSvg,
 }
 
+/// Arguments of `merge`.
+#[derive(Debug, clap::Args)]
+pub struct MergeArgs {
+    /// Output folders of `run --shard K/N`, one per shard (any order).
+    #[arg(required = true)]
+    pub shards: Vec<PathBuf>,
+    /// Merged output folder.
+    #[arg(long, value_name = "DIR")]
+    pub out: PathBuf,
+    /// Replace a non-empty output folder that is not a yieldshift output.
+    #[arg(long)]
+    pub force: bool,
+}
+
+/// Runs `yieldshift merge`.
+pub fn merge(a: &MergeArgs) -> anyhow::Result<()> {
+    let m = crate::shard::merge(&a.shards, &a.out, a.force)?;
+    println!("merged {} shards ({} catchments) into {}", m.shards, m.catchments, m.out.display());
+    Ok(())
+}
+
 /// Arguments of `check`.
 #[derive(Debug, clap::Args)]
 pub struct CheckArgs {
@@ -78,6 +102,7 @@ pub fn run(a: &RunArgs) -> anyhow::Result<()> {
         },
         threads: a.threads.map(usize::from),
         progress: !a.quiet,
+        shard: a.shard,
     };
     let outcome = pipeline::run(&scenario, &opts).with_context(|| format!("running {}", a.scenario.display()))?;
     if !a.quiet {

@@ -15,6 +15,7 @@ pub mod cover;
 pub mod dilution;
 pub mod kernel;
 pub mod economics;
+pub mod exact;
 pub mod fit;
 pub mod network;
 pub mod pet;

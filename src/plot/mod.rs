@@ -38,6 +38,23 @@ pub struct Formats {
     pub svg: bool,
 }
 
+impl Formats {
+    /// The formats an existing run folder used (from the files in its `figures/`):
+    /// PNG and/or SVG; both when it has none.
+    pub fn default_from(run_dir: &Path) -> Formats {
+        let names: Vec<String> = std::fs::read_dir(run_dir.join("figures"))
+            .map(|d| d.filter_map(|e| e.ok()).map(|e| e.file_name().to_string_lossy().into_owned()).collect())
+            .unwrap_or_default();
+        let png = names.iter().any(|n| n.ends_with(".png"));
+        let svg = names.iter().any(|n| n.ends_with(".svg"));
+        if png || svg {
+            Formats { png, svg }
+        } else {
+            Formats::default()
+        }
+    }
+}
+
 impl Default for Formats {
     fn default() -> Self {
         Formats { png: true, svg: true }

@@ -1,0 +1,290 @@
+//! Running a basin in shards and merging them: `run --shard K/N` projects the
+//! K-th of N deterministic slices of the catchments; `merge` combines the shard
+//! folders into the same files, byte for byte, that one run writes.
+//!
+//! Slices keep every drainage network whole (a catchment and everything that
+//! flows into or out of it are in one shard) and follow table order. Basin-wide
+//! results are merged from exact partial sums ([`crate::basin_totals`]). A control
+//! strategy whose budget is shared across the basin couples every catchment and
+//! cannot be sharded: such scenarios are refused.
+
+use crate::basin_totals::Partials;
+use crate::error::{Error, Problem, Result};
+use crate::io::outdir::Staging;
+use crate::io::output::CsvOut;
+use crate::io::scenario::Scenario;
+use crate::model::control::Effort;
+use crate::model::network::Network;
+use serde::{Deserialize, Serialize};
+use std::collections::HashMap;
+use std::path::{Path, PathBuf};
+
+/// Name of the file describing a shard.
+pub const SHARD_FILE: &str = "shard.json";
+
+/// Parses `K/N` (1 ≤ K ≤ N).
+pub fn parse_shard(text: &str) -> std::result::Result<(usize, usize), String> {
+    let (k, n) = text.split_once('/').ok_or_else(|| format!("'{text}' is not K/N (e.g. 2/8)"))?;
+    let k: usize = k.trim().parse().map_err(|_| format!("'{k}' is not a whole number"))?;
+    let n: usize = n.trim().parse().map_err(|_| format!("'{n}' is not a whole number"))?;
+    if n == 0 || k == 0 || k > n {
+        return Err(format!("shard {k}/{n}: need 1 ≤ K ≤ N"));
+    }
+    Ok((k, n))
+}
+
+/// Shard (1-based) of every catchment: whole drainage networks, in table order,
+/// balanced by catchment count.
+pub fn assign_shards(s: &Scenario, n: usize) -> Vec<usize> {
+    let c = s.catchments.len();
+    // Union-find over flows_to links.
+    let mut parent: Vec<usize> = (0..c).collect();
+    fn find(p: &mut [usize], i: usize) -> usize {
+        let mut r = i;
+        while p[r] != r {
+            r = p[r];
+        }
+        let mut j = i;
+        while p[j] != r {
+            let next = p[j];
+            p[j] = r;
+            j = next;
+        }
+        r
+    }
+    for i in 0..c {
+        if let Some(d) = s.network.downstream(i) {
+            let (a, b) = (find(&mut parent, i), find(&mut parent, d));
+            if a != b {
+                parent[a.max(b)] = a.min(b);
+            }
+        }
+    }
+    let roots: Vec<usize> = (0..c).map(|i| find(&mut parent, i)).collect();
+    // Components in order of their first catchment; shard from the count before them.
+    let mut first_seen: HashMap<usize, usize> = HashMap::new();
+    let mut before = 0usize;
+    let mut sizes: HashMap<usize, usize> = HashMap::new();
+    for &r in &roots {
+        *sizes.entry(r).or_default() += 1;
+    }
+    let mut shard_of_root: HashMap<usize, usize> = HashMap::new();
+    for &r in &roots {
+        if first_seen.insert(r, before).is_none() {
+            shard_of_root.insert(r, before * n / c.max(1) + 1);
+            before += sizes[&r];
+        }
+    }
+    roots.iter().map(|r| shard_of_root[r]).collect()
+}
+
+/// The scenario restricted to shard `k` of `n`.
+pub fn shard_scenario(full: &Scenario, k: usize, n: usize) -> Result<Scenario> {
+    if k == 0 || k > n {
+        return Err(Error::invalid(Problem::new(format!("shard {k}/{n}: need 1 ≤ K ≤ N")).column("--shard")));
+    }
+    for st in &full.strategies {
+        if !matches!(st.effort, Effort::CatchmentBudget(_)) {
+            return Err(Error::invalid(
+                Problem::in_file(
+                    &full.path,
+                    format!(
+                        "strategy '{}' shares one budget (or area) across the basin, which couples every catchment; \
+                         a sharded run needs budget_scope = \"catchment\" for every strategy",
+                        st.name
+                    ),
+                )
+                .column("--shard"),
+            ));
+        }
+    }
+    let shards = assign_shards(full, n);
+    let keep: Vec<usize> = (0..full.catchments.len()).filter(|&i| shards[i] == k).collect();
+    let new_index: HashMap<usize, usize> = keep.iter().enumerate().map(|(j, &i)| (i, j)).collect();
+    let downstream = keep.iter().map(|&i| full.network.downstream(i).map(|d| new_index[&d])).collect();
+    let network = Network::new(downstream).map_err(|e| Error::Other(format!("shard network: {e:?}")))?;
+    let mut s = full.clone();
+    s.catchments = keep.iter().map(|&i| full.catchments[i].clone()).collect();
+    s.network = network;
+    for st in &mut s.strategies {
+        if let Effort::CatchmentBudget(b) = &st.effort {
+            st.effort = Effort::CatchmentBudget(keep.iter().map(|&i| b[i].clone()).collect());
+        }
+    }
+    Ok(s)
+}
+
+#[derive(Debug, Serialize, Deserialize)]
+struct ShardInfo {
+    tool: String,
+    shard: usize,
+    of: usize,
+    /// Every catchment of the full table, in order (to sort merged rows).
+    table_order: Vec<String>,
+    /// The catchments in this shard.
+    catchments: Vec<String>,
+    partials: Partials,
+}
+
+/// Writes `shard.json` into a shard's output folder.
+pub fn write_shard_info(dir: &Path, full: &Scenario, sub: &Scenario, k: usize, n: usize, partials: &Partials) -> Result<()> {
+    let info = ShardInfo {
+        tool: "yieldshift".into(),
+        shard: k,
+        of: n,
+        table_order: full.catchments.iter().map(|c| c.id.clone()).collect(),
+        catchments: sub.catchments.iter().map(|c| c.id.clone()).collect(),
+        partials: partials.clone(),
+    };
+    let text = serde_json::to_string(&info).map_err(|e| Error::Other(e.to_string()))?;
+    let path = dir.join(SHARD_FILE);
+    std::fs::write(&path, text).map_err(|e| Error::io(format!("writing {}", path.display()), e))
+}
+
+/// What `merge` produced.
+#[derive(Debug, Clone)]
+pub struct MergeOutcome {
+    /// The merged folder.
+    pub out: PathBuf,
+    /// Shards merged.
+    pub shards: usize,
+    /// Catchments in all.
+    pub catchments: usize,
+}
+
+fn read_info(dir: &Path) -> Result<ShardInfo> {
+    let path = dir.join(SHARD_FILE);
+    let text = std::fs::read_to_string(&path)
+        .map_err(|e| Error::invalid(Problem::in_file(&path, format!("cannot read it ({e}); is this the output of `run --shard K/N`?"))))?;
+    serde_json::from_str(&text).map_err(|e| Error::invalid(Problem::in_file(&path, format!("is not a valid shard description: {e}"))))
+}
+
+/// Parsed CSV rows of a file (header, records).
+fn read_rows(path: &Path) -> Result<(Vec<String>, Vec<Vec<String>>)> {
+    let mut r = csv::ReaderBuilder::new()
+        .has_headers(true)
+        .flexible(true)
+        .from_path(path)
+        .map_err(|e| Error::invalid(Problem::in_file(path, format!("cannot read: {e}"))))?;
+    let header = r.headers().map_err(|e| Error::invalid(Problem::in_file(path, e.to_string())))?.iter().map(str::to_string).collect();
+    let mut rows = Vec::new();
+    for rec in r.records() {
+        let rec = rec.map_err(|e| Error::invalid(Problem::in_file(path, e.to_string())))?;
+        rows.push(rec.iter().map(str::to_string).collect());
+    }
+    Ok((header, rows))
+}
+
+/// Merges shard folders into `out`.
+pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> {
+    if dirs.is_empty() {
+        return Err(Error::invalid(Problem::new("give the shard folders to merge")));
+    }
+    let mut infos: Vec<(PathBuf, ShardInfo)> = Vec::new();
+    for d in dirs {
+        infos.push((d.clone(), read_info(d)?));
+    }
+    infos.sort_by_key(|(_, i)| i.shard);
+    let n = infos[0].1.of;
+    let mut problems = Vec::new();
+    for (d, i) in &infos {
+        if i.of != n || i.table_order != infos[0].1.table_order {
+            problems.push(Problem::in_file(&d.join(SHARD_FILE), "belongs to a different sharded run (scenario or N differ)"));
+        }
+    }
+    let have: Vec<usize> = infos.iter().map(|(_, i)| i.shard).collect();
+    for k in 1..=n {
+        match have.iter().filter(|&&h| h == k).count() {
+            0 => problems.push(Problem::new(format!("shard {k}/{n} is missing"))),
+            1 => {}
+            _ => problems.push(Problem::new(format!("shard {k}/{n} is given more than once"))),
+        }
+    }
+    let run_info = std::fs::read(infos[0].0.join(crate::io::outdir::MARKER)).unwrap_or_default();
+    for (d, _) in &infos[1..] {
+        if std::fs::read(d.join(crate::io::outdir::MARKER)).unwrap_or_default() != run_info {
+            problems.push(Problem::in_file(&d.join(crate::io::outdir::MARKER), "differs from the first shard's: shards must come from the same scenario"));
+        }
+    }
+    if !problems.is_empty() {
+        return Err(Error::Invalid(problems));
+    }
+    let mut partials = infos[0].1.partials.clone();
+    for (_, i) in &infos[1..] {
+        partials.merge(&i.partials)?;
+    }
+    let order: HashMap<&str, usize> = infos[0].1.table_order.iter().enumerate().map(|(j, id)| (id.as_str(), j)).collect();
+    let strategies: HashMap<&str, usize> = partials.meta.strategies.iter().enumerate().map(|(j, s)| (s.as_str(), j)).collect();
+    let cat = |id: &str| order.get(id).copied().unwrap_or(usize::MAX);
+    let strat = |name: &str| strategies.get(name).copied().unwrap_or(usize::MAX);
+
+    let staging = Staging::new(out, force)?;
+    let dir = staging.dir().to_path_buf();
+    // Per-catchment tables: concatenate every shard's rows, stable-sorted into single-run order.
+    type Key = fn(&[String], &dyn Fn(&str) -> usize, &dyn Fn(&str) -> usize) -> (usize, usize, usize);
+    let tables: [(&str, Key); 6] = [
+        ("yearly.csv", |r, c, s| (s(&r[1]), c(&r[0]), 0)),
+        ("nodes.csv", |r, c, s| (s(&r[1]), c(&r[0]), 0)),
+        ("budget.csv", |r, c, s| (s(&r[0]), r[2].parse().unwrap_or(0), c(&r[1]))),
+        ("ensemble.csv", |r, c, s| (s(&r[1]), c(&r[0]), 0)),
+        ("members.csv", |r, c, s| (s(&r[1]), c(&r[0]), 0)),
+        ("sensitivity.csv", |r, c, s| (s(&r[1]), c(&r[0]), 0)),
+    ];
+    for (name, key) in tables {
+        if !infos[0].0.join(name).exists() {
+            continue;
+        }
+        let mut header = Vec::new();
+        let mut rows: Vec<Vec<String>> = Vec::new();
+        for (d, _) in &infos {
+            let (h, r) = read_rows(&d.join(name))?;
+            header = h;
+            rows.extend(r);
+        }
+        rows.sort_by_key(|r| key(r, &cat, &strat));
+        let mut w = CsvOut::create(&dir.join(name), &header)?;
+        for r in &rows {
+            w.row(r.iter().map(String::as_str))?;
+        }
+        w.finish()?;
+    }
+    // summary.csv: catchment rows per strategy; finish_basin adds the basin rows.
+    let mut summary: Vec<Vec<String>> = Vec::new();
+    for (d, _) in &infos {
+        summary.extend(read_rows(&d.join("summary.csv"))?.1);
+    }
+    summary.sort_by_key(|r| (strat(&r[2]), cat(&r[0])));
+    let mut grouped: Vec<Vec<Vec<String>>> = vec![Vec::new(); partials.meta.strategies.len()];
+    for r in summary {
+        let k = strat(&r[2]);
+        if k < grouped.len() {
+            grouped[k].push(r);
+        }
+    }
+    // Figures of single catchments, inputs and run_info come from the shards as they are.
+    std::fs::create_dir_all(dir.join("figures")).map_err(|e| Error::io("creating figures/", e))?;
+    for (d, _) in &infos {
+        copy_dir(&d.join("figures"), &dir.join("figures"))?;
+    }
+    copy_dir(&infos[0].0.join("inputs"), &dir.join("inputs"))?;
+    std::fs::write(dir.join(crate::io::outdir::MARKER), &run_info).map_err(|e| Error::io("writing run_info.json", e))?;
+    crate::pipeline::finish_basin(&dir, &partials, &grouped, crate::plot::Formats::default_from(&infos[0].0))?;
+    let catchments = infos.iter().map(|(_, i)| i.catchments.len()).sum();
+    let out = staging.commit()?;
+    Ok(MergeOutcome { out, shards: n, catchments })
+}
+
+fn copy_dir(from: &Path, to: &Path) -> Result<()> {
+    if !from.exists() {
+        return Ok(());
+    }
+    std::fs::create_dir_all(to).map_err(|e| Error::io(format!("creating {}", to.display()), e))?;
+    let entries = std::fs::read_dir(from).map_err(|e| Error::io(format!("reading {}", from.display()), e))?;
+    for e in entries {
+        let e = e.map_err(|e| Error::io(format!("reading {}", from.display()), e))?;
+        if e.path().is_file() {
+            std::fs::copy(e.path(), to.join(e.file_name())).map_err(|err| Error::io(format!("copying {}", e.path().display()), err))?;
+        }
+    }
+    Ok(())
+}
