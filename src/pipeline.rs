@@ -361,6 +361,7 @@ fn run_info(s: &Scenario) -> serde_json::Value {
         "scenario": s.path.display().to_string(),
         "catchment_table": s.catchments_path.display().to_string(),
         "climate_table": s.climate_path.as_ref().map(|p| p.display().to_string()),
+        "pet_from_weather": s.pet_source.as_ref().map(|(p, m)| serde_json::json!({"weather_table": p.display().to_string(), "method": m})),
         "inputs_copied_to": "inputs/",
         "start_year": s.start_year,
         "horizon_years": s.horizon_years,
@@ -395,6 +396,9 @@ fn copy_inputs(dir: &Path, s: &Scenario) -> Result<()> {
     let mut files: Vec<&Path> = vec![&s.path, &s.catchments_path];
     if let Some(c) = &s.climate_path {
         files.push(c);
+    }
+    if let Some((w, _)) = &s.pet_source {
+        files.push(w);
     }
     for f in files {
         let name = f.file_name().map(|n| n.to_os_string()).unwrap_or_default();

@@ -192,3 +192,63 @@ fn curve_json_and_table() {
     assert_eq!(o.status.code(), Some(2));
     assert!(text(&o).contains("--canopy-fraction"));
 }
+
+#[test]
+fn pet_from_weather_feeds_the_projection_and_matches_the_pet_command() {
+    let tmp = tempfile::tempdir().unwrap();
+    let dir = tmp.path();
+    // Invented daily temperatures for 2020–2021 (temperature only: Hargreaves).
+    let mut w = String::from("date,tmax_c,tmin_c\n");
+    for (year, days) in [(2020, 366), (2021, 365)] {
+        for d in 0..days {
+            let month_day = yieldshift_date(year, d);
+            let season = ((d as f64) / days as f64 * std::f64::consts::TAU).cos();
+            w.push_str(&format!("{month_day},{:.1},{:.1}\n", 16.0 + 7.0 * season, 5.0 + 5.0 * season));
+        }
+    }
+    std::fs::write(dir.join("weather.csv"), w).unwrap();
+    std::fs::copy(demo().parent().unwrap().join("catchments.csv"), dir.join("catchments.csv")).unwrap();
+    let s = dir.join("s.toml");
+    std::fs::write(
+        &s,
+        "start_year = 2020\nhorizon_years = 3\ncatchments = \"catchments.csv\"\n\n[climate]\nweather = \"weather.csv\"\nlatitude_deg = -44.1\nelevation_m = 640\nbeyond_record = \"mean\"\n\n\
+         [[contaminant]]\nname = \"nitrate_n\"\nopen_export_kg_per_ha_yr = 2.5\nforest_export_kg_per_ha_yr = 2.2\n\n\
+         [[contaminant]]\nname = \"total_p\"\nopen_export_kg_per_ha_yr = 0.3\nforest_export_kg_per_ha_yr = 0.25\n",
+    )
+    .unwrap();
+    let out = dir.join("res");
+    let o = run(&["run", s.to_str().unwrap(), "--out", out.to_str().unwrap(), "--figures", "none"]);
+    assert!(o.status.success(), "{}", text(&o));
+    let info = std::fs::read_to_string(out.join("run_info.json")).unwrap();
+    assert!(info.contains("\"method\": \"hargreaves\""), "{info}");
+    let o = run(&["pet", dir.join("weather.csv").to_str().unwrap(), "--out", dir.join("pet.csv").to_str().unwrap(), "--latitude-deg", "-44.1", "--elevation-m", "640"]);
+    assert!(o.status.success(), "{}", text(&o));
+    let annual = std::fs::read_to_string(dir.join("pet_annual.csv")).unwrap();
+    let pet2021: f64 = annual.lines().find(|l| l.contains(",2021,")).unwrap().split(',').nth(2).unwrap().parse().unwrap();
+    let yearly = std::fs::read_to_string(out.join("yearly.csv")).unwrap();
+    let row = yearly.lines().find(|l| l.starts_with("scree,no-control,2021,")).unwrap();
+    let used: f64 = row.split(',').nth(4).unwrap().parse().unwrap();
+    assert!((used - pet2021).abs() < 0.051, "projection PET {used} vs pet command {pet2021}");
+    // 2023 is beyond the weather record: the catchment's long-term mean (800 mm for scree).
+    let row = yearly.lines().find(|l| l.starts_with("scree,no-control,2023,")).unwrap();
+    assert_eq!(row.split(',').nth(4).unwrap(), "800.0");
+    // A gap that cannot be filled is refused, naming the year.
+    let w = std::fs::read_to_string(dir.join("weather.csv")).unwrap();
+    let cut: String = w.lines().enumerate().filter(|(i, _)| !(100..130).contains(i)).map(|(_, l)| format!("{l}\n")).collect();
+    std::fs::write(dir.join("weather.csv"), cut).unwrap();
+    let o = run(&["check", s.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(text(&o).contains("2020") && text(&o).contains("weather.csv"), "{}", text(&o));
+}
+
+/// YYYY-MM-DD of day `d` (0-based) of `year`.
+fn yieldshift_date(year: i32, d: usize) -> String {
+    let leap = year % 4 == 0 && (year % 100 != 0 || year % 400 == 0);
+    let lens = [31, if leap { 29 } else { 28 }, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
+    let (mut m, mut rem) = (0, d);
+    while rem >= lens[m] {
+        rem -= lens[m];
+        m += 1;
+    }
+    format!("{year}-{:02}-{:02}", m + 1, rem + 1)
+}

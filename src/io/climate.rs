@@ -61,6 +61,32 @@ impl ClimateTable {
         v
     }
 
+    /// Replaces (or adds) PET of the given `(catchment, year, pet_mm)` records,
+    /// keeping each catchment's rainfall; years between records stay at the means.
+    pub fn with_pet(self, records: &[(String, i32, f64)]) -> ClimateTable {
+        use std::collections::BTreeMap;
+        let mut by_id: HashMap<String, BTreeMap<i32, (Option<f64>, Option<f64>)>> = HashMap::new();
+        for (id, (first, vals)) in self.series {
+            let m = by_id.entry(id).or_default();
+            for (t, v) in vals.into_iter().enumerate() {
+                m.insert(first + t as i32, v);
+            }
+        }
+        for (id, year, pet) in records {
+            by_id.entry(id.clone()).or_default().entry(*year).or_insert((None, None)).1 = Some(*pet);
+        }
+        let series = by_id
+            .into_iter()
+            .filter_map(|(id, m)| {
+                let first = *m.keys().next()?;
+                let last = *m.keys().next_back()?;
+                let vals = (first..=last).map(|y| m.get(&y).copied().unwrap_or((None, None))).collect();
+                Some((id, (first, vals)))
+            })
+            .collect();
+        ClimateTable { series }
+    }
+
     /// Builds a table from in-memory records `(catchment, first year, [(rain, pet)])`.
     pub fn from_series(series: Vec<(String, i32, Vec<(Option<f64>, Option<f64>)>)>) -> ClimateTable {
         ClimateTable { series: series.into_iter().map(|(id, f, v)| (id, (f, v))).collect() }

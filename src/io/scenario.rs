@@ -57,6 +57,8 @@ pub struct Scenario {
     pub pet_scale: f64,
     /// Parameters given as distributions.
     pub uncertain: Vec<UncertainParam>,
+    /// When PET comes from a weather table (`[climate] weather`): the file and the FAO-56 method used.
+    pub pet_source: Option<(PathBuf, String)>,
     /// Ensemble settings (`[ensemble]`), if any.
     pub ensemble: Option<EnsembleConfig>,
 }
@@ -177,6 +179,41 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
         },
         _ => None,
     };
+    let mut pet_source = None;
+    let mut climate = climate;
+    if let (Some(w), false) = (&raw.weather, catchments.is_empty()) {
+        match crate::io::weather::compute_pet_file(&w.path, &w.site, w.choice) {
+            Err(e) => problems.extend(e.problems().iter().cloned().map(|p| p.or_file(&w.path))),
+            Ok(out) => {
+                let ids: Vec<&str> = catchments.iter().map(|c| c.id.as_str()).collect();
+                let mut records = Vec::new();
+                for a in &out.annual {
+                    if a.status == crate::io::weather::STATUS_INCOMPLETE {
+                        problems.push(Problem::in_file(
+                            &w.path,
+                            format!(
+                                "{}{}: {} of the year's days have no weather; fill the gaps or remove the year (never summed short)",
+                                a.catchment.as_deref().map(|c| format!("catchment '{c}', ")).unwrap_or_default(),
+                                a.year,
+                                a.missing_days
+                            ),
+                        ));
+                        continue;
+                    }
+                    match &a.catchment {
+                        Some(id) if ids.contains(&id.as_str()) => records.push((id.clone(), a.year, a.pet_mm)),
+                        Some(id) => problems.push(
+                            Problem::in_file(&w.path, format!("'{id}' is not a catchment of the scenario{}", crate::io::table::suggestion(id, &ids)))
+                                .column("catchment"),
+                        ),
+                        None => records.extend(ids.iter().map(|id| (id.to_string(), a.year, a.pet_mm))),
+                    }
+                }
+                climate = Some(climate.unwrap_or_default().with_pet(&records));
+                pet_source = Some((w.path.clone(), out.method.name().to_string()));
+            }
+        }
+    }
     if let (Some(table), BeyondRecord::Error) = (&climate, raw.beyond_record) {
         let last = raw.start_year + raw.horizon_years as i32;
         for (id, first, end) in table.coverage() {
@@ -229,6 +266,7 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
         pet_scale: raw.pet_scale,
         uncertain: raw.uncertain,
         ensemble: raw.ensemble,
+        pet_source,
     })
 }
 
@@ -248,6 +286,14 @@ struct RawScenario {
     pet_scale: f64,
     ensemble: Option<EnsembleConfig>,
     uncertain: Vec<UncertainParam>,
+    weather: Option<WeatherSpec>,
+}
+
+/// `[climate] weather`: PET computed from a weather table.
+struct WeatherSpec {
+    path: PathBuf,
+    site: crate::io::weather::SiteMeta,
+    choice: crate::io::weather::PetMethodChoice,
 }
 
 /// A `[[calibration]]` entry: fitted curve parameters for one catchment, or a donor.
@@ -349,7 +395,7 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
     let horizon_years = root.int_in("horizon_years", None, 1, 300, "years") as usize;
     let catchments_path = base.join(root.string("catchments", None).unwrap_or_default());
 
-    let (climate_path, beyond_record, (rain_scale, pet_scale)) = match root.section("climate") {
+    let (climate_path, beyond_record, (rain_scale, pet_scale), weather) = match root.section("climate") {
         Some(s) => {
             let p = s.opt_string("table").map(|t| base.join(t));
             let b = match s.choice("beyond_record", "cycle", &["cycle", "mean", "error"]).as_str() {
@@ -358,10 +404,22 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
                 _ => BeyondRecord::Cycle,
             };
             let scales = (s.param("rain_scale", Some(1.0), 0.1, 3.0, ""), s.param("pet_scale", Some(1.0), 0.1, 3.0, ""));
+            let weather = s.opt_string("weather").map(|w| {
+                let lat = s.f64_in("latitude_deg", None, -90.0, 90.0, "degrees (south negative)");
+                let elev = s.f64_in("elevation_m", None, -500.0, 9000.0, "m");
+                let mut site = crate::io::weather::SiteMeta::new(lat, elev);
+                site.wind_height_m = s.f64_in("wind_height_m", Some(2.0), 0.5, 100.0, "m");
+                let method = s.choice("pet_method", "auto", &["auto", "penman-monteith", "hargreaves", "priestley-taylor"]);
+                let choice = method.parse().unwrap_or_default();
+                WeatherSpec { path: base.join(w), site, choice }
+            });
+            if weather.is_none() {
+                let _ = (s.get("latitude_deg"), s.get("elevation_m"), s.get("wind_height_m"), s.get("pet_method"));
+            }
             s.finish();
-            (p, b, scales)
+            (p, b, scales, weather)
         }
-        None => (None, BeyondRecord::Cycle, (1.0, 1.0)),
+        None => (None, BeyondRecord::Cycle, (1.0, 1.0), None),
     };
     let ensemble = root.section("ensemble").map(|s| {
         let e = read_ensemble(&s);
@@ -411,6 +469,7 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
         pet_scale,
         ensemble,
         uncertain: Vec::new(),
+        weather,
     }
 }
 
