@@ -244,7 +244,7 @@ fn network_sums_conserve_mass() {
         })
         .collect();
     let net = Network::new(vec![Some(2), Some(2), Some(3), None]).unwrap();
-    let proj: Vec<_> = cs.iter().map(|c| project_catchment(c, &vec![c.mean_climate(); 11], &p, 2030)).collect();
+    let proj: Vec<_> = cs.iter().map(|c| project_catchment(c, &[c.mean_climate(); 11], &p, 2030)).collect();
     let nodes = node_totals(&net, &cs, &proj, 1, 1.0);
     assert_eq!(nodes.iter().map(|n| n.0).collect::<Vec<_>>(), vec![2, 3]);
     let outlet = &nodes[1].1;

@@ -120,7 +120,7 @@ pub fn project_basin(
                 let fu_cost: Vec<f64> =
                     members.iter().map(|&i| st.follow_up_cost_per_ha * states[i].tracked.iter().map(|r| r.cleared_ha).sum::<f64>()).collect();
                 let fu_total: f64 = fu_cost.iter().sum();
-                let paid_frac = if fu_total <= 0.0 { 1.0 } else if by_area { 1.0 } else { (left / fu_total).min(1.0) };
+                let paid_frac = if fu_total <= 0.0 || by_area { 1.0 } else { (left / fu_total).min(1.0) };
                 for (k, &i) in members.iter().enumerate() {
                     control[i][t].follow_up_cost = fu_cost[k] * paid_frac;
                     suppressed[i] = paid_frac;
