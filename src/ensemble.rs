@@ -151,6 +151,29 @@ pub fn apply_param(s: &Scenario, path: &str, v: f64, m: &mut MemberSetup) {
     }
 }
 
+/// The catchment as member `m` sees it: calibrated curve parameters given as
+/// distributions in `[[calibration]]` take that member's draw.
+fn member_catchment(s: &Scenario, i: usize, draws: &[Vec<f64>], m: usize) -> Option<crate::model::Catchment> {
+    let c = &s.catchments[i];
+    let entry = &s.calibration_links.iter().find(|(id, _)| *id == c.id)?.1;
+    let mut out: Option<crate::model::Catchment> = None;
+    for (u, d) in s.uncertain.iter().zip(draws) {
+        let Some(key) = u.path.strip_prefix(entry.as_str()).and_then(|k| k.strip_prefix('.')) else { continue };
+        let cm = out.get_or_insert_with(|| c.clone());
+        let v = d[m];
+        if let Some(curves) = cm.curves.as_mut() {
+            match (curves, key) {
+                (CoverCurves::Zhang { w_grass, .. }, "w_grass") => *w_grass = v,
+                (CoverCurves::Zhang { w_forest, .. }, "w_forest") => *w_forest = v,
+                (CoverCurves::Fu { omega_grass, .. }, "omega_grass") => *omega_grass = v,
+                (CoverCurves::Fu { omega_forest, .. }, "omega_forest") => *omega_forest = v,
+                _ => {}
+            }
+        }
+    }
+    out
+}
+
 /// Drawn values `[parameter][member]` for one catchment (shared parameters take the
 /// basin draw, per-catchment ones this catchment's own).
 fn draws_for(s: &Scenario, cfg: &EnsembleConfig, shared: &[Option<Vec<f64>>], catchment_id: &str) -> Vec<Vec<f64>> {
@@ -433,7 +456,10 @@ pub fn run_ensemble(
                     (0..s.catchments.len()).map(|i| member_series(s, &climates, i, m, setups[i].rain_scale, setups[i].pet_scale)).collect();
                 // The programme's costs come from the basin-shared draws (first catchment's setup).
                 let strategy = &setups.first().map(|x| x.strategies[si].clone()).unwrap_or_else(|| st.clone());
-                let run = project_basin(&s.catchments, &climates_m, &params, s.start_year, Some(strategy));
+                let catchments_m: Vec<crate::model::Catchment> = (0..s.catchments.len())
+                    .map(|i| member_catchment(s, i, &draws[i], 0).unwrap_or_else(|| s.catchments[i].clone()))
+                    .collect();
+                let run = project_basin(&catchments_m, &climates_m, &params, s.start_year, Some(strategy));
                 bar.inc(1);
                 // values[catchment][var][year]
                 let vals: Vec<Vec<Vec<f64>>> = run
@@ -539,7 +565,8 @@ fn no_control_catchment(
             apply_param(s, &u.path, d[m], &mut setup);
         }
         let climate = member_series(s, climates, i, m, setup.rain_scale, setup.pet_scale);
-        project_lean(c, &climate, &setup.params, &mut lean);
+        let calibrated = member_catchment(s, i, &draws, m);
+        project_lean(calibrated.as_ref().unwrap_or(c), &climate, &setup.params, &mut lean);
         for t in 0..n_years {
             mv.vars[0][t][m] = lean.yield_mm[t];
             mv.vars[1][t][m] = lean.change_pct(t).unwrap_or(f64::NAN);

@@ -471,6 +471,16 @@ pub fn calibration_toml(
                 f.fit.series.value,
                 if f.fit.series.window_yr > 1 { format!(" ({}-year moving average)", f.fit.series.window_yr) } else { String::new() }
             );
+            if iv.low < f.fit.mean.value && f.fit.mean.value < iv.high {
+                let _ = writeln!(
+                    t,
+                    "# for ensembles, the interval as a distribution (replace the line above):\n# {} = {{ dist = \"pert\", min = {}, mode = {}, max = {} }}",
+                    f.fit.key,
+                    toml_float(iv.low),
+                    toml_float(f.fit.mean.value),
+                    toml_float(iv.high)
+                );
+            }
         } else {
             let _ = writeln!(t, "# annual-series fit {:.4}", f.fit.series.value);
         }

@@ -244,3 +244,35 @@ fn shared_budgets_cannot_be_sharded_and_incomplete_merges_are_refused() {
     assert!(String::from_utf8_lossy(&o.stderr).contains("shard 2/2 is missing"));
     assert!(!tmp.path().join("m").exists());
 }
+
+#[test]
+fn calibrated_values_given_as_distributions_vary_only_their_catchments() {
+    let tmp = tempfile::tempdir().unwrap();
+    let dir = tmp.path();
+    std::fs::write(
+        dir.join("c.csv"),
+        "id,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha\n\
+         a,100,1000,800,80,5,5,5\nb,100,1000,800,80,5,5,5\nc,100,1000,800,80,5,5,5\n",
+    )
+    .unwrap();
+    std::fs::write(
+        dir.join("s.toml"),
+        "start_year = 2027\nhorizon_years = 25\ncatchments = \"c.csv\"\n\n[ensemble]\nmembers = 16\n\n\
+         [[calibration]]\ncatchment = \"a\"\nw_grass = { dist = \"pert\", min = 0.4, mode = 0.6, max = 0.9 }\n\n\
+         [[calibration]]\ncatchment = \"c\"\ndonor = \"a\"\n",
+    )
+    .unwrap();
+    let out = dir.join("res");
+    let o = bin().args(["run", dir.join("s.toml").to_str().unwrap(), "--out", out.to_str().unwrap(), "--figures", "none"]).output().unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let ens = std::fs::read_to_string(out.join("ensemble.csv")).unwrap();
+    let band = |id: &str| -> Vec<String> {
+        let row = ens.lines().find(|l| l.starts_with(&format!("{id},no-control,2040,yield_mm,"))).unwrap();
+        row.split(',').skip(4).take(5).map(str::to_string).collect()
+    };
+    assert_ne!(band("a")[0], band("a")[4], "a's calibrated w_grass is uncertain");
+    assert_eq!(band("a"), band("c"), "c takes its donor's draws");
+    assert_eq!(band("b")[0], band("b")[4], "b is not calibrated and nothing else is uncertain");
+    let sens = std::fs::read_to_string(out.join("sensitivity.csv")).unwrap();
+    assert!(sens.lines().any(|l| l.starts_with("a,no-control,horizon,") && l.contains("calibration[1].w_grass")), "{sens}");
+}

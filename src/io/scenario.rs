@@ -57,6 +57,9 @@ pub struct Scenario {
     pub pet_scale: f64,
     /// Parameters given as distributions.
     pub uncertain: Vec<UncertainParam>,
+    /// `(catchment id, calibration entry path)`: which `[[calibration]]` entry sets each
+    /// calibrated catchment's curves (its own, or its donor's).
+    pub calibration_links: Vec<(String, String)>,
     /// When PET comes from a weather table (`[climate] weather`): the file and the FAO-56 method used.
     pub pet_source: Option<(PathBuf, String)>,
     /// Ensemble settings (`[ensemble]`), if any.
@@ -155,8 +158,9 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
             (Vec::new(), Vec::new())
         }
     };
+    let mut calibration_links = Vec::new();
     if !catchments.is_empty() {
-        problems.extend(apply_calibration(&raw.calibration, &raw.params, &mut catchments));
+        problems.extend(apply_calibration(&raw.calibration, &raw.params, &mut catchments, &mut calibration_links));
     }
     let network = if catchments.is_empty() {
         None
@@ -267,6 +271,7 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
         uncertain: raw.uncertain,
         ensemble: raw.ensemble,
         pet_source,
+        calibration_links,
     })
 }
 
@@ -307,6 +312,8 @@ struct RawCalibration {
     /// Located problem templates for the `catchment` and `donor` keys.
     at_catchment: Problem,
     at_donor: Problem,
+    /// Key path of the entry (`calibration[2]`), naming its uncertain values.
+    path: String,
 }
 
 fn read_calibration(root: &Section<'_>) -> Vec<RawCalibration> {
@@ -315,14 +322,16 @@ fn read_calibration(root: &Section<'_>) -> Vec<RawCalibration> {
         .map(|s| {
             let r = RawCalibration {
                 catchment: s.string("catchment", None).unwrap_or_default(),
-                w_forest: s.opt_f64_in("w_forest", 0.01, 20.0, ""),
-                w_grass: s.opt_f64_in("w_grass", 0.01, 20.0, ""),
-                omega_forest: s.opt_f64_in("omega_forest", 1.01, 20.0, ""),
-                omega_grass: s.opt_f64_in("omega_grass", 1.01, 20.0, ""),
+                w_forest: s.has("w_forest").then(|| s.param("w_forest", Some(2.0), 0.01, 20.0, "")),
+                w_grass: s.has("w_grass").then(|| s.param("w_grass", Some(0.5), 0.01, 20.0, "")),
+                omega_forest: s.has("omega_forest").then(|| s.param("omega_forest", Some(2.97), 1.01, 20.0, "")),
+                omega_grass: s.has("omega_grass").then(|| s.param("omega_grass", Some(2.16), 1.01, 20.0, "")),
                 donor: s.opt_string("donor"),
                 at_catchment: s.problem("catchment", ""),
                 at_donor: s.problem("donor", ""),
+                path: s.path.clone(),
             };
+            let _ = (s.get("w_forest"), s.get("w_grass"), s.get("omega_forest"), s.get("omega_grass"));
             let n_values = [r.w_forest, r.w_grass, r.omega_forest, r.omega_grass].iter().filter(|v| v.is_some()).count();
             if r.donor.is_some() && n_values > 0 {
                 s.push("donor", "give either fitted values or a donor catchment, not both");
@@ -336,7 +345,7 @@ fn read_calibration(root: &Section<'_>) -> Vec<RawCalibration> {
 }
 
 /// Applies `[[calibration]]` entries to the catchments (per-catchment curve parameters).
-fn apply_calibration(cal: &[RawCalibration], params: &ModelParams, catchments: &mut [Catchment]) -> Vec<Problem> {
+fn apply_calibration(cal: &[RawCalibration], params: &ModelParams, catchments: &mut [Catchment], links: &mut Vec<(String, String)>) -> Vec<Problem> {
     let mut problems = Vec::new();
     let ids: Vec<&str> = catchments.iter().map(|c| c.id.as_str()).collect();
     let index = |id: &str| ids.iter().position(|&x| x == id);
@@ -365,6 +374,9 @@ fn apply_calibration(cal: &[RawCalibration], params: &ModelParams, catchments: &
             }
         });
     }
+    for r in cal.iter().filter(|r| r.donor.is_none()) {
+        links.push((r.catchment.clone(), r.path.clone()));
+    }
     let mut applied = fitted.clone();
     for r in cal.iter() {
         let Some(donor) = &r.donor else { continue };
@@ -375,7 +387,12 @@ fn apply_calibration(cal: &[RawCalibration], params: &ModelParams, catchments: &
         match index(donor) {
             None => problems.push(with_msg(&r.at_donor, format!("donor '{donor}' is not a catchment of the scenario{}", crate::io::table::suggestion(donor, &ids)))),
             Some(j) => match fitted[j] {
-                Some(c) => applied[i] = Some(c),
+                Some(c) => {
+                    applied[i] = Some(c);
+                    if let Some(entry) = cal.iter().find(|e| e.donor.is_none() && e.catchment == *donor) {
+                        links.push((r.catchment.clone(), entry.path.clone()));
+                    }
+                }
                 None => problems.push(with_msg(&r.at_donor, format!("donor '{donor}' has no fitted values of its own in [[calibration]]"))),
             },
         }
