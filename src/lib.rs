@@ -23,6 +23,7 @@ pub mod ensemble;
 pub mod basin_totals;
 pub mod error;
 pub mod fit_run;
+pub mod gis;
 pub mod io;
 pub mod model;
 pub mod pipeline;

@@ -221,9 +221,14 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
                 }
             }
             summary.finish()?;
-            crate::shard::write_shard_info(&dir, full, s, k, n, &partials)?;
+            crate::shard::write_shard_info(&dir, full, s, k, n, &partials, opts.figures != FigureChoice::None)?;
         }
-        None => n_figures += finish_basin(&dir, &partials, &summary_rows, opts.formats)?,
+        None => {
+            n_figures += finish_basin(&dir, &partials, &summary_rows, opts.formats)?;
+            if let Some(g) = &full.gis {
+                n_figures += gis_outputs(&dir, &g.boundaries, opts.figures != FigureChoice::None, opts.formats)?;
+            }
+        }
     }
     let out = staging.commit()?;
     Ok(RunOutcome {
@@ -257,6 +262,16 @@ pub fn finish_basin(dir: &Path, partials: &Partials, summary_rows: &[Vec<Vec<Str
     partials.write_delay(dir)?;
     partials.append_sensitivity(dir)?;
     partials.draw_figures(dir, formats)
+}
+
+/// Writes `catchments.geojson` (results on the boundaries) and, when `maps`, the map figures.
+pub fn gis_outputs(dir: &Path, b: &crate::gis::Boundaries, maps: bool, formats: Formats) -> Result<usize> {
+    crate::gis::write_results_geojson(dir, b)?;
+    if maps {
+        crate::gis::draw_maps(dir, b, formats)
+    } else {
+        Ok(0)
+    }
 }
 
 fn basin_meta(s: &Scenario, figures: bool) -> BasinMeta {
@@ -361,6 +376,12 @@ fn run_info(s: &Scenario) -> serde_json::Value {
         "scenario": s.path.display().to_string(),
         "catchment_table": s.catchments_path.display().to_string(),
         "climate_table": s.climate_path.as_ref().map(|p| p.display().to_string()),
+        "gis": s.gis.as_ref().map(|g| serde_json::json!({
+            "boundaries": g.boundaries.path().file_name().map(|n| n.to_string_lossy().into_owned()),
+            "id_property": g.boundaries.id_property(),
+            "area_tolerance": g.area_tolerance,
+            "area_from_geometry": g.area_from_geometry,
+        })),
         "pet_from_weather": s.pet_source.as_ref().map(|(p, m)| serde_json::json!({"weather_table": p.display().to_string(), "method": m})),
         "inputs_copied_to": "inputs/",
         "start_year": s.start_year,
@@ -399,6 +420,9 @@ fn copy_inputs(dir: &Path, s: &Scenario) -> Result<()> {
     }
     if let Some((w, _)) = &s.pet_source {
         files.push(w);
+    }
+    if let Some(g) = &s.gis {
+        files.push(g.boundaries.path());
     }
     for f in files {
         let name = f.file_name().map(|n| n.to_os_string()).unwrap_or_default();

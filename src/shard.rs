@@ -123,17 +123,21 @@ struct ShardInfo {
     table_order: Vec<String>,
     /// The catchments in this shard.
     catchments: Vec<String>,
+    /// Whether the run draws figures (maps are drawn at merge time).
+    #[serde(default)]
+    figures: bool,
     partials: Partials,
 }
 
 /// Writes `shard.json` into a shard's output folder.
-pub fn write_shard_info(dir: &Path, full: &Scenario, sub: &Scenario, k: usize, n: usize, partials: &Partials) -> Result<()> {
+pub fn write_shard_info(dir: &Path, full: &Scenario, sub: &Scenario, k: usize, n: usize, partials: &Partials, figures: bool) -> Result<()> {
     let info = ShardInfo {
         tool: "yieldshift".into(),
         shard: k,
         of: n,
         table_order: full.catchments.iter().map(|c| c.id.clone()).collect(),
         catchments: sub.catchments.iter().map(|c| c.id.clone()).collect(),
+        figures,
         partials: partials.clone(),
     };
     let text = serde_json::to_string(&info).map_err(|e| Error::Other(e.to_string()))?;
@@ -268,7 +272,15 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
     }
     copy_dir(&infos[0].0.join("inputs"), &dir.join("inputs"))?;
     std::fs::write(dir.join(crate::io::outdir::MARKER), &run_info).map_err(|e| Error::io("writing run_info.json", e))?;
-    crate::pipeline::finish_basin(&dir, &partials, &grouped, crate::plot::Formats::default_from(&infos[0].0))?;
+    let formats = crate::plot::Formats::default_from(&infos[0].0);
+    crate::pipeline::finish_basin(&dir, &partials, &grouped, formats)?;
+    // Boundaries, when the run had them: re-read from inputs/ and write the GIS outputs.
+    let info: serde_json::Value = serde_json::from_slice(&run_info).unwrap_or_default();
+    if let (Some(file), Some(idp)) = (info["gis"]["boundaries"].as_str(), info["gis"]["id_property"].as_str()) {
+        let ids: Vec<&str> = infos[0].1.table_order.iter().map(String::as_str).collect();
+        let b = crate::gis::read_boundaries(&dir.join("inputs").join(file), idp, &ids).map_err(Error::Invalid)?;
+        crate::pipeline::gis_outputs(&dir, &b, infos[0].1.figures, formats)?;
+    }
     let catchments = infos.iter().map(|(_, i)| i.catchments.len()).sum();
     let out = staging.commit()?;
     Ok(MergeOutcome { out, shards: n, catchments })

@@ -79,7 +79,7 @@ fn demo_run_writes_every_output() {
         .collect();
     let per_catchment = pngs
         .iter()
-        .filter(|p| !["basin_", "strategies_", "delay_"].iter().any(|pre| p.file_name().unwrap().to_string_lossy().starts_with(pre)))
+        .filter(|p| !["basin_", "strategies_", "delay_", "map_"].iter().any(|pre| p.file_name().unwrap().to_string_lossy().starts_with(pre)))
         .filter(|p| !["_yield_bands.png", "_sensitivity.png"].iter().any(|suf| p.file_name().unwrap().to_string_lossy().ends_with(suf)))
         .count();
     for id in ["scree", "tussock-flat", "mistle", "cairn", "greywacke", "ardmere-lower"] {
@@ -251,4 +251,35 @@ fn yieldshift_date(year: i32, d: usize) -> String {
         m += 1;
     }
     format!("{year}-{:02}-{:02}", m + 1, rem + 1)
+}
+
+#[test]
+fn boundaries_in_and_results_out_and_bad_geojson_exits_2() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("res");
+    let o = run(&["run", demo().to_str().unwrap(), "--out", out.to_str().unwrap(), "--figure-format", "png"]);
+    assert!(o.status.success(), "{}", text(&o));
+    let g: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("catchments.geojson")).unwrap()).unwrap();
+    assert_eq!(g["type"], "FeatureCollection");
+    assert_eq!(g["features"].as_array().unwrap().len(), 6);
+    for m in ["map_yield_change_20y.png", "map_yield_change_horizon.png", "map_yield_change_horizon_contain-early.png"] {
+        assert!(out.join("figures").join(m).exists(), "{m}");
+    }
+    assert!(out.join("inputs").join("catchments.geojson").exists());
+
+    // An unclosed ring in the first feature is refused, naming the feature.
+    let dir = tmp.path().join("bad");
+    std::fs::create_dir(&dir).unwrap();
+    let demo_dir = demo().parent().unwrap().to_path_buf();
+    for f in ["catchments.csv", "climate.csv", "scenario.toml"] {
+        std::fs::copy(demo_dir.join(f), dir.join(f)).unwrap();
+    }
+    let mut gj: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(demo_dir.join("catchments.geojson")).unwrap()).unwrap();
+    let ring = gj["features"][0]["geometry"]["coordinates"][0].as_array_mut().unwrap();
+    ring.pop();
+    std::fs::write(dir.join("catchments.geojson"), serde_json::to_string_pretty(&gj).unwrap()).unwrap();
+    let o = run(&["check", dir.join("scenario.toml").to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    let t = text(&o);
+    assert!(t.contains("catchments.geojson") && t.contains("feature 1"), "{t}");
 }

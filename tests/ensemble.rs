@@ -93,7 +93,7 @@ fn demo_dir() -> std::path::PathBuf {
 }
 
 fn scenario_with(dir: &Path, extra: &str, replace_spread: Option<&str>) -> std::path::PathBuf {
-    for f in ["catchments.csv", "climate.csv"] {
+    for f in ["catchments.csv", "climate.csv", "catchments.geojson"] {
         std::fs::copy(demo_dir().join(f), dir.join(f)).unwrap();
     }
     let mut text = std::fs::read_to_string(demo_dir().join("scenario.toml")).unwrap();

@@ -87,6 +87,9 @@ pub struct CheckArgs {
 /// Runs `yieldshift run`.
 pub fn run(a: &RunArgs) -> anyhow::Result<()> {
     let scenario = load_scenario(&a.scenario)?;
+    for w in &scenario.warnings {
+        eprintln!("warning: {w}");
+    }
     let opts = RunOptions {
         out: a.out.clone(),
         force: a.force,
@@ -127,6 +130,9 @@ pub fn run(a: &RunArgs) -> anyhow::Result<()> {
 /// Runs `yieldshift check`.
 pub fn check(a: &CheckArgs) -> anyhow::Result<()> {
     let s = load_scenario(&a.scenario)?;
+    for w in &s.warnings {
+        eprintln!("warning: {w}");
+    }
     println!(
         "{}: valid — {} catchments, {} contaminants, {}–{}, method {}{}",
         a.scenario.display(),

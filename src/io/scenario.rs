@@ -60,10 +60,25 @@ pub struct Scenario {
     /// `(catchment id, calibration entry path)`: which `[[calibration]]` entry sets each
     /// calibrated catchment's curves (its own, or its donor's).
     pub calibration_links: Vec<(String, String)>,
+    /// Catchment boundaries (`[gis]`), if given.
+    pub gis: Option<GisInputs>,
+    /// Warnings found while loading (e.g. boundary areas that differ from the table).
+    pub warnings: Vec<String>,
     /// When PET comes from a weather table (`[climate] weather`): the file and the FAO-56 method used.
     pub pet_source: Option<(PathBuf, String)>,
     /// Ensemble settings (`[ensemble]`), if any.
     pub ensemble: Option<EnsembleConfig>,
+}
+
+/// `[gis]` settings and the boundaries read.
+#[derive(Debug, Clone)]
+pub struct GisInputs {
+    /// The boundaries.
+    pub boundaries: crate::gis::Boundaries,
+    /// Relative area difference above which a warning is given.
+    pub area_tolerance: f64,
+    /// Catchment areas were taken from the geometry.
+    pub area_from_geometry: bool,
 }
 
 /// How an ensemble varies the climate between members.
@@ -158,6 +173,47 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
             (Vec::new(), Vec::new())
         }
     };
+    let mut warnings = Vec::new();
+    let mut gis = None;
+    if let (Some(g), false) = (&raw.gis, catchments.is_empty()) {
+        let ids: Vec<&str> = catchments.iter().map(|c| c.id.as_str()).collect();
+        match crate::gis::read_boundaries(&g.path, &g.id_property, &ids) {
+            Err(p) => problems.extend(p),
+            Ok(b) => {
+                let table: Vec<(String, f64)> = catchments.iter().map(|c| (c.id.clone(), c.area_ha)).collect();
+                if g.area_from_geometry {
+                    for (c, row) in catchments.iter_mut().zip(&rows) {
+                        if let Some(f) = b.get(&c.id) {
+                            c.area_ha = f.area_ha();
+                            let open = c.area_ha - c.forest_ha;
+                            let infested = c.infested.total_ha();
+                            let tol = 1e-9 * c.area_ha.max(1.0);
+                            if c.vulnerable_ha > open + tol || infested > c.vulnerable_ha + tol {
+                                problems.push(
+                                    Problem::in_file(
+                                        &raw.catchments_path,
+                                        format!(
+                                            "with area_from_geometry the area is {:.1} ha (from {}), too small for forest {:.1} ha, vulnerable {:.1} ha and infested {:.1} ha",
+                                            c.area_ha,
+                                            g.path.display(),
+                                            c.forest_ha,
+                                            c.vulnerable_ha,
+                                            infested
+                                        ),
+                                    )
+                                    .row(*row)
+                                    .column("area_ha"),
+                                );
+                            }
+                        }
+                    }
+                } else {
+                    warnings.extend(crate::gis::area_mismatches(&b, &table, g.area_tolerance).iter().map(|m| m.message()));
+                }
+                gis = Some(GisInputs { boundaries: b, area_tolerance: g.area_tolerance, area_from_geometry: g.area_from_geometry });
+            }
+        }
+    }
     let mut calibration_links = Vec::new();
     if !catchments.is_empty() {
         problems.extend(apply_calibration(&raw.calibration, &raw.params, &mut catchments, &mut calibration_links));
@@ -272,6 +328,8 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
         ensemble: raw.ensemble,
         pet_source,
         calibration_links,
+        gis,
+        warnings,
     })
 }
 
@@ -292,6 +350,15 @@ struct RawScenario {
     ensemble: Option<EnsembleConfig>,
     uncertain: Vec<UncertainParam>,
     weather: Option<WeatherSpec>,
+    gis: Option<GisSpec>,
+}
+
+/// `[gis]` keys before the boundaries are read.
+struct GisSpec {
+    path: PathBuf,
+    id_property: String,
+    area_tolerance: f64,
+    area_from_geometry: bool,
 }
 
 /// `[climate] weather`: PET computed from a weather table.
@@ -438,6 +505,23 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
         }
         None => (None, BeyondRecord::Cycle, (1.0, 1.0), None),
     };
+    let gis = root.section("gis").map(|s| {
+        let g = GisSpec {
+            path: base.join(s.string("boundaries", None).unwrap_or_default()),
+            id_property: s.string("id_property", Some(crate::gis::DEFAULT_ID_PROPERTY)).unwrap_or_default(),
+            area_tolerance: s.f64_in("area_tolerance", Some(crate::gis::DEFAULT_AREA_TOLERANCE), 0.0, 1.0, "fraction"),
+            area_from_geometry: match s.get("area_from_geometry") {
+                None => false,
+                Some(toml::Value::Boolean(b)) => *b,
+                Some(_) => {
+                    s.push("area_from_geometry", "must be true or false");
+                    false
+                }
+            },
+        };
+        s.finish();
+        g
+    });
     let ensemble = root.section("ensemble").map(|s| {
         let e = read_ensemble(&s);
         s.finish();
@@ -487,6 +571,7 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
         ensemble,
         uncertain: Vec::new(),
         weather,
+        gis,
     }
 }
 

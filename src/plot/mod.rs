@@ -8,6 +8,7 @@
 pub mod bands;
 pub mod palette;
 pub mod fit;
+pub mod map;
 pub mod series;
 pub mod tornado;
 

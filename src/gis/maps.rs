@@ -1,0 +1,203 @@
+//! Map figures of a run folder: choropleths of water-yield change by catchment.
+//!
+//! Maps drawn into `figures/` (PNG and/or SVG):
+//!
+//! * `map_yield_change_20y`: change against the baseline at year 20, no control
+//!   (when the horizon reaches year 20);
+//! * `map_yield_change_horizon`: the same at the horizon;
+//! * `map_yield_change_horizon_<strategy>`: at the horizon under each control
+//!   programme.
+//!
+//! All maps of a run share one set of class breaks, so a colour means the same
+//! change on every map. Values are read from `summary.csv`; the drainage
+//! network (`flows_to`) from the copy of the catchment table in `inputs/`.
+
+use super::projection::LocalProjection;
+use super::results::{RunInfo, Summary};
+use super::Boundaries;
+use crate::error::{Error, Result};
+use crate::plot::map::{signed, ChoroplethMap, Classes, MapArea, MapPolygon};
+use crate::plot::{save_figure, Formats};
+use geo::{Area, Centroid, Contains, InteriorPoint, LineString, Point, Polygon};
+use std::path::Path;
+
+/// Largest number of catchments whose maps carry labels and flow arrows.
+pub const LABEL_LIMIT: usize = 60;
+
+/// Target number of classes on the maps.
+const TARGET_CLASSES: usize = 6;
+
+const NO_CONTROL: &str = crate::pipeline::NO_CONTROL;
+
+/// `(from, to)` catchment ids of the drainage network, from the run's copy of
+/// the catchment table.
+fn read_flows(run_dir: &Path, info: &RunInfo) -> Result<Vec<(String, String)>> {
+    let Some(table) = &info.catchment_table else {
+        return Err(Error::Other(format!("{} does not name the catchment table", run_dir.join(crate::io::outdir::MARKER).display())));
+    };
+    let name = Path::new(table).file_name().ok_or_else(|| Error::Other(format!("catchment table '{table}' has no file name")))?;
+    let path = run_dir.join("inputs").join(name);
+    let t = crate::io::table::read_table(&path).map_err(Error::Invalid)?;
+    let (Some(_), Some(_)) = (t.col("id"), t.col("flows_to")) else { return Ok(Vec::new()) };
+    Ok(t.rows
+        .iter()
+        .filter_map(|(_, rec)| {
+            let to = t.text(rec, "flows_to").trim();
+            (!to.is_empty()).then(|| (t.text(rec, "id").trim().to_string(), to.to_string()))
+        })
+        .collect())
+}
+
+/// A boundary in map kilometres and its label anchor.
+type Projected = (Vec<MapPolygon>, (f64, f64));
+
+/// Projected polygons and the label anchor of each boundary.
+fn project(b: &Boundaries) -> (LocalProjection, Vec<Projected>) {
+    let mut bb = (f64::INFINITY, f64::INFINITY, f64::NEG_INFINITY, f64::NEG_INFINITY);
+    for f in b.iter() {
+        for p in &f.geometry().0 {
+            for c in &p.exterior().0 {
+                bb = (bb.0.min(c.x), bb.1.min(c.y), bb.2.max(c.x), bb.3.max(c.y));
+            }
+        }
+    }
+    let proj = LocalProjection::for_bounds(bb.0, bb.2, bb.1, bb.3);
+    let ring = |ls: &LineString<f64>| ls.0.iter().map(|c| proj.project(c.x, c.y)).collect::<Vec<_>>();
+    let out = b
+        .iter()
+        .map(|f| {
+            let polys: Vec<MapPolygon> =
+                f.geometry().0.iter().map(|p| MapPolygon { exterior: ring(p.exterior()), holes: p.interiors().iter().map(ring).collect() }).collect();
+            // Anchor: centroid of the largest part when it lies inside it, else a point inside.
+            let km: Vec<Polygon<f64>> = polys
+                .iter()
+                .map(|m| Polygon::new(LineString::from(m.exterior.clone()), m.holes.iter().map(|h| LineString::from(h.clone())).collect()))
+                .collect();
+            let largest = km.iter().max_by(|a, b| a.unsigned_area().total_cmp(&b.unsigned_area()));
+            let anchor = largest
+                .and_then(|p| p.centroid().filter(|c| p.contains(c)).or_else(|| p.interior_point()))
+                .map(|c: Point<f64>| (c.x(), c.y()))
+                .unwrap_or((0.0, 0.0));
+            (polys, anchor)
+        })
+        .collect();
+    (proj, out)
+}
+
+/// A change in percent for a label: sign always shown, two decimals below 1 %.
+fn percent_text(x: f64) -> String {
+    let d = if x != 0.0 && x.abs() < 0.95 { 2 } else { 1 };
+    let v = signed(x, d);
+    if x > 0.0 && !v.chars().all(|c| c == '0' || c == '.') {
+        format!("+{v} %")
+    } else {
+        format!("{v} %")
+    }
+}
+
+/// One map to draw.
+struct MapSpec {
+    stem: String,
+    title: String,
+    strategy: String,
+    column: &'static str,
+}
+
+/// Draws the run's maps into `run_dir/figures/` and returns how many were
+/// drawn. Needs `summary.csv`, `run_info.json` and the catchment table copied
+/// into `inputs/`.
+pub fn draw_maps(run_dir: &Path, b: &Boundaries, formats: Formats) -> Result<usize> {
+    if b.is_empty() || !(formats.png || formats.svg) {
+        return Ok(0);
+    }
+    let summary = Summary::read(run_dir)?;
+    let info = RunInfo::read(run_dir)?;
+    let flows = read_flows(run_dir, &info)?;
+    let figdir = run_dir.join("figures");
+    std::fs::create_dir_all(&figdir).map_err(|e| Error::io(format!("creating {}", figdir.display()), e))?;
+
+    let mut specs = Vec::new();
+    let horizon = info.horizon_year();
+    if summary.has("yield_change_20y_pct") && info.horizon_years >= 20 {
+        specs.push(MapSpec {
+            stem: "map_yield_change_20y".into(),
+            title: format!("Water-yield change by {} (year 20), no control", info.start_year + 20),
+            strategy: NO_CONTROL.into(),
+            column: "yield_change_20y_pct",
+        });
+    }
+    specs.push(MapSpec {
+        stem: "map_yield_change_horizon".into(),
+        title: format!("Water-yield change by {horizon} (year {}), no control", info.horizon_years),
+        strategy: NO_CONTROL.into(),
+        column: "yield_change_horizon_pct",
+    });
+    for s in summary.strategies.iter().filter(|s| s.as_str() != NO_CONTROL) {
+        specs.push(MapSpec {
+            stem: format!("map_yield_change_horizon_{}", crate::pipeline::file_stem(s)),
+            title: format!("Water-yield change by {horizon} (year {}) under {s}", info.horizon_years),
+            strategy: s.clone(),
+            column: "yield_change_horizon_pct",
+        });
+    }
+
+    // Values of every map, then one set of classes for all of them.
+    let mut values: Vec<Vec<Option<f64>>> = Vec::with_capacity(specs.len());
+    for spec in &specs {
+        let v = b.iter().map(|f| summary.number(f.id(), &spec.strategy, spec.column)).collect::<Result<Vec<_>>>()?;
+        values.push(v);
+    }
+    let all: Vec<f64> = values.iter().flatten().flatten().copied().collect();
+    let classes = Classes::diverging(&all, TARGET_CLASSES);
+
+    let (proj, shapes) = project(b);
+    let index: std::collections::HashMap<&str, usize> = b.iter().enumerate().map(|(i, f)| (f.id(), i)).collect();
+    let arrows: Vec<(usize, usize)> =
+        flows.iter().filter_map(|(from, to)| Some((*index.get(from.as_str())?, *index.get(to.as_str())?))).collect();
+    let show_labels = b.len() <= LABEL_LIMIT;
+    let names: Vec<String> =
+        b.iter().map(|f| summary.cell(f.id(), NO_CONTROL, "name").filter(|n| !n.is_empty()).unwrap_or(f.id()).to_string()).collect();
+
+    let n_maps = values.iter().filter(|v| v.iter().any(Option::is_some)).count();
+    let mut n = 0;
+    for (spec, vals) in specs.iter().zip(&values) {
+        if vals.iter().all(Option::is_none) {
+            continue;
+        }
+        let areas: Vec<MapArea> = shapes
+            .iter()
+            .zip(vals)
+            .zip(&names)
+            .map(|(((polys, anchor), v), name)| MapArea {
+                label: name.clone(),
+                value: *v,
+                value_text: v.map(percent_text).unwrap_or_else(|| "no value".into()),
+                polygons: polys.clone(),
+                anchor: *anchor,
+            })
+            .collect();
+        let mut notes =
+            vec!["Yield change: water yield against the baseline (today's cover held fixed), same climate; negative = less water.".to_string()];
+        if n_maps > 1 {
+            notes.push("Classes are the same on every yield map of this run.".to_string());
+        }
+        if !show_labels {
+            notes.push(format!("Labels and flow arrows left out: {} catchments.", b.len()));
+        }
+        notes.push(proj.describe() + ".");
+        notes.push("Boundaries: ".to_string() + &b.path().file_name().map(|f| f.to_string_lossy().into_owned()).unwrap_or_default() + ".");
+        let map = ChoroplethMap {
+            title: spec.title.clone(),
+            subtitle: info.title.clone(),
+            legend_title: "Yield change vs baseline (%)".into(),
+            classes: classes.clone(),
+            areas,
+            arrows: arrows.clone(),
+            show_labels,
+            notes,
+        };
+        save_figure(&map, &figdir.join(&spec.stem), formats)?;
+        n += 1;
+    }
+    Ok(n)
+}
