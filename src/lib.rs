@@ -28,6 +28,7 @@ pub mod io;
 pub mod model;
 pub mod pipeline;
 pub mod plot;
+pub mod report;
 pub mod shard;
 pub mod cli;
 

@@ -228,6 +228,8 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
             if let Some(g) = &full.gis {
                 n_figures += gis_outputs(&dir, &g.boundaries, opts.figures != FigureChoice::None, opts.formats)?;
             }
+            let report = crate::report::ReportOptions { figures: opts.figures != FigureChoice::None, formats: opts.formats };
+            n_figures += crate::report::write_report_with(&dir, &report)?.drawn;
         }
     }
     let out = staging.commit()?;

@@ -281,6 +281,7 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
         let b = crate::gis::read_boundaries(&dir.join("inputs").join(file), idp, &ids).map_err(Error::Invalid)?;
         crate::pipeline::gis_outputs(&dir, &b, infos[0].1.figures, formats)?;
     }
+    crate::report::write_report_with(&dir, &crate::report::ReportOptions { figures: infos[0].1.figures, formats })?;
     let catchments = infos.iter().map(|(_, i)| i.catchments.len()).sum();
     let out = staging.commit()?;
     Ok(MergeOutcome { out, shards: n, catchments })

@@ -481,7 +481,7 @@ fn fit_command_recovers_known_w_and_its_snippet_loads() {
         let mut r = dec.read_info().unwrap();
         let mut buf = vec![0; r.output_buffer_size()];
         let info = r.next_frame(&mut buf).unwrap();
-        assert_eq!((info.width, info.height), (1600, 1000));
+        assert_eq!((info.width, info.height), yieldshift::plot::SIZE);
         let distinct = buf[..info.buffer_size()].chunks(3).map(|c| c.to_vec()).collect::<std::collections::HashSet<_>>().len();
         assert!(distinct > 10, "{stem} looks blank");
         assert!(out.join("figures").join(format!("{stem}.svg")).exists());

@@ -4,6 +4,7 @@
 mod curve;
 mod fit;
 pub mod pet;
+mod report;
 mod run;
 
 use clap::{Parser, Subcommand};
@@ -34,6 +35,8 @@ pub enum Command {
     Fit(fit::FitArgs),
     /// Compute reference evapotranspiration (FAO-56) from weather records.
     Pet(pet::PetArgs),
+    /// Regenerate report.html, report.md and the report's figures from a run folder.
+    Report(report::ReportArgs),
 }
 
 /// Runs the command line and returns the process exit code.
@@ -53,6 +56,7 @@ pub fn main() -> ExitCode {
         Command::Fit(a) => fit::run(a),
         Command::Merge(a) => run::merge(a),
         Command::Pet(a) => pet::run(a),
+        Command::Report(a) => report::run(a),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

@@ -17,6 +17,14 @@ pub const MEDIUM: RGBColor = RGBColor(0xc4, 0x6a, 0x25);
 pub const DENSE: RGBColor = RGBColor(0x2e, 0x47, 0x33);
 /// Guideline lines (brick red).
 pub const GUIDELINE: RGBColor = RGBColor(0xb0, 0x2e, 0x26);
+/// Basin-wide (all catchments pooled) values, where catchments are drawn in [`YIELD`] (charcoal).
+pub const BASIN: RGBColor = RGBColor(0x3a, 0x3a, 0x3a);
+/// Uncertainty ranges: whiskers and band edges (near black).
+pub const RANGE: RGBColor = RGBColor(0x22, 0x22, 0x22);
+/// Positive influence in sensitivity figures (the first series colour, deep blue).
+pub const POSITIVE: RGBColor = SERIES[0];
+/// Negative influence in sensitivity figures (the second series colour, amber).
+pub const NEGATIVE: RGBColor = SERIES[1];
 /// Series colours for contaminants, strategies and catchments, in order.
 pub const SERIES: [RGBColor; 6] = [
     RGBColor(0x1d, 0x4e, 0x89),

@@ -1,6 +1,9 @@
-//! Time-series figures of one catchment: yield, concentration, cover classes.
+//! Time-series figures of one catchment or the basin: yield, concentration (with
+//! optional uncertainty bands), cover classes.
 
-use super::{err, palette, Figure, FONT};
+use super::axes::{self, Axes};
+use super::legend::{self, Entry, Occupied, Placement, PxRect, Swatch};
+use super::{err, palette, Figure, LINE_PX, REF_LINE_PX};
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
@@ -17,7 +20,23 @@ pub struct Line {
     pub dashed: bool,
 }
 
-/// A corner of the plot area for the legend.
+/// A shaded range between a lower and an upper value (e.g. the 5–95 % range of an ensemble).
+#[derive(Debug, Clone)]
+pub struct Band {
+    /// Legend label.
+    pub label: String,
+    /// `(x, lower, upper)` points in x order.
+    pub points: Vec<(f64, f64, f64)>,
+    /// Colour.
+    pub colour: RGBColor,
+    /// Opacity of the fill, 0–1.
+    pub opacity: f64,
+}
+
+/// A corner of the plot area: where a figure would like its legend.
+///
+/// The legend goes there only if no data passes under it; otherwise it goes in
+/// another free corner, or below the plot ([`super::legend`]).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Corner {
     /// Upper left.
@@ -30,18 +49,7 @@ pub enum Corner {
     LowerRight,
 }
 
-impl Corner {
-    fn position(self) -> SeriesLabelPosition {
-        match self {
-            Corner::UpperLeft => SeriesLabelPosition::UpperLeft,
-            Corner::UpperRight => SeriesLabelPosition::UpperRight,
-            Corner::LowerLeft => SeriesLabelPosition::LowerLeft,
-            Corner::LowerRight => SeriesLabelPosition::LowerRight,
-        }
-    }
-}
-
-/// A line chart over years with an optional horizontal threshold.
+/// A line chart over years with optional horizontal thresholds and bands.
 #[derive(Debug, Clone)]
 pub struct LineChart {
     /// Title at the top.
@@ -54,16 +62,18 @@ pub struct LineChart {
     pub y_label: String,
     /// Lines to draw.
     pub lines: Vec<Line>,
+    /// Shaded ranges drawn under the lines (empty unless an ensemble gave ranges).
+    pub bands: Vec<Band>,
     /// Horizontal reference lines `(label, value, colour)`.
     pub thresholds: Vec<(String, f64, RGBColor)>,
     /// Start the y axis at zero.
     pub y_from_zero: bool,
-    /// Where the legend goes (choose a corner the data leave free).
+    /// Preferred legend corner (used only where the data leave it free).
     pub legend_at: Corner,
 }
 
 impl LineChart {
-    /// A chart over calendar years with the legend at the lower left.
+    /// A chart over calendar years with the legend preferably at the lower left.
     pub fn over_years(title: String, y_label: String, lines: Vec<Line>) -> LineChart {
         LineChart {
             title,
@@ -71,10 +81,68 @@ impl LineChart {
             x_decimals: 0,
             y_label,
             lines,
+            bands: Vec::new(),
             thresholds: Vec::new(),
             y_from_zero: true,
             legend_at: Corner::LowerLeft,
         }
+    }
+
+    fn entries(&self) -> Vec<Entry> {
+        let mut v = Vec::new();
+        for l in &self.lines {
+            if l.points.iter().any(|p| p.1.is_some()) {
+                v.push(Entry { label: l.label.clone(), swatch: Swatch::Line { colour: l.colour, dashed: l.dashed, width: LINE_PX } });
+            }
+        }
+        for b in &self.bands {
+            v.push(Entry { label: b.label.clone(), swatch: Swatch::Fill { colour: b.colour, opacity: b.opacity } });
+        }
+        for (label, _, colour) in &self.thresholds {
+            v.push(Entry { label: label.clone(), swatch: Swatch::Line { colour: *colour, dashed: true, width: REF_LINE_PX } });
+        }
+        v
+    }
+
+    fn axes(&self) -> Axes {
+        let x = axes::year_range(
+            self.lines.iter().flat_map(|l| l.points.iter().map(|p| p.0)).chain(self.bands.iter().flat_map(|b| b.points.iter().map(|p| p.0))),
+        );
+        let vals = self
+            .lines
+            .iter()
+            .flat_map(|l| l.points.iter().filter_map(|p| p.1))
+            .chain(self.thresholds.iter().map(|t| t.1))
+            .chain(self.bands.iter().flat_map(|b| b.points.iter().flat_map(|p| [p.1, p.2])));
+        let y = match axes::extent(vals) {
+            Some((lo, hi)) => axes::padded(lo, hi, self.y_from_zero),
+            None => 0.0..1.0,
+        };
+        let mut a = Axes::new(x, y, self.x_label.clone(), self.y_label.clone());
+        a.x_decimals = Some(self.x_decimals);
+        // x is a year, a delay or a cost in millions: never thousands-grouped.
+        a.x_grouping = false;
+        a
+    }
+
+    fn occupied<DB: DrawingBackend>(&self, chart: &ChartContext<'_, DB, axes::Cart>, x: &std::ops::Range<f64>) -> Occupied {
+        let mut o = Occupied::default();
+        for l in &self.lines {
+            for seg in segments(&l.points) {
+                o.line(seg.iter().map(|p| chart.backend_coord(p)));
+            }
+        }
+        for b in &self.bands {
+            o.region(b.points.iter().map(|&(px, lo, hi)| {
+                let a = chart.backend_coord(&(px, lo));
+                let c = chart.backend_coord(&(px, hi));
+                (a.0, a.1, c.1)
+            }));
+        }
+        for (_, v, _) in &self.thresholds {
+            o.line([chart.backend_coord(&(x.start, *v)), chart.backend_coord(&(x.end, *v))]);
+        }
+        o
     }
 }
 
@@ -93,80 +161,61 @@ impl Figure for Panels {
     }
 }
 
-fn year_range(points: impl Iterator<Item = f64>) -> (f64, f64) {
-    let (lo, hi) = points.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), x| (a.min(x), b.max(x)));
-    if lo.is_finite() && hi > lo {
-        (lo, hi)
-    } else if lo.is_finite() {
-        (lo - 1.0, lo + 1.0)
-    } else {
-        (0.0, 1.0)
+/// Chooses the legend placement for a chart drawn by `probe`, then returns the
+/// area the final chart goes on and the strip below it (if the legend needs one).
+pub(crate) fn split_for_legend<DB: DrawingBackend>(
+    body: &DrawingArea<DB, Shift>,
+    entries: &[Entry],
+    plot: PxRect,
+    preferred: Corner,
+    data: &Occupied,
+) -> (Placement, DrawingArea<DB, Shift>, Option<DrawingArea<DB, Shift>>) {
+    let placement = legend::place(body, entries, plot, preferred, data);
+    match placement {
+        Placement::Strip(h) => {
+            let (_, bh) = body.dim_in_pixel();
+            let (top, bottom) = body.split_vertically(bh.saturating_sub(h));
+            (placement, top, Some(bottom))
+        }
+        _ => (placement, body.clone(), None),
     }
-}
-
-fn padded(lo: f64, hi: f64, from_zero: bool) -> (f64, f64) {
-    let lo = if from_zero { lo.min(0.0) } else { lo };
-    let span = (hi - lo).abs().max(hi.abs() * 0.05).max(1e-6);
-    (if from_zero && lo >= 0.0 { 0.0 } else { lo - 0.05 * span }, hi + 0.08 * span)
 }
 
 impl Figure for LineChart {
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> Result<(), String> {
         root.fill(&WHITE).map_err(err)?;
-        let (x0, x1) = year_range(self.lines.iter().flat_map(|l| l.points.iter().map(|p| p.0)));
-        let vals = self.lines.iter().flat_map(|l| l.points.iter().filter_map(|p| p.1)).chain(self.thresholds.iter().map(|t| t.1));
-        let (lo, hi) = vals.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), v| (a.min(v), b.max(v)));
-        let (y0, y1) = if lo.is_finite() { padded(lo, hi, self.y_from_zero) } else { (0.0, 1.0) };
-        let mut chart = ChartBuilder::on(root)
-            .caption(&self.title, (FONT, 40))
-            .margin(30)
-            .x_label_area_size(80)
-            .y_label_area_size(120)
-            .build_cartesian_2d(x0..x1, y0..y1)
-            .map_err(err)?;
-        chart
-            .configure_mesh()
-            .x_desc(&self.x_label)
-            .y_desc(&self.y_label)
-            .x_label_formatter(&|x| format!("{x:.*}", self.x_decimals))
-            .label_style((FONT, 26))
-            .axis_desc_style((FONT, 30))
-            .light_line_style(RGBColor(235, 235, 235))
-            .draw()
-            .map_err(err)?;
-        for (label, v, colour) in &self.thresholds {
-            let style = ShapeStyle { color: colour.to_rgba(), filled: false, stroke_width: 3 };
-            chart
-                .draw_series(DashedLineSeries::new([(x0, *v), (x1, *v)], 14, 8, style))
-                .map_err(err)?
-                .label(label.as_str())
-                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 44, y)], style));
+        let body = axes::titled(root, &self.title)?;
+        let ax = self.axes();
+        let entries = self.entries();
+        let (placement, area, strip) = {
+            let probe = axes::build(&body, &ax)?;
+            let data = self.occupied(&probe, &ax.x);
+            split_for_legend(&body, &entries, PxRect::of(probe.plotting_area()), self.legend_at, &data)
+        };
+        let mut chart = axes::build(&area, &ax)?;
+        axes::draw_mesh(&mut chart, &ax)?;
+        for b in &self.bands {
+            let mut poly: Vec<(f64, f64)> = b.points.iter().map(|p| (p.0, p.2)).collect();
+            poly.extend(b.points.iter().rev().map(|p| (p.0, p.1)));
+            if poly.len() >= 3 {
+                chart.draw_series(std::iter::once(Polygon::new(poly, b.colour.mix(b.opacity).filled()))).map_err(err)?;
+            }
+        }
+        for (_, v, colour) in &self.thresholds {
+            let style = ShapeStyle { color: colour.to_rgba(), filled: false, stroke_width: REF_LINE_PX };
+            chart.draw_series(DashedLineSeries::new([(ax.x.start, *v), (ax.x.end, *v)], 22, 12, style)).map_err(err)?;
         }
         for line in &self.lines {
-            let style = ShapeStyle { color: line.colour.to_rgba(), filled: false, stroke_width: 4 };
-            let mut first = true;
+            let style = ShapeStyle { color: line.colour.to_rgba(), filled: false, stroke_width: LINE_PX };
             for seg in segments(&line.points) {
-                let anno = if line.dashed {
-                    chart.draw_series(DashedLineSeries::new(seg, 12, 8, style)).map_err(err)?
+                if line.dashed {
+                    chart.draw_series(DashedLineSeries::new(seg, 22, 12, style)).map_err(err)?;
                 } else {
-                    chart.draw_series(LineSeries::new(seg, style)).map_err(err)?
-                };
-                if first {
-                    anno.label(line.label.as_str()).legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 44, y)], style));
-                    first = false;
+                    chart.draw_series(LineSeries::new(seg, style)).map_err(err)?;
                 }
             }
         }
-        chart
-            .configure_series_labels()
-            .position(self.legend_at.position())
-            .label_font((FONT, 26))
-            .legend_area_size(60)
-            .background_style(WHITE.mix(0.85))
-            .border_style(RGBColor(160, 160, 160))
-            .draw()
-            .map_err(err)?;
-        Ok(())
+        legend::draw(&area, strip.as_ref(), &entries, placement)
     }
 }
 
@@ -175,9 +224,9 @@ fn segments(points: &[(f64, Option<f64>)]) -> Vec<Vec<(f64, f64)>> {
     let mut cur = vec![];
     for &(x, y) in points {
         match y {
-            Some(y) => cur.push((x, y)),
-            None if !cur.is_empty() => out.push(std::mem::take(&mut cur)),
-            None => {}
+            Some(y) if y.is_finite() => cur.push((x, y)),
+            _ if !cur.is_empty() => out.push(std::mem::take(&mut cur)),
+            _ => {}
         }
     }
     if !cur.is_empty() {
@@ -202,53 +251,41 @@ pub struct CoverChart {
 impl Figure for CoverChart {
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> Result<(), String> {
         root.fill(&WHITE).map_err(err)?;
-        let (x0, x1) = year_range(self.years.iter().copied());
+        let body = axes::titled(root, &self.title)?;
+        let x = axes::year_range(self.years.iter().copied());
         let top = self.classes.iter().map(|c| c[0] + c[1] + c[2]).fold(self.vulnerable_ha, f64::max).max(1e-6) * 1.08;
-        let mut chart = ChartBuilder::on(root)
-            .caption(&self.title, (FONT, 40))
-            .margin(30)
-            .x_label_area_size(80)
-            .y_label_area_size(140)
-            .build_cartesian_2d(x0..x1, 0.0..top)
-            .map_err(err)?;
-        chart
-            .configure_mesh()
-            .x_desc("Year")
-            .y_desc("Infested area (ha)")
-            .x_label_formatter(&|x| format!("{x:.0}"))
-            .label_style((FONT, 26))
-            .axis_desc_style((FONT, 30))
-            .light_line_style(RGBColor(235, 235, 235))
-            .draw()
-            .map_err(err)?;
+        let mut ax = Axes::new(x.clone(), 0.0..top, "Year", "Infested area (ha)");
+        ax.x_decimals = Some(0);
+        ax.x_grouping = false;
         let layers: [(&str, RGBColor, fn(&[f64; 3]) -> f64); 3] = [
             ("Scattered", palette::SCATTERED, |c| c[0] + c[1] + c[2]),
             ("Medium", palette::MEDIUM, |c| c[1] + c[2]),
             ("Dense", palette::DENSE, |c| c[2]),
         ];
-        for (label, colour, f) in layers {
+        let mut entries: Vec<Entry> =
+            layers.iter().map(|(l, c, _)| Entry { label: (*l).into(), swatch: Swatch::Fill { colour: *c, opacity: 0.95 } }).collect();
+        entries.push(Entry { label: "Vulnerable area".into(), swatch: Swatch::Line { colour: palette::BASELINE, dashed: true, width: REF_LINE_PX } });
+        let (placement, area, strip) = {
+            let probe = axes::build(&body, &ax)?;
+            let mut data = Occupied::default();
+            data.region(self.years.iter().zip(&self.classes).map(|(&yr, c)| {
+                let a = probe.backend_coord(&(yr, 0.0));
+                let b = probe.backend_coord(&(yr, c[0] + c[1] + c[2]));
+                (a.0, b.1, a.1)
+            }));
+            data.line([probe.backend_coord(&(x.start, self.vulnerable_ha)), probe.backend_coord(&(x.end, self.vulnerable_ha))]);
+            split_for_legend(&body, &entries, PxRect::of(probe.plotting_area()), Corner::UpperLeft, &data)
+        };
+        let mut chart = axes::build(&area, &ax)?;
+        axes::draw_mesh(&mut chart, &ax)?;
+        for (_, colour, f) in layers {
             let pts: Vec<(f64, f64)> = self.years.iter().zip(&self.classes).map(|(&x, c)| (x, f(c))).collect();
-            chart
-                .draw_series(AreaSeries::new(pts, 0.0, colour.mix(0.95)).border_style(colour.stroke_width(2)))
-                .map_err(err)?
-                .label(label)
-                .legend(move |(x, y)| Rectangle::new([(x, y - 10), (x + 44, y + 10)], colour.filled()));
+            chart.draw_series(AreaSeries::new(pts, 0.0, colour.mix(0.95)).border_style(colour.stroke_width(2))).map_err(err)?;
         }
-        let style = ShapeStyle { color: palette::BASELINE.to_rgba(), filled: false, stroke_width: 3 };
+        let style = ShapeStyle { color: palette::BASELINE.to_rgba(), filled: false, stroke_width: REF_LINE_PX };
         chart
-            .draw_series(DashedLineSeries::new([(x0, self.vulnerable_ha), (x1, self.vulnerable_ha)], 14, 8, style))
-            .map_err(err)?
-            .label("Vulnerable area")
-            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 44, y)], style));
-        chart
-            .configure_series_labels()
-            .position(SeriesLabelPosition::UpperLeft)
-            .label_font((FONT, 26))
-            .legend_area_size(60)
-            .background_style(WHITE.mix(0.85))
-            .border_style(RGBColor(160, 160, 160))
-            .draw()
+            .draw_series(DashedLineSeries::new([(x.start, self.vulnerable_ha), (x.end, self.vulnerable_ha)], 22, 12, style))
             .map_err(err)?;
-        Ok(())
+        legend::draw(&area, strip.as_ref(), &entries, placement)
     }
 }
