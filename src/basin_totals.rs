@@ -480,11 +480,6 @@ impl Partials {
             save_figure(&Panels(vec![cost, water]), &figdir.join(format!("delay_{}", crate::pipeline::file_stem(name))), formats)?;
             n += 1;
         }
-        for (at, _, r) in self.basin_rankings() {
-            if at == "horizon" {
-                n += crate::ensemble::tornado(&figdir, &self.meta, &format!("{} (basin)", self.meta.title), BASIN_ID, &r, formats)?;
-            }
-        }
         Ok(n)
     }
 

@@ -27,9 +27,8 @@ use crate::model::stats::{mean, percentile_sorted, spearman, src};
 use crate::model::uncertainty::{stable_hash, stream, uniforms, UncertainParam};
 use crate::model::CoverCurves;
 use crate::pipeline::{file_stem, NO_CONTROL};
-use crate::plot::bands::{BandChart, BandSeries};
 use crate::plot::tornado::Tornado;
-use crate::plot::{palette, save_figure, Formats};
+use crate::plot::{save_figure, Formats};
 use rayon::prelude::*;
 use std::path::Path;
 
@@ -359,7 +358,6 @@ struct CatchmentResult {
     basin_volumes: Vec<Vec<(f64, f64)>>,
     /// Draws `[param][member]` (for basin-level sensitivity).
     draws: Vec<Vec<f64>>,
-    bands: Option<BandSeries>,
     ranking: Option<Ranking>,
     /// No-control yield volume per member per year, m³ (kept only when strategies exist).
     reference_m3: Vec<Vec<f64>>,
@@ -404,7 +402,7 @@ pub fn run_ensemble(
         let results: Vec<CatchmentResult> = (start..end)
             .into_par_iter()
             .map(|i| {
-                let r = no_control_catchment(s, cfg, i, &shared, &climates, &names, &labels, &points, keep_reference, opts.figures);
+                let r = no_control_catchment(s, cfg, i, &shared, &climates, &names, &labels, &points, keep_reference);
                 bar.inc(1);
                 r
             })
@@ -430,10 +428,6 @@ pub fn run_ensemble(
                 }
             }
             if opts.figures {
-                if let Some(b) = &r.bands {
-                    save_figure(&BandChart::from_series(b), &figdir.join(format!("{}_yield_bands", file_stem(&s.catchments[i].id))), opts.formats)?;
-                    n_figures += 1;
-                }
                 if let Some(rk) = &r.ranking {
                     n_figures += tornado(&figdir, meta, &s.catchments[i].name, &file_stem(&s.catchments[i].id), rk, opts.formats)?;
                 }
@@ -546,7 +540,6 @@ fn no_control_catchment(
     labels: &[String],
     points: &[(&'static str, usize)],
     keep_reference: bool,
-    figures: bool,
 ) -> CatchmentResult {
     let c = &s.catchments[i];
     let m_count = cfg.members;
@@ -598,26 +591,12 @@ fn no_control_catchment(
             }
         }
     }
-    let bands = figures.then(|| BandSeries {
-        title: format!("{} — water yield, {} members", c.name, m_count),
-        y_label: "Water yield (mm/yr)".into(),
-        years: s.years().map(|y| y as f64).collect(),
-        quantiles: (0..n_years)
-            .map(|t| {
-                let mut v: Vec<f64> = mv.vars[0][t].iter().copied().filter(|x| x.is_finite()).collect();
-                v.sort_by(f64::total_cmp);
-                PERCENTILES.map(|p| percentile_sorted(&v, p))
-            })
-            .collect(),
-        colour: palette::YIELD,
-    });
     CatchmentResult {
         ensemble,
         sensitivity,
         members,
         basin_volumes,
         draws: if labels.is_empty() { Vec::new() } else { draws },
-        bands,
         ranking,
         reference_m3,
     }

@@ -83,7 +83,7 @@ fn demo_run_writes_every_output() {
         .filter(|p| !["_yield_bands.png", "_sensitivity.png", "_range.png"].iter().any(|suf| p.file_name().unwrap().to_string_lossy().ends_with(suf)))
         .count();
     for id in ["scree", "tussock-flat", "mistle", "cairn", "greywacke", "ardmere-lower"] {
-        for suffix in ["yield_bands", "sensitivity"] {
+        for suffix in ["yield_range", "sensitivity"] {
             assert!(out.join("figures").join(format!("{id}_{suffix}.png")).exists(), "{id}_{suffix}");
         }
     }

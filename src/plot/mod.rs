@@ -17,7 +17,6 @@
 //! below the plot.
 
 pub mod axes;
-pub mod bands;
 pub mod bars;
 pub mod basin;
 pub mod budyko_space;
