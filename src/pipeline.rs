@@ -397,7 +397,25 @@ fn run_info(s: &Scenario) -> serde_json::Value {
             "seed_rain_ha_per_yr": inv.seed_rain_ha_per_yr,
             "medium_age_yr": inv.medium_age_yr,
             "dense_age_yr": inv.dense_age_yr,
+            "initial_dense_span_yr": inv.initial_dense_span_yr,
         },
+        "canopy_closure": match &inv.closure {
+            crate::model::ClosureCurve::Logistic { half_closure_age_yr, steepness_per_yr, max_fraction } => serde_json::json!({
+                "curve": "logistic", "half_closure_age_yr": half_closure_age_yr, "steepness_per_yr": steepness_per_yr, "max_fraction": max_fraction,
+            }),
+            crate::model::ClosureCurve::Table { ages_yr, fractions } => serde_json::json!({"curve": "table", "ages_yr": ages_yr, "fractions": fractions}),
+        },
+        "min_runoff_mm": s.params.min_runoff_mm,
+        "ensemble": s.ensemble.as_ref().map(|e| serde_json::json!({
+            "members": e.members,
+            "sampling": match e.sampling { crate::model::uncertainty::Sampling::MonteCarlo => "monte-carlo", crate::model::uncertainty::Sampling::LatinHypercube => "latin-hypercube" },
+            "seed": e.seed,
+            "climate": match e.climate {
+                crate::io::scenario::ClimateVariability::None => "none",
+                crate::io::scenario::ClimateVariability::Bootstrap { .. } => "bootstrap",
+                crate::io::scenario::ClimateVariability::Stochastic { .. } => "stochastic",
+            },
+        })),
         "strategies": strategies,
         "discount_rate": s.economics.discount_rate,
         "water_value_per_m3": s.economics.water_value_per_m3,
