@@ -4,12 +4,11 @@
 //! Run: `cargo bench --bench projection`. Results are recorded in the README.
 
 use criterion::{criterion_group, criterion_main, Criterion, Throughput};
-use std::hint::black_box;
 use rayon::prelude::*;
+use std::hint::black_box;
 use yieldshift::model::kernel::{project_lean, LeanYears};
 use yieldshift::model::{
-    project_catchment, Catchment, ClassAreas, ClimateYear, ClosureCurve, Contaminant, CoverCurves, InvasionParams,
-    ModelParams,
+    project_catchment, Catchment, ClassAreas, ClimateYear, ClosureCurve, Contaminant, CoverCurves, InvasionParams, ModelParams,
 };
 
 fn params() -> ModelParams {

@@ -2,9 +2,7 @@
 //!
 //! Run: `cargo run --example decade_loss`
 
-use yieldshift::model::{
-    project_catchment, Catchment, ClassAreas, ClosureCurve, CoverCurves, InvasionParams, ModelParams,
-};
+use yieldshift::model::{project_catchment, Catchment, ClassAreas, ClosureCurve, CoverCurves, InvasionParams, ModelParams};
 
 fn main() {
     let params = ModelParams {

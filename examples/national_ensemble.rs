@@ -24,12 +24,22 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     let threads = args.get(3).copied();
     let dir = std::env::temp_dir().join(format!("yieldshift-national-{}", std::process::id()));
     std::fs::create_dir_all(&dir)?;
-    let mut table = String::from("id,area_ha,rain_mm,pet_mm,vulnerable_fraction,scattered_ha,medium_ha,dense_ha,forest_ha,nitrate_n_point_kg_per_yr\n");
+    let mut table =
+        String::from("id,area_ha,rain_mm,pet_mm,vulnerable_fraction,scattered_ha,medium_ha,dense_ha,forest_ha,nitrate_n_point_kg_per_yr\n");
     for i in 0..n {
         // Invented catchments spanning humid to sub-humid climates.
         let k = (i % 97) as f64;
         let area = 500.0 + 37.0 * k;
-        writeln!(table, "c{i:05},{area},{},{},0.7,{},{},{},{},0", 700.0 + 18.0 * k, 750.0 + 2.0 * k, 0.02 * area, 0.01 * area, 0.005 * area, 0.05 * area)?;
+        writeln!(
+            table,
+            "c{i:05},{area},{},{},0.7,{},{},{},{},0",
+            700.0 + 18.0 * k,
+            750.0 + 2.0 * k,
+            0.02 * area,
+            0.01 * area,
+            0.005 * area,
+            0.05 * area
+        )?;
     }
     std::fs::write(dir.join("catchments.csv"), table)?;
     std::fs::write(
@@ -54,7 +64,11 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     run(&scenario, &opts)?;
     let secs = t0.elapsed().as_secs_f64();
     let cy = (n * (horizon + 1) * members) as f64;
-    println!("{n} catchments × {} years × {members} members in {secs:.2} s: {:.3e} member-catchment-years/s (whole run, CSV output included)", horizon + 1, cy / secs);
+    println!(
+        "{n} catchments × {} years × {members} members in {secs:.2} s: {:.3e} member-catchment-years/s (whole run, CSV output included)",
+        horizon + 1,
+        cy / secs
+    );
     std::fs::remove_dir_all(&dir)?;
     Ok(())
 }

@@ -200,7 +200,10 @@ impl StrategySums {
                     canopy_fraction: b.canopy.value() / area,
                     classes: ClassAreas { scattered_ha: b.scattered.value(), medium_ha: b.medium.value(), dense_ha: b.dense.value() },
                     new_infestation_ha: b.new_infestation.value(),
-                    concentrations: loads.iter().map(|&l| dilution::concentration_mg_per_l(l, yield_m3, area, meta.min_runoff_mm)).collect(),
+                    concentrations: loads
+                        .iter()
+                        .map(|&l| dilution::concentration_mg_per_l(l, yield_m3, area, meta.min_runoff_mm))
+                        .collect(),
                     loads_kg_per_yr: loads,
                 }
             })
@@ -348,7 +351,12 @@ impl Partials {
         self.meta
             .contaminants
             .iter()
-            .map(|(n, g)| Contaminant { name: n.clone(), open_export_kg_per_ha_yr: 0.0, forest_export_kg_per_ha_yr: 0.0, guideline_mg_per_l: *g })
+            .map(|(n, g)| Contaminant {
+                name: n.clone(),
+                open_export_kg_per_ha_yr: 0.0,
+                forest_export_kg_per_ha_yr: 0.0,
+                guideline_mg_per_l: *g,
+            })
             .collect()
     }
 
@@ -394,7 +402,11 @@ impl Partials {
                     .iter()
                     .map(|v| {
                         let (q, b) = (v[pt].0.value(), v[pt].1.value());
-                        if b > 0.0 { 100.0 * (q - b) / b } else { f64::NAN }
+                        if b > 0.0 {
+                            100.0 * (q - b) / b
+                        } else {
+                            f64::NAN
+                        }
                     })
                     .collect();
                 (at.clone(), *year, crate::ensemble::rank(&s.labels, &xs, &y))
@@ -442,8 +454,11 @@ impl Partials {
                     Line { label: o.name.clone(), points, colour: palette::series(k), dashed: false }
                 })
                 .collect();
-            let mut chart =
-                LineChart::over_years(format!("{} — what control buys", self.meta.title), "Cumulative water saved (million m³)".into(), lines);
+            let mut chart = LineChart::over_years(
+                format!("{} — what control buys", self.meta.title),
+                "Cumulative water saved (million m³)".into(),
+                lines,
+            );
             chart.x_label = "Cumulative control cost (million $)".into();
             chart.x_decimals = 1;
             chart.legend_at = Corner::LowerRight;
@@ -494,7 +509,8 @@ impl Partials {
         }
         use std::io::Write;
         let path = dir.join("sensitivity.csv");
-        let mut f = std::fs::OpenOptions::new().append(true).open(&path).map_err(|e| Error::io(format!("writing {}", path.display()), e))?;
+        let mut f =
+            std::fs::OpenOptions::new().append(true).open(&path).map_err(|e| Error::io(format!("writing {}", path.display()), e))?;
         f.write_all(text.as_bytes()).map_err(|e| Error::io(format!("writing {}", path.display()), e))
     }
 }

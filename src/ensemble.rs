@@ -236,7 +236,8 @@ fn member_series(s: &Scenario, mc: &MemberClimate, i: usize, m: usize, rain_scal
             ys[m]
                 .iter()
                 .map(|&y| {
-                    let cl = table.map_or(c.mean_climate(), |t| t.year_for(&c.id, y, c.mean_climate(), crate::io::climate::BeyondRecord::Cycle));
+                    let cl =
+                        table.map_or(c.mean_climate(), |t| t.year_for(&c.id, y, c.mean_climate(), crate::io::climate::BeyondRecord::Cycle));
                     ClimateYear { rain_mm: cl.rain_mm * rain_scale, pet_mm: cl.pet_mm * pet_scale }
                 })
                 .collect()
@@ -250,7 +251,8 @@ fn member_series(s: &Scenario, mc: &MemberClimate, i: usize, m: usize, rain_scal
 }
 
 fn setup_for(s: &Scenario, draws: &[Vec<f64>], m: usize) -> MemberSetup {
-    let mut setup = MemberSetup { params: s.params.clone(), strategies: s.strategies.clone(), rain_scale: s.rain_scale, pet_scale: s.pet_scale };
+    let mut setup =
+        MemberSetup { params: s.params.clone(), strategies: s.strategies.clone(), rain_scale: s.rain_scale, pet_scale: s.pet_scale };
     for (u, d) in s.uncertain.iter().zip(draws) {
         apply_param(s, &u.path, d[m], &mut setup);
     }
@@ -321,11 +323,8 @@ pub fn rank(labels: &[String], xs: &[Vec<f64>], y: &[f64]) -> Ranking {
     let yv: Vec<f64> = ok.iter().map(|&m| y[m]).collect();
     let xv: Vec<Vec<f64>> = xs.iter().map(|x| ok.iter().map(|&m| x[m]).collect()).collect();
     let srcs = src(&xv, &yv);
-    let mut r: Ranking = labels
-        .iter()
-        .enumerate()
-        .map(|(j, l)| (l.clone(), spearman(&xv[j], &yv), srcs.as_ref().and_then(|s| s[j])))
-        .collect();
+    let mut r: Ranking =
+        labels.iter().enumerate().map(|(j, l)| (l.clone(), spearman(&xv[j], &yv), srcs.as_ref().and_then(|s| s[j]))).collect();
     r.sort_by(|a, b| b.1.map_or(0.0, f64::abs).total_cmp(&a.1.map_or(0.0, f64::abs)).then(a.0.cmp(&b.0)));
     r
 }
@@ -335,7 +334,16 @@ pub fn sensitivity_rows(id: &str, strategy: &str, at: &str, year: i32, r: &Ranki
     r.iter()
         .enumerate()
         .map(|(k, (label, rho, srcv))| {
-            csv_line(&[id.into(), strategy.into(), at.into(), year.to_string(), label.clone(), opt_num(*rho, 4), opt_num(*srcv, 4), (k + 1).to_string()])
+            csv_line(&[
+                id.into(),
+                strategy.into(),
+                at.into(),
+                year.to_string(),
+                label.clone(),
+                opt_num(*rho, 4),
+                opt_num(*srcv, 4),
+                (k + 1).to_string(),
+            ])
         })
         .collect()
 }
@@ -442,8 +450,7 @@ pub fn run_ensemble(
         let per_member: Vec<(Vec<Vec<Vec<f64>>>, Vec<Vec<f64>>)> = (0..m_count)
             .into_par_iter()
             .map(|m| {
-                let draws: Vec<Vec<Vec<f64>>> =
-                    s.catchments.iter().map(|c| draws_for_member(s, cfg, &shared, &c.id, m)).collect();
+                let draws: Vec<Vec<Vec<f64>>> = s.catchments.iter().map(|c| draws_for_member(s, cfg, &shared, &c.id, m)).collect();
                 let setups: Vec<MemberSetup> = draws.iter().map(|d| setup_for_single(s, d)).collect();
                 let params: Vec<ModelParams> = setups.iter().map(|x| x.params.clone()).collect();
                 let climates_m: Vec<Vec<ClimateYear>> =
@@ -565,11 +572,17 @@ fn no_control_catchment(
             mv.vars[1][t][m] = lean.change_pct(t).unwrap_or(f64::NAN);
             for j in 0..k {
                 mv.vars[2 + j][t][m] =
-                    concentration(lean.loads_kg_per_yr[t * k + j], lean.yield_mm[t], c.area_ha, setup.params.min_runoff_mm).unwrap_or(f64::NAN);
+                    concentration(lean.loads_kg_per_yr[t * k + j], lean.yield_mm[t], c.area_ha, setup.params.min_runoff_mm)
+                        .unwrap_or(f64::NAN);
             }
             mv.vars[2 + k][t][m] = 0.0;
         }
-        basin_volumes.push(points.iter().map(|&(_, off)| (lean.yield_mm[off] * c.area_ha * 10.0, lean.baseline_yield_mm[off] * c.area_ha * 10.0)).collect());
+        basin_volumes.push(
+            points
+                .iter()
+                .map(|&(_, off)| (lean.yield_mm[off] * c.area_ha * 10.0, lean.baseline_yield_mm[off] * c.area_ha * 10.0))
+                .collect(),
+        );
         if keep_reference {
             reference_m3.push(lean.yield_mm.iter().map(|q| q * c.area_ha * 10.0).collect());
         }
@@ -603,7 +616,8 @@ fn no_control_catchment(
 }
 
 fn members_file(dir: &Path, s: &Scenario) -> Result<CsvOut> {
-    let mut h: Vec<String> = ["catchment", "strategy", "member", "year", "yield_mm", "yield_change_pct"].iter().map(|x| x.to_string()).collect();
+    let mut h: Vec<String> =
+        ["catchment", "strategy", "member", "year", "yield_mm", "yield_change_pct"].iter().map(|x| x.to_string()).collect();
     h.extend(s.params.contaminants.iter().map(|c| format!("{}_mg_per_l", c.name)));
     h.push("control_cost".into());
     h.push("water_saved_m3".into());
@@ -645,7 +659,8 @@ fn progress_bar(show: bool, len: u64) -> indicatif::ProgressBar {
     if show && std::io::stderr().is_terminal() {
         let pb = indicatif::ProgressBar::new(len);
         pb.set_style(
-            indicatif::ProgressStyle::with_template("ensemble {bar:40} {pos}/{len} ({eta} left)").unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+            indicatif::ProgressStyle::with_template("ensemble {bar:40} {pos}/{len} ({eta} left)")
+                .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
         );
         pb
     } else {

@@ -140,7 +140,8 @@ pub fn fit_catchments(scenario: &Scenario, observed: &ObservedFlows, cover: Cove
         let c = &scenario.catchments[s.catchment];
         let years: Vec<_> = s.years.iter().map(|y| (y.year, y.climate, y.flow_mm)).collect();
         let left: Vec<&LeftOut> = observed.left_out.iter().filter(|l| l.catchment == c.id).collect();
-        let located = |msg: String| Problem::in_file(&observed.path, format!("catchment '{}': {msg}", c.id)).row(first_row(s)).column("catchment");
+        let located =
+            |msg: String| Problem::in_file(&observed.path, format!("catchment '{}': {msg}", c.id)).row(first_row(s)).column("catchment");
         let record = match GaugeRecord::for_catchment(c, &scenario.params, cover, &years) {
             Ok(r) => r,
             Err(e) => {
@@ -194,7 +195,11 @@ pub fn check_donors(scenario: &Scenario, fitted: &[FittedCatchment], donors: &[D
     for d in donors {
         let at = |m: String| Problem::new(m).column("--donor");
         if !ids.contains(&d.ungauged.as_str()) {
-            problems.push(at(format!("'{}' is not a catchment of the scenario{}", d.ungauged, crate::io::table::suggestion(&d.ungauged, &ids))));
+            problems.push(at(format!(
+                "'{}' is not a catchment of the scenario{}",
+                d.ungauged,
+                crate::io::table::suggestion(&d.ungauged, &ids)
+            )));
         } else if fitted_ids.contains(&d.ungauged.as_str()) {
             problems.push(at(format!("'{}' is gauged and has its own fitted value; a donor is only for ungauged catchments", d.ungauged)));
         } else if seen.contains(&d.ungauged.as_str()) {
@@ -223,13 +228,8 @@ pub fn run(scenario: &Scenario, observed: &ObservedFlows, opts: &FitOptions) -> 
     if fitted.is_empty() {
         return Err(Error::invalid(Problem::in_file(&observed.path, "has no observations of any catchment of the scenario")));
     }
-    let ungauged: Vec<String> = scenario
-        .catchments
-        .iter()
-        .enumerate()
-        .filter(|(i, _)| !fitted.iter().any(|f| f.index == *i))
-        .map(|(_, c)| c.id.clone())
-        .collect();
+    let ungauged: Vec<String> =
+        scenario.catchments.iter().enumerate().filter(|(i, _)| !fitted.iter().any(|f| f.index == *i)).map(|(_, c)| c.id.clone()).collect();
 
     let staging = Staging::new(&opts.out, opts.force)?;
     let dir = staging.dir().to_path_buf();
@@ -539,7 +539,13 @@ fn parameter_pairs(c: &CoverCurves, base: &CoverCurves) -> Vec<(&'static str, f6
         .collect()
 }
 
-fn run_info(s: &Scenario, observed: &ObservedFlows, opts: &FitOptions, fitted: &[FittedCatchment], ungauged: &[String]) -> serde_json::Value {
+fn run_info(
+    s: &Scenario,
+    observed: &ObservedFlows,
+    opts: &FitOptions,
+    fitted: &[FittedCatchment],
+    ungauged: &[String],
+) -> serde_json::Value {
     serde_json::json!({
         "tool": "yieldshift",
         "command": "fit",
@@ -603,8 +609,18 @@ fn draw_figures(dir: &Path, s: &Scenario, f: &FittedCatchment, formats: Formats)
         title: format!("{} — observed and simulated annual yield", c.name),
         series: vec![
             FitSeries { label: "Observed".into(), points: with_gaps(&obs), colour: palette::series(2), mark: Mark::Points },
-            FitSeries { label: format!("Fitted, {key} = {:.3}", f.fit.mean.value), points: with_gaps(&sim), colour: palette::YIELD, mark: Mark::Line },
-            FitSeries { label: format!("Scenario, {key} = {:.3}", f.fit.scenario_value), points: with_gaps(&sim0), colour: palette::series(1), mark: Mark::Dashed },
+            FitSeries {
+                label: format!("Fitted, {key} = {:.3}", f.fit.mean.value),
+                points: with_gaps(&sim),
+                colour: palette::YIELD,
+                mark: Mark::Line,
+            },
+            FitSeries {
+                label: format!("Scenario, {key} = {:.3}", f.fit.scenario_value),
+                points: with_gaps(&sim0),
+                colour: palette::series(1),
+                mark: Mark::Dashed,
+            },
         ],
         notes,
     };
@@ -614,11 +630,12 @@ fn draw_figures(dir: &Path, s: &Scenario, f: &FittedCatchment, formats: Formats)
     let ratios: Vec<f64> = years.iter().map(|y| 1.0 - y.observed_yield_mm / y.rain_mm).collect();
     let phi_max = phis.iter().copied().fold(1.0, f64::max) * 1.15;
     let curve = |v: f64| -> Vec<(f64, Option<f64>)> {
-        (0..=200).map(|i| {
-            let phi = phi_max * i as f64 / 200.0;
-            (phi, Some(f.record.evaporative_ratio(v, phi)))
-        })
-        .collect()
+        (0..=200)
+            .map(|i| {
+                let phi = phi_max * i as f64 / 200.0;
+                (phi, Some(f.record.evaporative_ratio(v, phi)))
+            })
+            .collect()
     };
     let n = years.len() as f64;
     let mean_rain = years.iter().map(|y| y.rain_mm).sum::<f64>() / n;
@@ -627,10 +644,30 @@ fn draw_figures(dir: &Path, s: &Scenario, f: &FittedCatchment, formats: Formats)
     let budyko = BudykoChart {
         title: format!("{} — record in Budyko space", c.name),
         series: vec![
-            FitSeries { label: format!("Fitted curve, {key} = {:.3}", f.fit.mean.value), points: curve(f.fit.mean.value), colour: palette::YIELD, mark: Mark::Line },
-            FitSeries { label: format!("Scenario curve, {key} = {:.3}", f.fit.scenario_value), points: curve(f.fit.scenario_value), colour: palette::series(1), mark: Mark::Dashed },
-            FitSeries { label: "Observed years".into(), points: phis.iter().zip(&ratios).map(|(&x, &y)| (x, Some(y))).collect(), colour: palette::series(2), mark: Mark::Points },
-            FitSeries { label: "Record mean".into(), points: vec![(mean_pet / mean_rain, Some(1.0 - mean_q / mean_rain))], colour: palette::DENSE, mark: Mark::BigPoint },
+            FitSeries {
+                label: format!("Fitted curve, {key} = {:.3}", f.fit.mean.value),
+                points: curve(f.fit.mean.value),
+                colour: palette::YIELD,
+                mark: Mark::Line,
+            },
+            FitSeries {
+                label: format!("Scenario curve, {key} = {:.3}", f.fit.scenario_value),
+                points: curve(f.fit.scenario_value),
+                colour: palette::series(1),
+                mark: Mark::Dashed,
+            },
+            FitSeries {
+                label: "Observed years".into(),
+                points: phis.iter().zip(&ratios).map(|(&x, &y)| (x, Some(y))).collect(),
+                colour: palette::series(2),
+                mark: Mark::Points,
+            },
+            FitSeries {
+                label: "Record mean".into(),
+                points: vec![(mean_pet / mean_rain, Some(1.0 - mean_q / mean_rain))],
+                colour: palette::DENSE,
+                mark: Mark::BigPoint,
+            },
         ],
         notes: vec![
             "ET/P observed = 1 − Q/P of each year".into(),

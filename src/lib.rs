@@ -19,8 +19,9 @@
 //! assessment; defer to local regulation and qualified practitioners.
 #![deny(missing_docs)]
 
-pub mod ensemble;
 pub mod basin_totals;
+pub mod cli;
+pub mod ensemble;
 pub mod error;
 pub mod fit_run;
 pub mod gis;
@@ -30,6 +31,5 @@ pub mod pipeline;
 pub mod plot;
 pub mod report;
 pub mod shard;
-pub mod cli;
 
 pub use error::{Error, Problem, Result};

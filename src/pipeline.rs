@@ -8,12 +8,12 @@
 //! Results are staged in a temporary folder and moved into place only when
 //! everything succeeded ([`crate::io::outdir`]).
 
+use crate::basin_totals::{BasinMeta, DelaySums, Partials, StrategySums};
 use crate::error::{Error, Result};
 use crate::io::outdir::Staging;
 use crate::io::output::{self, ControlCells, CsvOut};
 use crate::io::scenario::Scenario;
 use crate::model::basin::project_basin;
-use crate::basin_totals::{BasinMeta, DelaySums, Partials, StrategySums};
 use crate::model::control::ControlYear;
 use crate::model::dilution;
 use crate::model::economics::ProgrammeTotals;
@@ -64,7 +64,15 @@ pub struct RunOptions {
 impl RunOptions {
     /// Defaults: figures `Auto` in PNG and SVG, all cores, no progress bar, no shard.
     pub fn new(out: impl Into<PathBuf>) -> RunOptions {
-        RunOptions { out: out.into(), force: false, figures: FigureChoice::Auto, formats: Formats::default(), threads: None, progress: false, shard: None }
+        RunOptions {
+            out: out.into(),
+            force: false,
+            figures: FigureChoice::Auto,
+            formats: Formats::default(),
+            threads: None,
+            progress: false,
+            shard: None,
+        }
     }
 }
 
@@ -144,8 +152,14 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
         }
         v
     };
-    let climates: Vec<_> = if s.strategies.is_empty() { Vec::new() } else { (0..s.catchments.len()).map(|i| s.climate_series(i)).collect() };
-    let mut partials = Partials { meta: basin_meta(full, draw || !full.strategies.is_empty()), strategies: Vec::new(), delays: Vec::new(), sensitivity: None };
+    let climates: Vec<_> =
+        if s.strategies.is_empty() { Vec::new() } else { (0..s.catchments.len()).map(|i| s.climate_series(i)).collect() };
+    let mut partials = Partials {
+        meta: basin_meta(full, draw || !full.strategies.is_empty()),
+        strategies: Vec::new(),
+        delays: Vec::new(),
+        sensitivity: None,
+    };
 
     let mut yearly = CsvOut::create(&dir.join("yearly.csv"), &output::yearly_header(contaminants))?;
     let mut nodes = CsvOut::create(&dir.join("nodes.csv"), &output::nodes_header(contaminants))?;
@@ -251,7 +265,12 @@ pub fn finish_basin(dir: &Path, partials: &Partials, summary_rows: &[Vec<Vec<Str
     let names: Vec<(String, Option<f64>)> = partials.meta.contaminants.clone();
     let contaminants: Vec<crate::model::Contaminant> = names
         .iter()
-        .map(|(n, g)| crate::model::Contaminant { name: n.clone(), open_export_kg_per_ha_yr: 0.0, forest_export_kg_per_ha_yr: 0.0, guideline_mg_per_l: *g })
+        .map(|(n, g)| crate::model::Contaminant {
+            name: n.clone(),
+            open_export_kg_per_ha_yr: 0.0,
+            forest_export_kg_per_ha_yr: 0.0,
+            guideline_mg_per_l: *g,
+        })
         .collect();
     let mut summary = CsvOut::create(&dir.join("summary.csv"), &output::summary_header(&contaminants))?;
     for (k, rows) in summary_rows.iter().enumerate() {
@@ -367,8 +386,12 @@ fn run_info(s: &Scenario) -> serde_json::Value {
     let mut strategies = vec![NO_CONTROL.to_string()];
     strategies.extend(s.strategies.iter().map(|st| st.name.clone()));
     let hydrology = match s.params.curves {
-        CoverCurves::Zhang { w_forest, w_grass } => serde_json::json!({"method": "zhang", "w_forest": w_forest, "w_grass": w_grass, "forest_pet_factor": s.params.forest_pet_factor}),
-        CoverCurves::Fu { omega_forest, omega_grass } => serde_json::json!({"method": "fu", "omega_forest": omega_forest, "omega_grass": omega_grass, "forest_pet_factor": s.params.forest_pet_factor}),
+        CoverCurves::Zhang { w_forest, w_grass } => {
+            serde_json::json!({"method": "zhang", "w_forest": w_forest, "w_grass": w_grass, "forest_pet_factor": s.params.forest_pet_factor})
+        }
+        CoverCurves::Fu { omega_forest, omega_grass } => {
+            serde_json::json!({"method": "fu", "omega_forest": omega_forest, "omega_grass": omega_grass, "forest_pet_factor": s.params.forest_pet_factor})
+        }
     };
     let inv = &s.params.invasion;
     serde_json::json!({
@@ -466,7 +489,12 @@ fn catchment_figures(dir: &Path, s: &Scenario, i: usize, years: &[YearResult], f
         "Water yield (mm/yr)".into(),
         vec![
             Line { label: "Projected".into(), points: pts(&|y| Some(y.yield_mm)), colour: palette::YIELD, dashed: false },
-            Line { label: "Baseline (current cover held)".into(), points: pts(&|y| Some(y.baseline_yield_mm)), colour: palette::BASELINE, dashed: true },
+            Line {
+                label: "Baseline (current cover held)".into(),
+                points: pts(&|y| Some(y.baseline_yield_mm)),
+                colour: palette::BASELINE,
+                dashed: true,
+            },
             Line { label: "No invasion".into(), points: pts(&|y| Some(y.uninvaded_yield_mm)), colour: palette::UNINVADED, dashed: true },
         ],
     );
@@ -476,7 +504,12 @@ fn catchment_figures(dir: &Path, s: &Scenario, i: usize, years: &[YearResult], f
         let mut chart = LineChart::over_years(
             format!("{} — {} concentration", c.name, m.name),
             format!("{} (mg/L)", m.name),
-            vec![Line { label: "Projected".into(), points: pts(&|y| y.concentrations[k].ok()), colour: palette::series(k + 1), dashed: false }],
+            vec![Line {
+                label: "Projected".into(),
+                points: pts(&|y| y.concentrations[k].ok()),
+                colour: palette::series(k + 1),
+                dashed: false,
+            }],
         );
         chart.thresholds = m.guideline_mg_per_l.map(|g| vec![(format!("Guideline {g} mg/L"), g, palette::GUIDELINE)]).unwrap_or_default();
         save_figure(&chart, &dir.join(format!("{stem}_{}", m.name)), formats)?;

@@ -207,7 +207,10 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
     let run_info = std::fs::read(infos[0].0.join(crate::io::outdir::MARKER)).unwrap_or_default();
     for (d, _) in &infos[1..] {
         if std::fs::read(d.join(crate::io::outdir::MARKER)).unwrap_or_default() != run_info {
-            problems.push(Problem::in_file(&d.join(crate::io::outdir::MARKER), "differs from the first shard's: shards must come from the same scenario"));
+            problems.push(Problem::in_file(
+                &d.join(crate::io::outdir::MARKER),
+                "differs from the first shard's: shards must come from the same scenario",
+            ));
         }
     }
     if !problems.is_empty() {

@@ -330,7 +330,10 @@ fn documented_ranges_are_enforced_at_their_bounds() {
                             && d.range_text.as_ref().map_or(true, |r| p.message.contains(r.as_str()))
                     });
                     if !located {
-                        wrong.push(format!("{key_path} = {v}: the message does not name the key, its line and the range {:?}: {e}", d.range_text));
+                        wrong.push(format!(
+                            "{key_path} = {v}: the message does not name the key, its line and the range {:?}: {e}",
+                            d.range_text
+                        ));
                     }
                 }
             }

@@ -50,12 +50,8 @@ fn a_hundred_thousand_catchments_validate_and_run() {
     assert_eq!(s.network.receiving_nodes().len(), ROWS / GROUP);
 
     let out = tmp.path().join("results");
-    let opts = RunOptions {
-        figures: FigureChoice::None,
-        formats: Formats { png: false, svg: false },
-        threads: Some(1),
-        ..RunOptions::new(&out)
-    };
+    let opts =
+        RunOptions { figures: FigureChoice::None, formats: Formats { png: false, svg: false }, threads: Some(1), ..RunOptions::new(&out) };
     let outcome = pipeline::run(&s, &opts).unwrap_or_else(|e| panic!("{e}"));
     assert_eq!(outcome.catchments, ROWS);
     assert_eq!(outcome.years, 2);
@@ -109,8 +105,13 @@ fn a_gigabyte_of_junk_is_refused_before_it_is_read() {
     assert!(e.to_string().contains("catchments.csv: file is 1024 MiB"), "{e}");
 
     // As a climate table too.
-    std::fs::write(tmp.path().join("small.csv"), "id,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha\na,100,1000,800,50,1,1,1\n").unwrap();
-    std::fs::write(&scenario, "start_year = 2030\nhorizon_years = 2\ncatchments = \"small.csv\"\n[climate]\ntable = \"catchments.csv\"\n").unwrap();
+    std::fs::write(
+        tmp.path().join("small.csv"),
+        "id,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha\na,100,1000,800,50,1,1,1\n",
+    )
+    .unwrap();
+    std::fs::write(&scenario, "start_year = 2030\nhorizon_years = 2\ncatchments = \"small.csv\"\n[climate]\ntable = \"catchments.csv\"\n")
+        .unwrap();
     let e = load_scenario(&scenario).unwrap_err();
     assert!(e.to_string().contains("file is 1024 MiB"), "{e}");
 

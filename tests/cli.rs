@@ -33,9 +33,23 @@ fn demo_run_writes_every_output() {
 
     let h = header(&out.join("yearly.csv"));
     for c in [
-        "catchment", "strategy", "year", "rain_mm", "pet_mm", "et_mm", "yield_mm", "yield_m3", "baseline_yield_mm",
-        "uninvaded_yield_mm", "yield_change_pct", "canopy_fraction", "scattered_ha", "medium_ha", "dense_ha",
-        "nitrate_n_mg_per_l", "total_p_mg_per_l",
+        "catchment",
+        "strategy",
+        "year",
+        "rain_mm",
+        "pet_mm",
+        "et_mm",
+        "yield_mm",
+        "yield_m3",
+        "baseline_yield_mm",
+        "uninvaded_yield_mm",
+        "yield_change_pct",
+        "canopy_fraction",
+        "scattered_ha",
+        "medium_ha",
+        "dense_ha",
+        "nitrate_n_mg_per_l",
+        "total_p_mg_per_l",
     ] {
         assert!(h.iter().any(|x| x == c), "yearly.csv lacks {c}");
     }
@@ -70,7 +84,10 @@ fn demo_run_writes_every_output() {
     assert_eq!(delay.lines().count(), 1 + 4, "contain-early lists four delays");
     assert!(std::fs::read_to_string(out.join("budget.csv")).unwrap().lines().count() > 3 * 61);
     let info = std::fs::read_to_string(out.join("run_info.json")).unwrap();
-    assert!(info.contains("not a substitute for a site hydrological assessment") || info.contains("Not a substitute for a site hydrological assessment"));
+    assert!(
+        info.contains("not a substitute for a site hydrological assessment")
+            || info.contains("Not a substitute for a site hydrological assessment")
+    );
 
     let pngs: Vec<_> = std::fs::read_dir(out.join("figures"))
         .unwrap()
@@ -79,8 +96,14 @@ fn demo_run_writes_every_output() {
         .collect();
     let per_catchment = pngs
         .iter()
-        .filter(|p| !["basin_", "strategies_", "delay_", "map_"].iter().any(|pre| p.file_name().unwrap().to_string_lossy().starts_with(pre)))
-        .filter(|p| !["_yield_bands.png", "_sensitivity.png", "_range.png"].iter().any(|suf| p.file_name().unwrap().to_string_lossy().ends_with(suf)))
+        .filter(|p| {
+            !["basin_", "strategies_", "delay_", "map_"].iter().any(|pre| p.file_name().unwrap().to_string_lossy().starts_with(pre))
+        })
+        .filter(|p| {
+            !["_yield_bands.png", "_sensitivity.png", "_range.png"]
+                .iter()
+                .any(|suf| p.file_name().unwrap().to_string_lossy().ends_with(suf))
+        })
         .count();
     for id in ["scree", "tussock-flat", "mistle", "cairn", "greywacke", "ardmere-lower"] {
         for suffix in ["yield_range", "sensitivity"] {
@@ -165,7 +188,8 @@ fn check_accepts_the_demo_and_missing_files_exit_2() {
 #[test]
 fn unknown_scenario_key_is_reported_with_a_suggestion() {
     let tmp = tempfile::tempdir().unwrap();
-    let s = broken_scenario(tmp.path(), "id,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha\na,100,1000,800,50,1,1,1\n");
+    let s =
+        broken_scenario(tmp.path(), "id,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha\na,100,1000,800,50,1,1,1\n");
     let mut t = std::fs::read_to_string(&s).unwrap();
     t.push_str("\n[invasion]\nspread_rate_per_year = 0.05\n");
     std::fs::write(&s, t).unwrap();
@@ -221,7 +245,16 @@ fn pet_from_weather_feeds_the_projection_and_matches_the_pet_command() {
     assert!(o.status.success(), "{}", text(&o));
     let info = std::fs::read_to_string(out.join("run_info.json")).unwrap();
     assert!(info.contains("\"method\": \"hargreaves\""), "{info}");
-    let o = run(&["pet", dir.join("weather.csv").to_str().unwrap(), "--out", dir.join("pet.csv").to_str().unwrap(), "--latitude-deg", "-44.1", "--elevation-m", "640"]);
+    let o = run(&[
+        "pet",
+        dir.join("weather.csv").to_str().unwrap(),
+        "--out",
+        dir.join("pet.csv").to_str().unwrap(),
+        "--latitude-deg",
+        "-44.1",
+        "--elevation-m",
+        "640",
+    ]);
     assert!(o.status.success(), "{}", text(&o));
     let annual = std::fs::read_to_string(dir.join("pet_annual.csv")).unwrap();
     let pet2021: f64 = annual.lines().find(|l| l.contains(",2021,")).unwrap().split(',').nth(2).unwrap().parse().unwrap();

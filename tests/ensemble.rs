@@ -30,11 +30,19 @@ fn distribution_moments_match_their_formulas() {
         // Source: uniform moments (a + b)/2, (b − a)²/12 (e.g. Johnson, Kotz & Balakrishnan 1995, ch. 26).
         (Distribution::Uniform { min: 2.0, max: 5.0 }, 3.5, 9.0 / 12.0),
         // Source: triangular moments (a + b + c)/3, (a² + b² + c² − ab − ac − bc)/18 (Evans, Hastings & Peacock 2000, ch. 40).
-        (Distribution::Triangular { min: 0.04, mode: 0.06, max: 0.08 }, 0.06, (0.04f64.powi(2) + 0.06f64.powi(2) + 0.08f64.powi(2) - 0.04 * 0.06 - 0.04 * 0.08 - 0.06 * 0.08) / 18.0),
+        (
+            Distribution::Triangular { min: 0.04, mode: 0.06, max: 0.08 },
+            0.06,
+            (0.04f64.powi(2) + 0.06f64.powi(2) + 0.08f64.powi(2) - 0.04 * 0.06 - 0.04 * 0.08 - 0.06 * 0.08) / 18.0,
+        ),
         // Source: normal moments (untruncated: bounds at ±10 sd change nothing measurable).
         (Distribution::Normal { mean: 12.0, sd: 2.0, min: -8.0, max: 32.0 }, 12.0, 4.0),
         // Source: log-normal moments exp(μ + σ²/2), (e^{σ²} − 1) e^{2μ + σ²} (Aitchison & Brown 1957).
-        (Distribution::LogNormal { median: 3.0, sigma_log: 0.25 }, 3.0 * (0.25f64.powi(2) / 2.0).exp(), (0.0625f64.exp() - 1.0) * 9.0 * 0.0625f64.exp()),
+        (
+            Distribution::LogNormal { median: 3.0, sigma_log: 0.25 },
+            3.0 * (0.25f64.powi(2) / 2.0).exp(),
+            (0.0625f64.exp() - 1.0) * 9.0 * 0.0625f64.exp(),
+        ),
         // Source: beta-PERT mean (a + 4m + b)/6 and variance (μ − a)(b − μ)/7 (Vose 2008, §10.3.5; exact for the PERT form with λ = 4 when the mode is central).
         (Distribution::Pert { min: 1.5, mode: 2.0, max: 2.5 }, 2.0, (0.5 * 0.5) / 7.0),
         (Distribution::Fixed { value: 7.0 }, 7.0, 0.0),
@@ -73,7 +81,8 @@ fn percentiles_of_a_normal_sample_match_the_inverse_cdf() {
 fn lean_kernel_matches_the_reference_projection() {
     let p = params();
     let c = tussock(2000.0, 1200.0, 900.0, 1800.0, ClassAreas { scattered_ha: 120.0, medium_ha: 60.0, dense_ha: 30.0 });
-    let clim: Vec<ClimateYear> = (0..61).map(|t| ClimateYear { rain_mm: 1200.0 + 150.0 * ((t as f64) * 0.7).sin(), pet_mm: 900.0 }).collect();
+    let clim: Vec<ClimateYear> =
+        (0..61).map(|t| ClimateYear { rain_mm: 1200.0 + 150.0 * ((t as f64) * 0.7).sin(), pet_mm: 900.0 }).collect();
     let reference = project_catchment(&c, &clim, &p, 2027);
     let mut lean = LeanYears::default();
     project_lean(&c, &clim, &p, &mut lean);
@@ -154,7 +163,11 @@ fn fixed_parameters_and_no_climate_variability_collapse_onto_the_deterministic_r
 #[test]
 fn same_seed_gives_identical_bytes_with_one_or_two_threads() {
     let tmp = tempfile::tempdir().unwrap();
-    let s = scenario_with(tmp.path(), "[ensemble]\nmembers = 24\nseed = 9\nclimate = \"bootstrap\"\nblock_years = 4\nwrite_members = true\n\n", None);
+    let s = scenario_with(
+        tmp.path(),
+        "[ensemble]\nmembers = 24\nseed = 9\nclimate = \"bootstrap\"\nblock_years = 4\nwrite_members = true\n\n",
+        None,
+    );
     let mut outputs = Vec::new();
     for threads in ["1", "2"] {
         let out = tmp.path().join(format!("res{threads}"));
@@ -203,7 +216,8 @@ fn sharded_and_merged_equals_unsharded_byte_for_byte() {
     let tmp = tempfile::tempdir().unwrap();
     let s = scenario_with(tmp.path(), "[ensemble]\nmembers = 12\nseed = 5\nclimate = \"bootstrap\"\nwrite_members = true\n\n", None);
     // Per-catchment budgets: the only strategies that can be sharded.
-    let text = std::fs::read_to_string(&s).unwrap().replace("budget_per_yr = 150000", "budget_per_yr = 30000\nbudget_scope = \"catchment\"");
+    let text =
+        std::fs::read_to_string(&s).unwrap().replace("budget_per_yr = 150000", "budget_per_yr = 30000\nbudget_scope = \"catchment\"");
     std::fs::write(&s, text).unwrap();
     let run = |args: &[&str]| {
         let o = bin().args(args).output().unwrap();
@@ -212,12 +226,24 @@ fn sharded_and_merged_equals_unsharded_byte_for_byte() {
     let p = |n: &str| tmp.path().join(n).to_str().unwrap().to_string();
     run(&["run", s.to_str().unwrap(), "--out", &p("full"), "--quiet", "--figure-format", "png"]);
     for k in 1..=3 {
-        run(&["run", s.to_str().unwrap(), "--out", &p(&format!("s{k}")), "--shard", &format!("{k}/3"), "--quiet", "--figure-format", "png"]);
+        run(&[
+            "run",
+            s.to_str().unwrap(),
+            "--out",
+            &p(&format!("s{k}")),
+            "--shard",
+            &format!("{k}/3"),
+            "--quiet",
+            "--figure-format",
+            "png",
+        ]);
     }
     run(&["merge", &p("s3"), &p("s1"), &p("s2"), "--out", &p("merged")]);
     let full = files_under(&tmp.path().join("full"));
     let merged = files_under(&tmp.path().join("merged"));
-    let rel = |v: &[std::path::PathBuf], root: &str| v.iter().map(|f| f.strip_prefix(tmp.path().join(root)).unwrap().to_path_buf()).collect::<Vec<_>>();
+    let rel = |v: &[std::path::PathBuf], root: &str| {
+        v.iter().map(|f| f.strip_prefix(tmp.path().join(root)).unwrap().to_path_buf()).collect::<Vec<_>>()
+    };
     assert_eq!(rel(&full, "full"), rel(&merged, "merged"));
     for (a, b) in full.iter().zip(&merged) {
         assert!(std::fs::read(a).unwrap() == std::fs::read(b).unwrap(), "{} differs", a.display());
@@ -234,10 +260,12 @@ fn shared_budgets_cannot_be_sharded_and_incomplete_merges_are_refused() {
     assert!(String::from_utf8_lossy(&o.stderr).contains("budget_scope = \"catchment\""));
     let o = bin().args(["run", s.to_str().unwrap(), "--out", "x", "--shard", "3/2"]).output().unwrap();
     assert_eq!(o.status.code(), Some(2));
-    let text = std::fs::read_to_string(&s).unwrap().replace("budget_per_yr = 150000", "budget_per_yr = 30000\nbudget_scope = \"catchment\"");
+    let text =
+        std::fs::read_to_string(&s).unwrap().replace("budget_per_yr = 150000", "budget_per_yr = 30000\nbudget_scope = \"catchment\"");
     std::fs::write(&s, text).unwrap();
     let one = tmp.path().join("s1");
-    let o = bin().args(["run", s.to_str().unwrap(), "--out", one.to_str().unwrap(), "--shard", "1/2", "--figures", "none"]).output().unwrap();
+    let o =
+        bin().args(["run", s.to_str().unwrap(), "--out", one.to_str().unwrap(), "--shard", "1/2", "--figures", "none"]).output().unwrap();
     assert!(o.status.success());
     let o = bin().args(["merge", one.to_str().unwrap(), "--out", tmp.path().join("m").to_str().unwrap()]).output().unwrap();
     assert_eq!(o.status.code(), Some(2));
@@ -263,7 +291,8 @@ fn calibrated_values_given_as_distributions_vary_only_their_catchments() {
     )
     .unwrap();
     let out = dir.join("res");
-    let o = bin().args(["run", dir.join("s.toml").to_str().unwrap(), "--out", out.to_str().unwrap(), "--figures", "none"]).output().unwrap();
+    let o =
+        bin().args(["run", dir.join("s.toml").to_str().unwrap(), "--out", out.to_str().unwrap(), "--figures", "none"]).output().unwrap();
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     let ens = std::fs::read_to_string(out.join("ensemble.csv")).unwrap();
     let band = |id: &str| -> Vec<String> {

@@ -169,7 +169,13 @@ fn noise_free_fu_record_recovers_omega() {
         let years = (0..30)
             .map(|t| {
                 let (p, e0) = climate(t);
-                GaugeYear { year: 1990 + t as i32, rain_mm: p, pet_mm: e0, pet_forest_mm: e0, observed_yield_mm: p - fu_et_mm(p, e0, omega) }
+                GaugeYear {
+                    year: 1990 + t as i32,
+                    rain_mm: p,
+                    pet_mm: e0,
+                    pet_forest_mm: e0,
+                    observed_yield_mm: p - fu_et_mm(p, e0, omega),
+                }
             })
             .collect();
         let r = GaugeRecord::new(CoverCurves::Fu { omega_forest: 2.97, omega_grass: 2.16 }, Cover::Grass, 0.0, years).unwrap();
@@ -377,7 +383,16 @@ fn observed_table_is_aligned_with_the_climate_and_gaps_are_reported() {
     // flow_m3 → mm: 1 mm over 1 ha is 10 m³ (unit conversion).
     let y = obs.series[1].years[0];
     let area = sc.catchments[1].area_ha;
-    let raw: f64 = std::fs::read_to_string(&o).unwrap().lines().find(|l| l.starts_with("second,1990,")).unwrap().split(',').nth(3).unwrap().parse().unwrap();
+    let raw: f64 = std::fs::read_to_string(&o)
+        .unwrap()
+        .lines()
+        .find(|l| l.starts_with("second,1990,"))
+        .unwrap()
+        .split(',')
+        .nth(3)
+        .unwrap()
+        .parse()
+        .unwrap();
     assert_abs_diff_eq!(y.flow_mm, raw / (10.0 * area), epsilon = 1e-12);
 }
 
@@ -394,7 +409,9 @@ fn observed_table_errors_name_row_and_column() {
     .unwrap();
     let e = read_observed(&p, &sc).unwrap_err();
     assert!(e.is_invalid_input());
-    let at = |row: usize, col: &str| e.problems().iter().find(|q| q.row == Some(row) && q.column.as_deref() == Some(col)).map(|q| q.message.clone());
+    let at = |row: usize, col: &str| {
+        e.problems().iter().find(|q| q.row == Some(row) && q.column.as_deref() == Some(col)).map(|q| q.message.clone())
+    };
     assert!(at(3, "catchment").unwrap().contains("did you mean 'gauged'"), "{e}");
     assert!(at(4, "flow_mm").unwrap().contains("write 12"), "{e}");
     assert!(at(5, "year").unwrap().contains("appears twice (first on row 2)"), "{e}");
@@ -498,7 +515,19 @@ fn fit_command_is_reproducible_with_a_seed() {
     let o = write_observed(tmp.path(), &s);
     let fit = |name: &str| {
         let out = tmp.path().join(name);
-        let r = bin(&["fit", s.to_str().unwrap(), "--observed", o.to_str().unwrap(), "--out", out.to_str().unwrap(), "--bootstrap", "150", "--seed", "5", "-q"]);
+        let r = bin(&[
+            "fit",
+            s.to_str().unwrap(),
+            "--observed",
+            o.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+            "--bootstrap",
+            "150",
+            "--seed",
+            "5",
+            "-q",
+        ]);
         assert!(r.status.success(), "{}", text(&r));
         assert!(r.stdout.is_empty(), "--quiet prints nothing");
         std::fs::read_to_string(out.join("fit.csv")).unwrap()
@@ -541,7 +570,18 @@ fn impossible_record_exits_2_and_writes_nothing() {
     assert!(msg.contains("catchment 'gauged'") && msg.contains("not below the mean rainfall") && msg.contains("row 2"), "{msg}");
     assert!(!out.exists());
     // Bad options are usage errors too.
-    let r = bin(&["fit", s.to_str().unwrap(), "--observed", o.to_str().unwrap(), "--out", out.to_str().unwrap(), "--moving-average-yr", "0", "--donor", "dry"]);
+    let r = bin(&[
+        "fit",
+        s.to_str().unwrap(),
+        "--observed",
+        o.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--moving-average-yr",
+        "0",
+        "--donor",
+        "dry",
+    ]);
     assert_eq!(r.status.code(), Some(2), "{}", text(&r));
     let msg = text(&r);
     assert!(msg.contains("--moving-average-yr") && msg.contains("UNGAUGED=GAUGED"), "{msg}");

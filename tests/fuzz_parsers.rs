@@ -11,7 +11,8 @@ use yieldshift::io::table::{nearest, parse_number, parse_table, suggestion};
 use yieldshift::io::toml_reader::read_toml_file;
 use yieldshift::model::project_catchment;
 
-const CATCHMENTS: &str = "id,name,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha,forest_ha,flows_to,nitrate_n_point_kg_per_yr,notes\n\
+const CATCHMENTS: &str =
+    "id,name,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha,forest_ha,flows_to,nitrate_n_point_kg_per_yr,notes\n\
 upper,Upper Fork,1200,1400,820,900,40,10,5,100,lower,0,\n\
 middle,\"Middle Reach, east\",800,1100,850,600,20,5,0,0,lower,12.5,\"two\nlines\"\n\
 lower,Lower Flats,1500,950,880,1100,60,30,20,50,,0,\n";
@@ -60,30 +61,144 @@ guideline_mg_per_l = 1.5
 
 /// Pieces people and spreadsheets put in CSV files, good and bad.
 const CSV_TOKENS: &[&str] = &[
-    ",", ";", "\t", "\n", "\r\n", "\r", "\"", "\"\"", " ", "\u{feff}", "id", "area_ha", "rain_mm", "pet_mm", "flows_to",
-    "vulnerable_fraction", "scattered_ha", "1", "0", "-5", "12,5", "1,250", "1.234,5", "1e400", "NaN", "inf", "-inf", "45%",
-    "1200 mm", "\u{2212}3", "#DIV/0!", "n/a", "é", "\u{a0}", "upper", "lower", "middle", "\0", "\u{1F332}", "999999999999",
-    "0.000001", "1e-320", "+", ".", "-",
+    ",",
+    ";",
+    "\t",
+    "\n",
+    "\r\n",
+    "\r",
+    "\"",
+    "\"\"",
+    " ",
+    "\u{feff}",
+    "id",
+    "area_ha",
+    "rain_mm",
+    "pet_mm",
+    "flows_to",
+    "vulnerable_fraction",
+    "scattered_ha",
+    "1",
+    "0",
+    "-5",
+    "12,5",
+    "1,250",
+    "1.234,5",
+    "1e400",
+    "NaN",
+    "inf",
+    "-inf",
+    "45%",
+    "1200 mm",
+    "\u{2212}3",
+    "#DIV/0!",
+    "n/a",
+    "é",
+    "\u{a0}",
+    "upper",
+    "lower",
+    "middle",
+    "\0",
+    "\u{1F332}",
+    "999999999999",
+    "0.000001",
+    "1e-320",
+    "+",
+    ".",
+    "-",
 ];
 
 /// Values of every TOML type, including ones no key accepts.
 const TOML_VALUES: &[&str] = &[
-    "0", "1", "-1", "0.5", "2", "20", "300", "301", "2030", "1e308", "-1e308", "nan", "inf", "-inf", "\"\"", "\"zhang\"", "\"fu\"",
-    "\"table\"", "\"logistic\"", "\"cycle\"", "\"error\"", "\"mean\"", "\"0.06\"", "\"catchments.csv\"", "\"climate.csv\"",
-    "\"/dev/null\"", "\".\"", "true", "[]", "[1, 2, 3]", "[3, 2, 1]", "[0, 0.5, 1]", "[\"a\"]", "{}", "{ dist = \"uniform\", min = 0, max = 1 }",
-    "1979-05-27", "9223372036854775807", "-9223372036854775808",
+    "0",
+    "1",
+    "-1",
+    "0.5",
+    "2",
+    "20",
+    "300",
+    "301",
+    "2030",
+    "1e308",
+    "-1e308",
+    "nan",
+    "inf",
+    "-inf",
+    "\"\"",
+    "\"zhang\"",
+    "\"fu\"",
+    "\"table\"",
+    "\"logistic\"",
+    "\"cycle\"",
+    "\"error\"",
+    "\"mean\"",
+    "\"0.06\"",
+    "\"catchments.csv\"",
+    "\"climate.csv\"",
+    "\"/dev/null\"",
+    "\".\"",
+    "true",
+    "[]",
+    "[1, 2, 3]",
+    "[3, 2, 1]",
+    "[0, 0.5, 1]",
+    "[\"a\"]",
+    "{}",
+    "{ dist = \"uniform\", min = 0, max = 1 }",
+    "1979-05-27",
+    "9223372036854775807",
+    "-9223372036854775808",
 ];
 
 const TOML_KEYS: &[&str] = &[
-    "title", "start_year", "horizon_years", "catchments", "table", "beyond_record", "method", "w_forest", "w_grass", "omega_forest",
-    "omega_grass", "forest_pet_factor", "spread_rate_per_yr", "seed_bearing_age_yr", "seed_rain_ha_per_yr", "medium_age_yr",
-    "dense_age_yr", "initial_dense_span_yr", "curve", "half_closure_age_yr", "steepness_per_yr", "max_fraction", "ages_yr",
-    "fractions", "min_runoff_mm", "name", "open_export_kg_per_ha_yr", "forest_export_kg_per_ha_yr", "guideline_mg_per_l",
-    "catchment", "donor", "unknown_key", "\"quoted key\"", "a.b",
+    "title",
+    "start_year",
+    "horizon_years",
+    "catchments",
+    "table",
+    "beyond_record",
+    "method",
+    "w_forest",
+    "w_grass",
+    "omega_forest",
+    "omega_grass",
+    "forest_pet_factor",
+    "spread_rate_per_yr",
+    "seed_bearing_age_yr",
+    "seed_rain_ha_per_yr",
+    "medium_age_yr",
+    "dense_age_yr",
+    "initial_dense_span_yr",
+    "curve",
+    "half_closure_age_yr",
+    "steepness_per_yr",
+    "max_fraction",
+    "ages_yr",
+    "fractions",
+    "min_runoff_mm",
+    "name",
+    "open_export_kg_per_ha_yr",
+    "forest_export_kg_per_ha_yr",
+    "guideline_mg_per_l",
+    "catchment",
+    "donor",
+    "unknown_key",
+    "\"quoted key\"",
+    "a.b",
 ];
 
-const TOML_HEADERS: &[&str] =
-    &["", "[climate]", "[hydrology]", "[invasion]", "[canopy_closure]", "[dilution]", "[[contaminant]]", "[[calibration]]", "[invasoin]", "[hydrology.extra]"];
+const TOML_HEADERS: &[&str] = &[
+    "",
+    "[climate]",
+    "[hydrology]",
+    "[invasion]",
+    "[canopy_closure]",
+    "[dilution]",
+    "[[contaminant]]",
+    "[[calibration]]",
+    "[invasoin]",
+    "[hydrology.extra]",
+];
 
 fn write_case(dir: &Path, scenario: &[u8], catchments: &[u8], climate: &[u8]) -> PathBuf {
     std::fs::write(dir.join("catchments.csv"), catchments).unwrap();
@@ -331,7 +446,15 @@ struct Row {
 /// A plausible row: every value in range, infestation within the vulnerable
 /// area, which is within the open land.
 fn row() -> impl Strategy<Value = Row> {
-    (1.0f64..5000.0, 300.0f64..4000.0, 300.0f64..1500.0, 0.0f64..0.5, 0.0f64..1.0, proptest::array::uniform3(0.0f64..0.33), proptest::option::of(0usize..6))
+    (
+        1.0f64..5000.0,
+        300.0f64..4000.0,
+        300.0f64..1500.0,
+        0.0f64..0.5,
+        0.0f64..1.0,
+        proptest::array::uniform3(0.0f64..0.33),
+        proptest::option::of(0usize..6),
+    )
         .prop_map(|(area, rain, pet, forest_frac, vuln_frac, class_fracs, to)| {
             let forest_ha = area * forest_frac;
             let vulnerable_ha = (area - forest_ha) * vuln_frac;
@@ -428,9 +551,14 @@ fn render(rows: &[Row], bom: bool, crlf: bool, semicolon: bool, quote: bool, bla
     let num = |v: f64| {
         let s = format!("{v}");
         let s = if semicolon { s.replace('.', ",") } else { s };
-        if quote { format!("\"{s}\"") } else { s }
+        if quote {
+            format!("\"{s}\"")
+        } else {
+            s
+        }
     };
-    let mut header = vec!["id", "area_ha", "rain_mm", "pet_mm", "forest_ha", "vulnerable_ha", "scattered_ha", "medium_ha", "dense_ha", "flows_to"];
+    let mut header =
+        vec!["id", "area_ha", "rain_mm", "pet_mm", "forest_ha", "vulnerable_ha", "scattered_ha", "medium_ha", "dense_ha", "flows_to"];
     let mut lines = Vec::new();
     for (i, r) in rows.iter().enumerate() {
         let to = match r.flows_to {

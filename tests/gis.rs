@@ -178,7 +178,13 @@ fn area_mismatches_are_reported_with_both_areas() {
     assert!((scree.relative_difference - (scree.geometry_area_ha / 3000.0 - 1.0)).abs() < 1e-12);
     assert!(scree.relative_difference < -0.19 && scree.relative_difference > -0.21);
     let msg = scree.message();
-    assert!(msg.contains("'scree'") && msg.contains("table's area_ha is 3000 ha") && msg.contains("is 2402 ha") && msg.contains("area_from_geometry"), "{msg}");
+    assert!(
+        msg.contains("'scree'")
+            && msg.contains("table's area_ha is 3000 ha")
+            && msg.contains("is 2402 ha")
+            && msg.contains("area_from_geometry"),
+        "{msg}"
+    );
     // Within a 25% tolerance nothing is reported.
     assert!(area_mismatches(&b, &inflated, 0.25).is_empty());
 }
@@ -240,7 +246,13 @@ fn missing_id_is_refused_naming_the_feature() {
     let mut f = good_features();
     f[1] = feature("\"name\": \"Cairn Water\", \"ID\": \"cairn\"", &polygon(&square(170.05, -44.3)));
     let p = refused(&f);
-    assert!(p.iter().any(|m| m.contains("row 3") && m.contains("features[1].properties.id") && m.contains("feature 2: has no property 'id'") && m.contains("did you mean 'ID'")), "{p:#?}");
+    assert!(
+        p.iter().any(|m| m.contains("row 3")
+            && m.contains("features[1].properties.id")
+            && m.contains("feature 2: has no property 'id'")
+            && m.contains("did you mean 'ID'")),
+        "{p:#?}"
+    );
     // ... and the catchment is then reported as having no boundary.
     assert!(p.iter().any(|m| m.contains("catchment 'cairn' of the catchment table has no feature")), "{p:#?}");
 }
@@ -250,7 +262,12 @@ fn unknown_id_is_refused_with_a_suggestion() {
     let mut f = good_features();
     f[2] = feature("\"id\": \"mistel\"", &polygon(&square(170.1, -44.3)));
     let p = refused(&f);
-    assert!(p.iter().any(|m| m.contains("feature 3 (id 'mistel')") && m.contains("not a catchment of the catchment table") && m.contains("did you mean 'mistle'")), "{p:#?}");
+    assert!(
+        p.iter().any(|m| m.contains("feature 3 (id 'mistel')")
+            && m.contains("not a catchment of the catchment table")
+            && m.contains("did you mean 'mistle'")),
+        "{p:#?}"
+    );
 }
 
 #[test]
@@ -267,7 +284,9 @@ fn unclosed_ring_is_refused_naming_the_feature() {
     f[0] = feature("\"id\": \"scree\"", &polygon("[[[170.0, -44.3], [170.05, -44.3], [170.05, -44.25], [170.0, -44.25]]]"));
     let p = refused(&f);
     assert!(
-        p.iter().any(|m| m.contains("feature 1 (id 'scree')") && m.contains("exterior ring is not closed") && m.contains("features[0].geometry.coordinates[0]")),
+        p.iter().any(|m| m.contains("feature 1 (id 'scree')")
+            && m.contains("exterior ring is not closed")
+            && m.contains("features[0].geometry.coordinates[0]")),
         "{p:#?}"
     );
 }
@@ -276,7 +295,10 @@ fn unclosed_ring_is_refused_naming_the_feature() {
 fn projected_coordinates_are_refused_naming_the_feature() {
     let mut f = good_features();
     // Metres of a national transverse Mercator grid, as a GIS export without reprojection gives.
-    f[1] = feature("\"id\": \"cairn\"", &polygon("[[[1370000, 5090000], [1372000, 5090000], [1372000, 5092000], [1370000, 5092000], [1370000, 5090000]]]"));
+    f[1] = feature(
+        "\"id\": \"cairn\"",
+        &polygon("[[[1370000, 5090000], [1372000, 5090000], [1372000, 5092000], [1370000, 5092000], [1370000, 5090000]]]"),
+    );
     let p = refused(&f);
     assert!(p.iter().any(|m| m.contains("feature 2 (id 'cairn')") && m.contains("look projected")), "{p:#?}");
     assert!(p.iter().any(|m| m.contains("GeoJSON must be WGS84 longitude/latitude")), "{p:#?}");
@@ -285,7 +307,8 @@ fn projected_coordinates_are_refused_naming_the_feature() {
 #[test]
 fn self_intersection_is_refused_naming_the_feature() {
     let mut f = good_features();
-    f[2] = feature("\"id\": \"mistle\"", &polygon("[[[170.1, -44.3], [170.15, -44.25], [170.15, -44.3], [170.1, -44.22], [170.1, -44.3]]]"));
+    f[2] =
+        feature("\"id\": \"mistle\"", &polygon("[[[170.1, -44.3], [170.15, -44.25], [170.15, -44.3], [170.1, -44.22], [170.1, -44.3]]]"));
     let p = refused(&f);
     assert!(p.iter().any(|m| m.contains("feature 3 (id 'mistle')") && m.contains("crosses or touches itself near")), "{p:#?}");
 }
@@ -337,7 +360,15 @@ fn demo_run() -> &'static Path {
         let out = Path::new(env!("CARGO_TARGET_TMPDIR")).join("gis-demo-run");
         let _ = std::fs::remove_dir_all(&out);
         let o = Command::new(env!("CARGO_BIN_EXE_yieldshift"))
-            .args(["run", root().join("demo-data/scenario.toml").to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet", "--figures", "none"])
+            .args([
+                "run",
+                root().join("demo-data/scenario.toml").to_str().unwrap(),
+                "--out",
+                out.to_str().unwrap(),
+                "--quiet",
+                "--figures",
+                "none",
+            ])
             .output()
             .expect("binary runs");
         assert!(o.status.success(), "{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
@@ -449,7 +480,8 @@ fn results_geojson_round_trip_keeps_every_feature_and_equals_summary_csv() {
     ids.sort();
     assert_eq!(ids, want, "every catchment id kept");
     // At least one guideline year is a number and one is null in the demo, so both paths are checked.
-    let years: Vec<&serde_json::Value> = fc.features.iter().map(|f| &f.properties.as_ref().unwrap()["total_p_first_exceedance_year"]).collect();
+    let years: Vec<&serde_json::Value> =
+        fc.features.iter().map(|f| &f.properties.as_ref().unwrap()["total_p_first_exceedance_year"]).collect();
     assert!(years.iter().any(|v| v.is_i64()) && years.iter().any(|v| v.is_null()), "{years:?}");
 
     // With the demo's ensemble, percentiles come from ensemble.csv.
@@ -459,7 +491,12 @@ fn results_geojson_round_trip_keeps_every_feature_and_equals_summary_csv() {
     let row = r
         .records()
         .map(|x| x.unwrap())
-        .find(|x| &x[col("catchment")] == "cairn" && &x[col("strategy")] == "no-control" && &x[col("year")] == "2087" && &x[col("variable")] == "yield_change_pct")
+        .find(|x| {
+            &x[col("catchment")] == "cairn"
+                && &x[col("strategy")] == "no-control"
+                && &x[col("year")] == "2087"
+                && &x[col("variable")] == "yield_change_pct"
+        })
         .unwrap();
     let cairn = lines.iter().find(|l| l.contains("\"id\":\"cairn\"")).unwrap();
     assert_same(cairn, "yield_change_horizon_pct_p50", &row[col("p50")], "cairn p50");

@@ -9,8 +9,8 @@
 use approx::assert_abs_diff_eq;
 use std::path::{Path, PathBuf};
 use yieldshift::io::weather::{
-    compute_pet_file, compute_pet_file_with, write_annual_csv, write_period_csv, GapRule, Period, PetMethodChoice,
-    PetOutput, SiteMeta, GAP_FILLED, STATUS_COMPLETE, STATUS_GAP_FILLED, STATUS_INCOMPLETE,
+    compute_pet_file, compute_pet_file_with, write_annual_csv, write_period_csv, GapRule, Period, PetMethodChoice, PetOutput, SiteMeta,
+    GAP_FILLED, STATUS_COMPLETE, STATUS_GAP_FILLED, STATUS_INCOMPLETE,
 };
 use yieldshift::model::pet::fao56::{self, Angstrom, Humidity, PenmanMonteithInput, Solar};
 use yieldshift::model::pet::hargreaves;
@@ -69,9 +69,9 @@ fn example_17() -> (Site, fao56::PenmanMonteithTerms) {
 fn fao56_example_17_monthly_penman_monteith() {
     let (_, t) = example_17();
     assert_abs_diff_eq!(t.delta_kpa_per_c, 0.246, epsilon = printed(3)); // Source: Allen et al. 1998, FAO-56, Example 17
-    // Source: Allen et al. 1998, FAO-56, Example 17 (γ = 0.0674). FAO-56 carries P rounded
-    // to 101.3 kPa (0.665e-3 × 101.3 = 0.06736); eq. 7 at z = 2 m gives P = 101.28 kPa and
-    // γ = 0.067349, one unit below in the 4th decimal: a chained rounding.
+                                                                         // Source: Allen et al. 1998, FAO-56, Example 17 (γ = 0.0674). FAO-56 carries P rounded
+                                                                         // to 101.3 kPa (0.665e-3 × 101.3 = 0.06736); eq. 7 at z = 2 m gives P = 101.28 kPa and
+                                                                         // γ = 0.067349, one unit below in the 4th decimal: a chained rounding.
     assert_abs_diff_eq!(t.gamma_kpa_per_c, 0.0674, epsilon = chained(4));
     assert_abs_diff_eq!(fao56::psychrometric_constant_kpa_per_c(101.3), 0.0674, epsilon = printed(4));
     assert_abs_diff_eq!(t.es_kpa, 4.42, epsilon = printed(2)); // Source: Allen et al. 1998, FAO-56, Example 17
@@ -82,7 +82,7 @@ fn fao56_example_17_monthly_penman_monteith() {
     assert_abs_diff_eq!(t.radiation.rn_mj_m2_day, 14.33, epsilon = printed(2)); // Source: Allen et al. 1998, FAO-56, Example 17
     assert_abs_diff_eq!(t.g_mj_m2_day, 0.14, epsilon = printed(2)); // Source: Allen et al. 1998, FAO-56, Example 17
     assert_abs_diff_eq!(t.et0_mm_per_day, 5.72, epsilon = printed(2)); // Source: Allen et al. 1998, FAO-56, Example 17
-    // From memory: Allen et al. 1998, FAO-56, Example 17 also prints N = 12.31 h.
+                                                                       // From memory: Allen et al. 1998, FAO-56, Example 17 also prints N = 12.31 h.
     assert_abs_diff_eq!(t.radiation.daylight_h, 12.31, epsilon = printed(2));
 }
 
@@ -140,7 +140,8 @@ fn fao56_example_18_through_the_weather_reader() {
     let out = compute_pet_file(&p, &site, PetMethodChoice::Auto).unwrap();
     assert_eq!(out.method, PetMethod::PenmanMonteith);
     assert_eq!(out.humidity_sources, vec![("rh_max_pct and rh_min_pct (eq. 17)", 1)]);
-    assert_abs_diff_eq!(out.periods[0].et0_mm_per_day, 3.88, epsilon = printed(2)); // Source: Allen et al. 1998, FAO-56, Example 18
+    assert_abs_diff_eq!(out.periods[0].et0_mm_per_day, 3.88, epsilon = printed(2));
+    // Source: Allen et al. 1998, FAO-56, Example 18
 }
 
 #[test]
@@ -250,7 +251,8 @@ fn agrees_with_pyet_fixture() {
         let (y, m, d): (i32, u32, u32) = (date[0..4].parse().unwrap(), date[5..7].parse().unwrap(), date[8..10].parse().unwrap());
         let j = day_of_year(y, m, d);
         let (tmax, tmin) = (num(&rec, "tmax_c").unwrap(), num(&rec, "tmin_c").unwrap());
-        let humidity = Humidity::from_best_available(None, None, num(&rec, "rh_max_pct"), num(&rec, "rh_min_pct"), num(&rec, "rh_mean_pct"));
+        let humidity =
+            Humidity::from_best_available(None, None, num(&rec, "rh_max_pct"), num(&rec, "rh_min_pct"), num(&rec, "rh_mean_pct"));
         let solar = Solar::SunshineHours(num(&rec, "sunshine_h").unwrap());
         let pm = fao56::penman_monteith(
             &site,

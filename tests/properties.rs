@@ -80,8 +80,8 @@ fn any_cover_curves() -> impl Strategy<Value = CoverCurves> {
 /// Spread and closure parameters in the ranges of docs/scenario.md, with a
 /// logistic closure (which never decreases with age).
 fn invasion() -> impl Strategy<Value = InvasionParams> {
-    (0.0f64..=1.0, 0u32..=100, 0.0f64..=500.0, 1u32..=100, 1u32..=100, 1u32..=100, 0.5f64..=200.0, 0.01f64..=10.0, 0.0f64..=1.0)
-        .prop_map(|(r, seed_age, seed_rain, medium, dense_extra, span, half, k, max)| InvasionParams {
+    (0.0f64..=1.0, 0u32..=100, 0.0f64..=500.0, 1u32..=100, 1u32..=100, 1u32..=100, 0.5f64..=200.0, 0.01f64..=10.0, 0.0f64..=1.0).prop_map(
+        |(r, seed_age, seed_rain, medium, dense_extra, span, half, k, max)| InvasionParams {
             spread_rate_per_yr: r,
             seed_bearing_age_yr: seed_age,
             seed_rain_ha_per_yr: seed_rain,
@@ -89,7 +89,8 @@ fn invasion() -> impl Strategy<Value = InvasionParams> {
             dense_age_yr: (medium + dense_extra).min(200).max(medium + 1),
             initial_dense_span_yr: span,
             closure: ClosureCurve::Logistic { half_closure_age_yr: half, steepness_per_yr: k, max_fraction: max },
-        })
+        },
+    )
 }
 
 /// A catchment the catchment-table reader would accept (docs/inputs.md).
@@ -154,7 +155,8 @@ fn params(curves: impl Strategy<Value = CoverCurves>, factor: std::ops::RangeInc
 /// A climate record in the climate-table ranges (rain 0–30 000, PET 0–6 000 mm/yr).
 fn climate(years: std::ops::Range<usize>) -> impl Strategy<Value = Vec<ClimateYear>> {
     proptest::collection::vec(
-        (prop_oneof![9 => 0.0f64..=30_000.0, 1 => Just(0.0)], 0.0f64..=6_000.0).prop_map(|(rain_mm, pet_mm)| ClimateYear { rain_mm, pet_mm }),
+        (prop_oneof![9 => 0.0f64..=30_000.0, 1 => Just(0.0)], 0.0f64..=6_000.0)
+            .prop_map(|(rain_mm, pet_mm)| ClimateYear { rain_mm, pet_mm }),
         years,
     )
 }

@@ -237,7 +237,13 @@ fn network_sums_conserve_mass() {
     let p = params();
     let cs: Vec<_> = (0..4)
         .map(|i| {
-            let mut c = tussock(500.0 + 100.0 * i as f64, 900.0 + 200.0 * i as f64, 800.0, 400.0, ClassAreas { scattered_ha: 20.0, ..Default::default() });
+            let mut c = tussock(
+                500.0 + 100.0 * i as f64,
+                900.0 + 200.0 * i as f64,
+                800.0,
+                400.0,
+                ClassAreas { scattered_ha: 20.0, ..Default::default() },
+            );
             c.id = format!("c{i}");
             c.point_kg_per_yr = vec![100.0 * i as f64];
             c

@@ -191,7 +191,9 @@ fn json_at<'a>(v: &'a serde_json::Value, path: &str) -> &'a serde_json::Value {
     let mut cur = v;
     for k in path.split('.') {
         cur = match cur {
-            serde_json::Value::Array(a) => a.iter().find(|x| x.get("name").and_then(|n| n.as_str()) == Some(k)).unwrap_or_else(|| panic!("{path}")),
+            serde_json::Value::Array(a) => {
+                a.iter().find(|x| x.get("name").and_then(|n| n.as_str()) == Some(k)).unwrap_or_else(|| panic!("{path}"))
+            }
             _ => cur.get(k).unwrap_or_else(|| panic!("{path}")),
         };
     }
@@ -457,7 +459,8 @@ fn report_of_the_demo_run_matches_its_files() {
 
     // The key numbers of every summary row are in the report, and the Markdown shows the same text.
     let sourced = sourced_numbers(&html);
-    let mut key_cols: Vec<String> = summary.headers.iter().filter(|h| h.starts_with("yield_change_") || h.ends_with("_first_exceedance_year")).cloned().collect();
+    let mut key_cols: Vec<String> =
+        summary.headers.iter().filter(|h| h.starts_with("yield_change_") || h.ends_with("_first_exceedance_year")).cloned().collect();
     key_cols.extend(["total_cost", "water_saved_m3", "levelised_cost_per_m3", "benefit_cost_ratio"].map(String::from));
     let mut checked = 0;
     for r in &summary.rows {
@@ -593,7 +596,9 @@ fn ensemble_ranges_distributions_and_sensitivity_come_from_the_run() {
         assert!(html.contains(d) && md.contains(d), "distribution {d:?}");
     }
     assert!(!html.contains("no ensemble.csv"));
-    for stem in ["basin_sensitivity_year-20", "basin_sensitivity_horizon", "cairn_yield_range", "cairn_nitrate_n_range", "cairn_total_p_range"] {
+    for stem in
+        ["basin_sensitivity_year-20", "basin_sensitivity_horizon", "cairn_yield_range", "cairn_nitrate_n_range", "cairn_total_p_range"]
+    {
         let (size, var) = png_stats(&std::fs::read(dir.join("figures").join(format!("{stem}.png"))).unwrap());
         assert_eq!(size, yieldshift::plot::SIZE);
         assert!(var > 50.0, "{stem}");
@@ -612,7 +617,8 @@ fn without_an_ensemble_the_report_says_there_are_no_ranges() {
     assert!(html.contains("no sensitivity.csv"));
     let counts = check_sources(&dir, &html);
     assert!(!counts.contains_key("ensemble.csv"));
-    let names: Vec<String> = std::fs::read_dir(dir.join("figures")).unwrap().map(|e| e.unwrap().file_name().to_string_lossy().into_owned()).collect();
+    let names: Vec<String> =
+        std::fs::read_dir(dir.join("figures")).unwrap().map(|e| e.unwrap().file_name().to_string_lossy().into_owned()).collect();
     assert!(!names.iter().any(|n| n.starts_with("basin_sensitivity_") || n.ends_with("_range.png")), "{names:?}");
     // The scenario still states its distributions; the single run used their central values.
     assert!(html.contains("triangular: min 0.04, mode 0.06, max 0.08"));
@@ -690,7 +696,8 @@ fn an_svg_only_run_gets_svg_figures_embedded() {
     let out = bin().arg("run").arg(demo_scenario()).arg("--out").arg(&dir).args(["--figure-format", "svg", "--quiet"]).output().unwrap();
     ok(&out, "yieldshift run --figure-format svg");
     ok(&report(&dir), "yieldshift report");
-    let names: Vec<String> = std::fs::read_dir(dir.join("figures")).unwrap().map(|e| e.unwrap().file_name().to_string_lossy().into_owned()).collect();
+    let names: Vec<String> =
+        std::fs::read_dir(dir.join("figures")).unwrap().map(|e| e.unwrap().file_name().to_string_lossy().into_owned()).collect();
     assert!(!names.iter().any(|n| n.ends_with(".png")), "the report keeps to the run's formats: {names:?}");
     assert!(names.iter().any(|n| n == "basin_budyko_space.svg"));
     let html = std::fs::read_to_string(dir.join("report.html")).unwrap();

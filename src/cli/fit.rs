@@ -67,8 +67,11 @@ fn options(a: &FitArgs) -> crate::Result<FitOptions> {
     }
     if a.bootstrap != 0 && !(MIN_BOOTSTRAP..=MAX_BOOTSTRAP).contains(&a.bootstrap) {
         p.push(
-            Problem::new(format!("{} is out of range; allowed 0 (no interval) or {MIN_BOOTSTRAP} to {MAX_BOOTSTRAP} resamples", a.bootstrap))
-                .column("--bootstrap"),
+            Problem::new(format!(
+                "{} is out of range; allowed 0 (no interval) or {MIN_BOOTSTRAP} to {MAX_BOOTSTRAP} resamples",
+                a.bootstrap
+            ))
+            .column("--bootstrap"),
         );
     }
     let mut donors = Vec::new();
@@ -134,11 +137,7 @@ pub fn run(a: &FitArgs) -> anyhow::Result<()> {
         if !outcome.ungauged.is_empty() {
             println!("  ungauged (keep scenario values unless given a donor): {}", outcome.ungauged.join(", "));
         }
-        println!(
-            "wrote {} (fit.csv, fit_years.csv, left_out.csv, calibration.toml, {} figures)",
-            outcome.out.display(),
-            outcome.figures
-        );
+        println!("wrote {} (fit.csv, fit_years.csv, left_out.csv, calibration.toml, {} figures)", outcome.out.display(), outcome.figures);
         println!("PBIAS > 0 means the simulation overestimates. Screening estimates only; see run_info.json for cautions.");
     }
     Ok(())

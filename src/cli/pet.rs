@@ -7,8 +7,8 @@
 //! gaps and incomplete years.
 
 use crate::io::weather::{
-    compute_pet_file_with, read_site_file, write_annual_csv, write_period_csv, GapRule, PetMethodChoice, PetOutput,
-    SiteMeta, SiteFile, Timestep, STATUS_COMPLETE, STATUS_GAP_FILLED, STATUS_INCOMPLETE,
+    compute_pet_file_with, read_site_file, write_annual_csv, write_period_csv, GapRule, PetMethodChoice, PetOutput, SiteFile, SiteMeta,
+    Timestep, STATUS_COMPLETE, STATUS_GAP_FILLED, STATUS_INCOMPLETE,
 };
 use crate::{Error, Problem};
 use std::path::{Path, PathBuf};
@@ -97,13 +97,17 @@ fn site_meta(args: &PetArgs) -> Result<SiteMeta, Error> {
     let latitude = args.latitude_deg.or(file.latitude_deg);
     let elevation = args.elevation_m.or(file.elevation_m);
     let mut problems = Vec::new();
-    let where_from = if args.site.is_some() { "--latitude-deg or latitude_deg in the site file" } else { "--latitude-deg (or a --site file)" };
+    let where_from =
+        if args.site.is_some() { "--latitude-deg or latitude_deg in the site file" } else { "--latitude-deg (or a --site file)" };
     if latitude.is_none() {
-        problems.push(Problem::new(format!("the site latitude is required for the radiation terms: give {where_from}")).column("latitude_deg"));
+        problems
+            .push(Problem::new(format!("the site latitude is required for the radiation terms: give {where_from}")).column("latitude_deg"));
     }
     if elevation.is_none() {
         let from = if args.site.is_some() { "--elevation-m or elevation_m in the site file" } else { "--elevation-m (or a --site file)" };
-        problems.push(Problem::new(format!("the site elevation is required for the psychrometric constant: give {from}")).column("elevation_m"));
+        problems.push(
+            Problem::new(format!("the site elevation is required for the psychrometric constant: give {from}")).column("elevation_m"),
+        );
     }
     let (Some(latitude_deg), Some(elevation_m)) = (latitude, elevation) else {
         return Err(Error::Invalid(problems));
@@ -129,9 +133,7 @@ fn annual_path(args: &PetArgs) -> Result<PathBuf, Error> {
         return Ok(p.clone());
     }
     match args.out.file_stem() {
-        Some(stem) if !stem.is_empty() => {
-            Ok(args.out.with_file_name(format!("{}_annual.csv", stem.to_string_lossy())))
-        }
+        Some(stem) if !stem.is_empty() => Ok(args.out.with_file_name(format!("{}_annual.csv", stem.to_string_lossy()))),
         _ => Err(Error::invalid(Problem::in_file(&args.out, "is not a file name; give --out as a path like results/pet.csv"))),
     }
 }
@@ -235,18 +237,9 @@ fn summary(o: &PetOutput, choice: PetMethodChoice, out: &Path, annual_out: &Path
         })
         .collect();
     if !incomplete.is_empty() {
-        s.push_str(&format!(
-            "incomplete years (pet_status = incomplete; the climate table refuses them): {}\n",
-            incomplete.join(", ")
-        ));
+        s.push_str(&format!("incomplete years (pet_status = incomplete; the climate table refuses them): {}\n", incomplete.join(", ")));
     }
-    s.push_str(&format!(
-        "wrote {} ({} rows) and {} ({} rows)\n",
-        out.display(),
-        o.periods.len(),
-        annual_out.display(),
-        o.annual.len()
-    ));
+    s.push_str(&format!("wrote {} ({} rows) and {} ({} rows)\n", out.display(), o.periods.len(), annual_out.display(), o.annual.len()));
     s
 }
 

@@ -107,7 +107,13 @@ pub fn area_mismatches(b: &crate::gis::Boundaries, table_area_ha: &[(String, f64
     for (id, table) in table_area_ha {
         let Some(boundary) = b.get(id) else { continue };
         let geom = boundary.area_ha();
-        let rel = if *table > 0.0 { (geom - table) / table } else if geom > 0.0 { f64::INFINITY } else { 0.0 };
+        let rel = if *table > 0.0 {
+            (geom - table) / table
+        } else if geom > 0.0 {
+            f64::INFINITY
+        } else {
+            0.0
+        };
         if rel.abs() > tolerance {
             out.push(AreaMismatch { catchment: id.clone(), table_area_ha: *table, geometry_area_ha: geom, relative_difference: rel });
         }

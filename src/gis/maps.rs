@@ -66,8 +66,12 @@ fn project(b: &Boundaries) -> (LocalProjection, Vec<Projected>) {
     let out = b
         .iter()
         .map(|f| {
-            let polys: Vec<MapPolygon> =
-                f.geometry().0.iter().map(|p| MapPolygon { exterior: ring(p.exterior()), holes: p.interiors().iter().map(ring).collect() }).collect();
+            let polys: Vec<MapPolygon> = f
+                .geometry()
+                .0
+                .iter()
+                .map(|p| MapPolygon { exterior: ring(p.exterior()), holes: p.interiors().iter().map(ring).collect() })
+                .collect();
             // Anchor: centroid of the largest part when it lies inside it, else a point inside.
             let km: Vec<Polygon<f64>> = polys
                 .iter()
@@ -177,7 +181,8 @@ pub fn draw_maps(run_dir: &Path, b: &Boundaries, formats: Formats) -> Result<usi
             })
             .collect();
         let mut notes =
-            vec!["Yield change: water yield against the baseline (today's cover held fixed), same climate; negative = less water.".to_string()];
+            vec!["Yield change: water yield against the baseline (today's cover held fixed), same climate; negative = less water."
+                .to_string()];
         if n_maps > 1 {
             notes.push("Classes are the same on every yield map of this run.".to_string());
         }

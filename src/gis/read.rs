@@ -184,7 +184,9 @@ pub(crate) fn parse_boundaries(path: &Path, bytes: &[u8], id_property: &str, cat
             &mut problems,
             Problem::in_file(
                 path,
-                format!("catchment '{c}' of the catchment table has no feature with {id_property} = '{c}'; every catchment needs a boundary"),
+                format!(
+                    "catchment '{c}' of the catchment table has no feature with {id_property} = '{c}'; every catchment needs a boundary"
+                ),
             ),
         );
     }
@@ -282,8 +284,12 @@ fn feature_catchment_id(f: &Value, id_property: &str) -> Result<String, String> 
                 None => String::new(),
             };
             let top = match f.get("id") {
-                Some(Value::String(s)) => format!(" (the feature has a top-level \"id\" '{s}': copy it into the properties or name another id_property)"),
-                Some(Value::Number(n)) => format!(" (the feature has a top-level \"id\" {n}: copy it into the properties or name another id_property)"),
+                Some(Value::String(s)) => {
+                    format!(" (the feature has a top-level \"id\" '{s}': copy it into the properties or name another id_property)")
+                }
+                Some(Value::Number(n)) => {
+                    format!(" (the feature has a top-level \"id\" {n}: copy it into the properties or name another id_property)")
+                }
                 _ => String::new(),
             };
             Err(format!("has no property '{id_property}' holding the catchment id{near}{top}"))
@@ -328,7 +334,10 @@ mod tests {
         let all: Vec<String> = e.iter().map(|p| p.to_string()).collect();
         assert_eq!(e.len(), 3, "{all:?}");
         assert!(all[0].contains("row 3") && all[0].contains("features[1].properties.id"), "{all:?}");
-        assert!(all[0].contains("feature 2 (id 'Cairn'): 'Cairn' is not a catchment") && all[0].contains("did you mean 'cairn'"), "{all:?}");
+        assert!(
+            all[0].contains("feature 2 (id 'Cairn'): 'Cairn' is not a catchment") && all[0].contains("did you mean 'cairn'"),
+            "{all:?}"
+        );
         assert!(all[1].contains("row 4") && all[1].contains("also used by feature 1"), "{all:?}");
         assert!(all[2].contains("catchment 'cairn' of the catchment table has no feature"), "{all:?}");
     }
@@ -365,8 +374,11 @@ mod tests {
 
     #[test]
     fn properties_written_by_a_run_are_not_kept() {
-        let text = collection(&[feature("scree", 170.0), feature("cairn", 170.1)])
-            .replacen("{\"type\": \"FeatureCollection\",", "{\"type\": \"FeatureCollection\", \"yieldshift_run\": {\"properties_written\": [\"name\"]},", 1);
+        let text = collection(&[feature("scree", 170.0), feature("cairn", 170.1)]).replacen(
+            "{\"type\": \"FeatureCollection\",",
+            "{\"type\": \"FeatureCollection\", \"yieldshift_run\": {\"properties_written\": [\"name\"]},",
+            1,
+        );
         let b = parse(&text).unwrap();
         assert!(!b.get("scree").unwrap().properties().contains_key("name"));
         assert!(b.get("scree").unwrap().properties().contains_key("id"));

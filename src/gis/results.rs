@@ -54,9 +54,7 @@ pub(crate) struct Summary {
 impl Summary {
     pub(crate) fn read(run_dir: &Path) -> Result<Summary> {
         let path = run_dir.join("summary.csv");
-        let mut r = csv::ReaderBuilder::new()
-            .from_path(&path)
-            .map_err(|e| Error::Other(format!("reading {}: {e}", path.display())))?;
+        let mut r = csv::ReaderBuilder::new().from_path(&path).map_err(|e| Error::Other(format!("reading {}: {e}", path.display())))?;
         let header: Vec<String> =
             r.headers().map_err(|e| Error::Other(format!("reading {}: {e}", path.display())))?.iter().map(str::to_string).collect();
         let col: HashMap<String, usize> = header.iter().enumerate().map(|(i, h)| (h.clone(), i)).collect();
@@ -102,7 +100,9 @@ impl Summary {
     /// The cell as a JSON number (`null` when empty).
     pub(crate) fn json(&self, catchment: &str, strategy: &str, column: &str) -> Result<Value> {
         let text = self.cell(catchment, strategy, column).unwrap_or("");
-        json_number(text).map_err(|m| Error::Other(format!("{}: catchment '{catchment}', strategy '{strategy}', column '{column}': {m}", self.path.display())))
+        json_number(text).map_err(|m| {
+            Error::Other(format!("{}: catchment '{catchment}', strategy '{strategy}', column '{column}': {m}", self.path.display()))
+        })
     }
 
     /// The cell as a number (`None` when empty or absent).
@@ -158,7 +158,8 @@ impl RunInfo {
         let path = run_dir.join(crate::io::outdir::MARKER);
         let text = std::fs::read_to_string(&path).map_err(|e| Error::io(format!("reading {}", path.display()), e))?;
         let v: Value = serde_json::from_str(&text).map_err(|e| Error::Other(format!("reading {}: {e}", path.display())))?;
-        let int = |k: &str| v.get(k).and_then(Value::as_i64).ok_or_else(|| Error::Other(format!("{} has no integer '{k}'", path.display())));
+        let int =
+            |k: &str| v.get(k).and_then(Value::as_i64).ok_or_else(|| Error::Other(format!("{} has no integer '{k}'", path.display())));
         Ok(RunInfo {
             title: v.get("title").and_then(Value::as_str).unwrap_or("").to_string(),
             start_year: int("start_year")?,

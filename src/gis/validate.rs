@@ -50,10 +50,7 @@ pub(crate) fn parse_geometry(g: &Value) -> Result<(Vec<RawPolygon>, bool), Vec<I
             )])
         }
         "GeometryCollection" => {
-            return Err(vec![issue(
-                "geometry.type",
-                "geometry is a GeometryCollection; give the catchment as one Polygon or MultiPolygon",
-            )])
+            return Err(vec![issue("geometry.type", "geometry is a GeometryCollection; give the catchment as one Polygon or MultiPolygon")])
         }
         other => {
             return Err(vec![issue(
@@ -139,7 +136,10 @@ fn parse_rings(v: &Value, at: &str) -> Result<RawPolygon, Vec<Issue>> {
         }
         if let Some((k, text)) = bad {
             let text: String = text.chars().take(60).collect();
-            issues.push(issue(format!("{at_r}[{k}]"), format!("position {text} is not [longitude, latitude] (two numbers, optionally a third for elevation)")));
+            issues.push(issue(
+                format!("{at_r}[{k}]"),
+                format!("position {text} is not [longitude, latitude] (two numbers, optionally a third for elevation)"),
+            ));
             continue;
         }
         out.push(pts);

@@ -24,7 +24,11 @@ pub fn read_budget_table(
     let mut problems = table.check_columns(required, known, |_| false);
     if !problems.is_empty() {
         if !per_catchment && table.col("catchment").is_some() {
-            problems.push(Problem::in_file(path, "has a catchment column: set budget_scope = \"catchment\" in the strategy").row(1).column("catchment"));
+            problems.push(
+                Problem::in_file(path, "has a catchment column: set budget_scope = \"catchment\" in the strategy")
+                    .row(1)
+                    .column("catchment"),
+            );
         }
         return Err(problems);
     }
@@ -40,7 +44,11 @@ pub fn read_budget_table(
             match ids.iter().position(|&x| x == id) {
                 Some(i) => Some(i),
                 None => {
-                    p.push(Problem::in_file(path, format!("'{id}' is not a catchment of the scenario{}", suggestion(id, &ids))).row(line).column("catchment"));
+                    p.push(
+                        Problem::in_file(path, format!("'{id}' is not a catchment of the scenario{}", suggestion(id, &ids)))
+                            .row(line)
+                            .column("catchment"),
+                    );
                     None
                 }
             }

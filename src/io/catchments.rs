@@ -161,10 +161,8 @@ pub fn read_catchments(path: &Path, contaminants: &[Contaminant]) -> Result<(Vec
             Some(_) => vfrac.and_then(|f| area.map(|a| f * a)),
             None => None,
         };
-        let points: Vec<f64> = point_cols
-            .iter()
-            .map(|c| table.optional_in(line, rec, c, 0.0, 1e12, "kg/yr", &mut p).unwrap_or(0.0))
-            .collect();
+        let points: Vec<f64> =
+            point_cols.iter().map(|c| table.optional_in(line, rec, c, 0.0, 1e12, "kg/yr", &mut p).unwrap_or(0.0)).collect();
         let flows_to = match table.text(rec, "flows_to") {
             "" => None,
             s => Some(s.to_string()),
@@ -283,7 +281,16 @@ pub fn read_catchments(path: &Path, contaminants: &[Contaminant]) -> Result<(Vec
 /// A required numeric cell, checked only when its column is in the header (a
 /// missing column is reported once by the header check, not on every row).
 #[allow(clippy::too_many_arguments)]
-fn required(table: &Table, line: usize, rec: &csv::StringRecord, col: &str, lo: f64, hi: f64, unit: &str, p: &mut Vec<Problem>) -> Option<f64> {
+fn required(
+    table: &Table,
+    line: usize,
+    rec: &csv::StringRecord,
+    col: &str,
+    lo: f64,
+    hi: f64,
+    unit: &str,
+    p: &mut Vec<Problem>,
+) -> Option<f64> {
     table.col(col)?;
     table.required_in(line, rec, col, lo, hi, unit, p)
 }

@@ -165,11 +165,8 @@ pub fn read_climate(path: &Path, catchments: &[Catchment]) -> Result<ClimateTabl
     for (k, (id, (row, n))) in unknown.into_iter().enumerate() {
         let also = if n > 1 { format!(" (and {} more rows)", n - 1) } else { String::new() };
         let hint = if k < MAX_SUGGESTIONS { suggestion(&id, &ids) } else { String::new() };
-        problems.push(
-            Problem::in_file(path, format!("'{id}' is not a catchment of the scenario{hint}{also}"))
-                .row(row)
-                .column("catchment"),
-        );
+        problems
+            .push(Problem::in_file(path, format!("'{id}' is not a catchment of the scenario{hint}{also}")).row(row).column("catchment"));
     }
     let mut series = HashMap::new();
     for id in order {
@@ -228,11 +225,8 @@ fn check_years(path: &Path, id: &str, list: &[Record]) -> Vec<Problem> {
                     .column("year"),
                 );
             } else if r.year > prev.year + 1 {
-                let missing = if r.year - 1 > prev.year + 1 {
-                    format!("{}–{}", prev.year + 1, r.year - 1)
-                } else {
-                    format!("{}", prev.year + 1)
-                };
+                let missing =
+                    if r.year - 1 > prev.year + 1 { format!("{}–{}", prev.year + 1, r.year - 1) } else { format!("{}", prev.year + 1) };
                 problems.push(
                     Problem::in_file(
                         path,

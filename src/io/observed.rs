@@ -23,10 +23,10 @@
 //! file is reported together.
 
 use crate::error::{Error, Problem, Result};
+use crate::io::climate::BeyondRecord;
 use crate::io::scenario::Scenario;
 use crate::io::table::{fmt_value, read_table, suggestion};
 use crate::model::catchment::ClimateYear;
-use crate::io::climate::BeyondRecord;
 use std::collections::HashMap;
 use std::fmt;
 use std::path::{Path, PathBuf};
@@ -216,9 +216,12 @@ pub fn read_observed(path: &Path, scenario: &Scenario) -> Result<ObservedFlows> 
         if let (Some(i), Some(y)) = (index, year) {
             if let Some(first) = seen.insert((i, y), line) {
                 p.push(
-                    Problem::in_file(path, format!("year {y} of catchment '{id}' appears twice (first on row {first}); give each year once"))
-                        .row(line)
-                        .column("year"),
+                    Problem::in_file(
+                        path,
+                        format!("year {y} of catchment '{id}' appears twice (first on row {first}); give each year once"),
+                    )
+                    .row(line)
+                    .column("year"),
                 );
             }
         }
@@ -228,7 +231,8 @@ pub fn read_observed(path: &Path, scenario: &Scenario) -> Result<ObservedFlows> 
         }
         let (Some(i), Some(y)) = (index, year) else { continue };
         let c = &scenario.catchments[i];
-        let series = per_catchment[i].get_or_insert_with(|| ObservedSeries { catchment: i, id: id.clone(), years: Vec::new(), rows: Vec::new() });
+        let series =
+            per_catchment[i].get_or_insert_with(|| ObservedSeries { catchment: i, id: id.clone(), years: Vec::new(), rows: Vec::new() });
         series.rows.push(line);
         let Some(flow_mm) = flow_mm else {
             // Both cells are empty (a bad value would have been a problem above).

@@ -170,7 +170,8 @@ mod tests {
             s.commit().unwrap();
             assert_eq!(std::fs::read_to_string(target.join(MARKER)).unwrap(), format!("{round}"));
         }
-        let names: Vec<String> = std::fs::read_dir(tmp.path()).unwrap().map(|e| e.unwrap().file_name().to_string_lossy().into_owned()).collect();
+        let names: Vec<String> =
+            std::fs::read_dir(tmp.path()).unwrap().map(|e| e.unwrap().file_name().to_string_lossy().into_owned()).collect();
         assert_eq!(names, vec!["res".to_string()]);
     }
 

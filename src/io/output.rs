@@ -133,13 +133,7 @@ pub fn yearly_header(contaminants: &[Contaminant]) -> Vec<String> {
 
 /// Flags for a year's concentrations (`low-runoff:<name>` per contaminant not stated).
 fn concentration_flags(concs: &[std::result::Result<f64, ConcentrationFlag>], contaminants: &[Contaminant]) -> String {
-    concs
-        .iter()
-        .zip(contaminants)
-        .filter(|(c, _)| c.is_err())
-        .map(|(_, m)| format!("low-runoff:{}", m.name))
-        .collect::<Vec<_>>()
-        .join(";")
+    concs.iter().zip(contaminants).filter(|(c, _)| c.is_err()).map(|(_, m)| format!("low-runoff:{}", m.name)).collect::<Vec<_>>().join(";")
 }
 
 /// Control columns of one `yearly.csv` row.
@@ -300,10 +294,11 @@ pub fn delay_header() -> Vec<String> {
 
 /// Header of `nodes.csv`.
 pub fn nodes_header(contaminants: &[Contaminant]) -> Vec<String> {
-    let mut h: Vec<String> = ["node", "strategy", "year", "upstream_catchments", "area_ha", "yield_m3", "baseline_yield_m3", "yield_change_pct"]
-        .iter()
-        .map(|s| s.to_string())
-        .collect();
+    let mut h: Vec<String> =
+        ["node", "strategy", "year", "upstream_catchments", "area_ha", "yield_m3", "baseline_yield_m3", "yield_change_pct"]
+            .iter()
+            .map(|s| s.to_string())
+            .collect();
     for c in contaminants {
         h.push(format!("{}_load_kg_per_yr", c.name));
         h.push(format!("{}_mg_per_l", c.name));

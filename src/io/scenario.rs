@@ -263,8 +263,11 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
                     match &a.catchment {
                         Some(id) if ids.contains(&id.as_str()) => records.push((id.clone(), a.year, a.pet_mm)),
                         Some(id) => problems.push(
-                            Problem::in_file(&w.path, format!("'{id}' is not a catchment of the scenario{}", crate::io::table::suggestion(id, &ids)))
-                                .column("catchment"),
+                            Problem::in_file(
+                                &w.path,
+                                format!("'{id}' is not a catchment of the scenario{}", crate::io::table::suggestion(id, &ids)),
+                            )
+                            .column("catchment"),
                         ),
                         None => records.extend(ids.iter().map(|id| (id.to_string(), a.year, a.pet_mm))),
                     }
@@ -412,7 +415,12 @@ fn read_calibration(root: &Section<'_>) -> Vec<RawCalibration> {
 }
 
 /// Applies `[[calibration]]` entries to the catchments (per-catchment curve parameters).
-fn apply_calibration(cal: &[RawCalibration], params: &ModelParams, catchments: &mut [Catchment], links: &mut Vec<(String, String)>) -> Vec<Problem> {
+fn apply_calibration(
+    cal: &[RawCalibration],
+    params: &ModelParams,
+    catchments: &mut [Catchment],
+    links: &mut Vec<(String, String)>,
+) -> Vec<Problem> {
     let mut problems = Vec::new();
     let ids: Vec<&str> = catchments.iter().map(|c| c.id.as_str()).collect();
     let index = |id: &str| ids.iter().position(|&x| x == id);
@@ -420,7 +428,10 @@ fn apply_calibration(cal: &[RawCalibration], params: &ModelParams, catchments: &
     let mut fitted: Vec<Option<CoverCurves>> = vec![None; catchments.len()];
     for r in cal.iter().filter(|r| r.donor.is_none()) {
         let Some(i) = index(&r.catchment) else {
-            problems.push(with_msg(&r.at_catchment, format!("'{}' is not a catchment of the scenario{}", r.catchment, crate::io::table::suggestion(&r.catchment, &ids))));
+            problems.push(with_msg(
+                &r.at_catchment,
+                format!("'{}' is not a catchment of the scenario{}", r.catchment, crate::io::table::suggestion(&r.catchment, &ids)),
+            ));
             continue;
         };
         if fitted[i].is_some() {
@@ -448,11 +459,17 @@ fn apply_calibration(cal: &[RawCalibration], params: &ModelParams, catchments: &
     for r in cal.iter() {
         let Some(donor) = &r.donor else { continue };
         let Some(i) = index(&r.catchment) else {
-            problems.push(with_msg(&r.at_catchment, format!("'{}' is not a catchment of the scenario{}", r.catchment, crate::io::table::suggestion(&r.catchment, &ids))));
+            problems.push(with_msg(
+                &r.at_catchment,
+                format!("'{}' is not a catchment of the scenario{}", r.catchment, crate::io::table::suggestion(&r.catchment, &ids)),
+            ));
             continue;
         };
         match index(donor) {
-            None => problems.push(with_msg(&r.at_donor, format!("donor '{donor}' is not a catchment of the scenario{}", crate::io::table::suggestion(donor, &ids)))),
+            None => problems.push(with_msg(
+                &r.at_donor,
+                format!("donor '{donor}' is not a catchment of the scenario{}", crate::io::table::suggestion(donor, &ids)),
+            )),
             Some(j) => match fitted[j] {
                 Some(c) => {
                     applied[i] = Some(c);
@@ -612,11 +629,7 @@ fn read_hydrology(s: Option<Section<'_>>) -> (CoverCurves, f64) {
     let omega_grass = s.param("omega_grass", Some(2.16), 1.01, 20.0, "");
     let factor = s.param("forest_pet_factor", Some(1.0), 0.5, 2.0, "");
     s.finish();
-    let curves = if method == "fu" {
-        CoverCurves::Fu { omega_forest, omega_grass }
-    } else {
-        CoverCurves::Zhang { w_forest, w_grass }
-    };
+    let curves = if method == "fu" { CoverCurves::Fu { omega_forest, omega_grass } } else { CoverCurves::Zhang { w_forest, w_grass } };
     (curves, factor)
 }
 
@@ -705,8 +718,7 @@ fn read_contaminants(root: &Section<'_>) -> Vec<Contaminant> {
 fn build_network(path: &Path, catchments: &[Catchment], rows: &[usize]) -> std::result::Result<Network, Vec<Problem>> {
     let mut problems = Vec::new();
     let mut downstream = Vec::with_capacity(catchments.len());
-    let index: std::collections::HashMap<&str, usize> =
-        catchments.iter().enumerate().map(|(i, c)| (c.id.as_str(), i)).collect();
+    let index: std::collections::HashMap<&str, usize> = catchments.iter().enumerate().map(|(i, c)| (c.id.as_str(), i)).collect();
     for (i, c) in catchments.iter().enumerate() {
         match &c.flows_to {
             None => downstream.push(None),
@@ -894,7 +906,10 @@ fn resolve_strategies(raw: &RawScenario, catchments: &[Catchment]) -> std::resul
         let mut st = r.strategy.clone();
         let last = raw.start_year + raw.horizon_years as i32;
         if st.start_year > last {
-            problems.push(Problem { message: format!("strategy '{}' starts in {} after the projection ends ({last})", st.name, st.start_year), ..r.at_name.clone() });
+            problems.push(Problem {
+                message: format!("strategy '{}' starts in {} after the projection ends ({last})", st.name, st.start_year),
+                ..r.at_name.clone()
+            });
         }
         st.effort = match &r.budget {
             RawBudget::Unlimited => Effort::Unlimited,

@@ -54,9 +54,7 @@ pub fn read_limited(path: &Path, max_bytes: u64, what: &str, expected: &str) -> 
     let file = std::fs::File::open(path).map_err(|e| Problem::in_file(path, format!("cannot read the file: {e}")))?;
     let mut bytes = Vec::with_capacity(meta.len() as usize);
     // The file may grow between the size check and the read: never take more than the limit.
-    file.take(max_bytes + 1)
-        .read_to_end(&mut bytes)
-        .map_err(|e| Problem::in_file(path, format!("cannot read the file: {e}")))?;
+    file.take(max_bytes + 1).read_to_end(&mut bytes).map_err(|e| Problem::in_file(path, format!("cannot read the file: {e}")))?;
     if bytes.len() as u64 > max_bytes {
         return Err(Problem::in_file(path, too_big(bytes.len() as u64, max_bytes, what)));
     }
@@ -96,11 +94,7 @@ pub fn parse_table(path: &Path, bytes: &[u8]) -> Result<Table, Vec<Problem>> {
         .row(1)]);
     }
     let delimiter = if semicolon { b';' } else { b',' };
-    let mut reader = csv::ReaderBuilder::new()
-        .delimiter(delimiter)
-        .flexible(true)
-        .trim(csv::Trim::All)
-        .from_reader(text.as_bytes());
+    let mut reader = csv::ReaderBuilder::new().delimiter(delimiter).flexible(true).trim(csv::Trim::All).from_reader(text.as_bytes());
     let headers: Vec<String> = match reader.headers() {
         Ok(h) => h.iter().map(|s| s.trim().to_string()).collect(),
         Err(e) => return Err(vec![Problem::in_file(path, format!("cannot read the header row: {e}")).row(1)]),
@@ -257,9 +251,7 @@ impl Table {
                 }
             } else if !known.contains(&h.as_str()) && !is_known(h) {
                 unknown.push(h);
-                problems.push(
-                    Problem::in_file(&self.path, format!("unknown column{}", suggestion(h, known))).row(1).column(h.clone()),
-                );
+                problems.push(Problem::in_file(&self.path, format!("unknown column{}", suggestion(h, known))).row(1).column(h.clone()));
             }
         }
         for r in required {
@@ -268,9 +260,7 @@ impl Table {
                     Some(u) => format!(" (is '{u}' meant to be this column?)"),
                     None => String::new(),
                 };
-                problems.push(
-                    Problem::in_file(&self.path, format!("required column is missing from the header{hint}")).row(1).column(*r),
-                );
+                problems.push(Problem::in_file(&self.path, format!("required column is missing from the header{hint}")).row(1).column(*r));
             }
         }
         problems
@@ -334,7 +324,9 @@ impl Table {
         match self.number(line, rec, col) {
             Ok(Some(v)) if v > 0.0 && v <= hi => Some(v),
             Ok(Some(v)) => {
-                problems.push(Problem::in_file(&self.path, format!("{} is out of range; allowed {allowed}", fmt_value(v))).row(line).column(col));
+                problems.push(
+                    Problem::in_file(&self.path, format!("{} is out of range; allowed {allowed}", fmt_value(v))).row(line).column(col),
+                );
                 None
             }
             Ok(None) => {

@@ -201,7 +201,10 @@ impl TomlDoc {
         problems.sort_by_key(|p| p.row.unwrap_or(usize::MAX));
         let dropped = std::mem::take(&mut *self.dropped.borrow_mut());
         if dropped > 0 {
-            problems.push(Problem::in_file(&self.path, format!("… and {dropped} more problems not listed (only the first {MAX_PROBLEMS} are)")));
+            problems.push(Problem::in_file(
+                &self.path,
+                format!("… and {dropped} more problems not listed (only the first {MAX_PROBLEMS} are)"),
+            ));
         }
         problems
     }
@@ -443,7 +446,10 @@ impl<'a> Section<'a> {
             Some(v) => match as_f64(v) {
                 Some(x) if x.is_finite() && x >= lo && x <= hi => x,
                 Some(x) => {
-                    self.push(key, format!("{} is out of range; allowed {}{}", fmt_value(x), range_text(lo, hi, unit), percent_hint(x, unit)));
+                    self.push(
+                        key,
+                        format!("{} is out of range; allowed {}{}", fmt_value(x), range_text(lo, hi, unit), percent_hint(x, unit)),
+                    );
                     fallback
                 }
                 None => {
@@ -476,7 +482,10 @@ impl<'a> Section<'a> {
         let kind = match t.get("dist") {
             Some(toml::Value::String(s)) => s.clone(),
             _ => {
-                self.push(key, "a distribution needs dist = \"fixed\" | \"uniform\" | \"triangular\" | \"normal\" | \"lognormal\" | \"pert\"");
+                self.push(
+                    key,
+                    "a distribution needs dist = \"fixed\" | \"uniform\" | \"triangular\" | \"normal\" | \"lognormal\" | \"pert\"",
+                );
                 return fallback;
             }
         };
@@ -495,7 +504,9 @@ impl<'a> Section<'a> {
         let dist = match kind.as_str() {
             "fixed" => Distribution::Fixed { value: need("value", &mut msgs) },
             "uniform" => Distribution::Uniform { min: need("min", &mut msgs), max: need("max", &mut msgs) },
-            "triangular" => Distribution::Triangular { min: need("min", &mut msgs), mode: need("mode", &mut msgs), max: need("max", &mut msgs) },
+            "triangular" => {
+                Distribution::Triangular { min: need("min", &mut msgs), mode: need("mode", &mut msgs), max: need("max", &mut msgs) }
+            }
             "pert" => Distribution::Pert { min: need("min", &mut msgs), mode: need("mode", &mut msgs), max: need("max", &mut msgs) },
             "normal" => Distribution::Normal {
                 mean: need("mean", &mut msgs),
@@ -527,7 +538,12 @@ impl<'a> Section<'a> {
         if msgs.is_empty() {
             let (a, b) = dist.support();
             if a < lo || (b > hi && !matches!(dist, Distribution::LogNormal { .. })) {
-                msgs.push(format!("the distribution reaches {}–{}, outside the allowed {}", fmt_value(a), fmt_value(b), range_text(lo, hi, unit)));
+                msgs.push(format!(
+                    "the distribution reaches {}–{}, outside the allowed {}",
+                    fmt_value(a),
+                    fmt_value(b),
+                    range_text(lo, hi, unit)
+                ));
             }
         }
         if !msgs.is_empty() {
@@ -552,7 +568,10 @@ impl<'a> Section<'a> {
         match self.get(key) {
             None => {
                 if default.is_none() {
-                    self.push(key, format!("required key is missing; expected a whole number in {}", range_text(lo as f64, hi as f64, unit)));
+                    self.push(
+                        key,
+                        format!("required key is missing; expected a whole number in {}", range_text(lo as f64, hi as f64, unit)),
+                    );
                 }
                 fallback
             }
@@ -562,7 +581,11 @@ impl<'a> Section<'a> {
                 let shown = as_f64(v).map(fmt_value).unwrap_or_else(|| v.to_string());
                 self.push(
                     key,
-                    format!("{shown} is not allowed; expected a whole number in {}{}", range_text(lo as f64, hi as f64, unit), quoted_number_hint(v)),
+                    format!(
+                        "{shown} is not allowed; expected a whole number in {}{}",
+                        range_text(lo as f64, hi as f64, unit),
+                        quoted_number_hint(v)
+                    ),
                 );
                 fallback
             }
@@ -617,9 +640,16 @@ impl<'a> Section<'a> {
                         Some(x) if x.is_finite() && x >= lo && x <= hi => out.push(x),
                         Some(x) => self.push(
                             key,
-                            format!("item {} is {}; each must be a number in {}{}", i + 1, fmt_value(x), range_text(lo, hi, unit), percent_hint(x, unit)),
+                            format!(
+                                "item {} is {}; each must be a number in {}{}",
+                                i + 1,
+                                fmt_value(x),
+                                range_text(lo, hi, unit),
+                                percent_hint(x, unit)
+                            ),
                         ),
-                        None => self.push(key, format!("item {} must be a number in {}{}", i + 1, range_text(lo, hi, unit), quoted_number_hint(v))),
+                        None => self
+                            .push(key, format!("item {} must be a number in {}{}", i + 1, range_text(lo, hi, unit), quoted_number_hint(v))),
                     }
                 }
                 Some(out)

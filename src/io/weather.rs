@@ -78,8 +78,7 @@ pub const WEATHER_COLUMNS: [&str; 18] = [
 ];
 
 /// The columns of the annual table, in order.
-pub const ANNUAL_COLUMNS: [&str; 7] =
-    ["catchment", "year", "pet_mm", "pet_method", "pet_days", "pet_missing_days", "pet_status"];
+pub const ANNUAL_COLUMNS: [&str; 7] = ["catchment", "year", "pet_mm", "pet_method", "pet_days", "pet_missing_days", "pet_status"];
 
 /// `method` written for a day whose ET0 was interpolated across a gap.
 pub const GAP_FILLED: &str = "gap-filled";
@@ -257,11 +256,7 @@ impl FromStr for PetMethodChoice {
             "penman-monteith" => Ok(PetMethodChoice::PenmanMonteith),
             "hargreaves" => Ok(PetMethodChoice::Hargreaves),
             "priestley-taylor" => Ok(PetMethodChoice::PriestleyTaylor),
-            _ => Err(format!(
-                "'{s}' is not a PET method; choose one of: {}{}",
-                Self::NAMES.join(", "),
-                suggestion(s, &Self::NAMES)
-            )),
+            _ => Err(format!("'{s}' is not a PET method; choose one of: {}{}", Self::NAMES.join(", "), suggestion(s, &Self::NAMES))),
         }
     }
 }
@@ -494,8 +489,7 @@ pub fn compute_pet_file_with(path: &Path, site: &SiteMeta, choice: PetMethodChoi
         Humidity::RhMean { rh_mean_pct: 0.0 },
         Humidity::TminAsDewPoint,
     ];
-    out.humidity_sources =
-        order.iter().filter_map(|h| humidity_counts.get(h.label()).map(|&n| (h.label(), n))).collect();
+    out.humidity_sources = order.iter().filter_map(|h| humidity_counts.get(h.label()).map(|&n| (h.label(), n))).collect();
     Ok(out)
 }
 
@@ -520,14 +514,21 @@ impl Layout {
             (false, true, true) => Some(Timestep::Monthly),
             (true, _, _) => {
                 problems.push(
-                    Problem::in_file(path, "give either a date column (daily records) or year and month columns (monthly records), not both")
-                        .row(1)
-                        .column(if has("year") { "year" } else { "month" }),
+                    Problem::in_file(
+                        path,
+                        "give either a date column (daily records) or year and month columns (monthly records), not both",
+                    )
+                    .row(1)
+                    .column(if has("year") { "year" } else { "month" }),
                 );
                 None
             }
             (false, true, false) => {
-                problems.push(Problem::in_file(path, "monthly records need a month column beside year (daily records need a date column instead)").row(1).column("month"));
+                problems.push(
+                    Problem::in_file(path, "monthly records need a month column beside year (daily records need a date column instead)")
+                        .row(1)
+                        .column("month"),
+                );
                 None
             }
             (false, false, true) => {
@@ -536,9 +537,12 @@ impl Layout {
             }
             (false, false, false) => {
                 problems.push(
-                    Problem::in_file(path, "no period column: give date (YYYY-MM-DD) for daily records, or year and month for monthly records")
-                        .row(1)
-                        .column("date"),
+                    Problem::in_file(
+                        path,
+                        "no period column: give date (YYYY-MM-DD) for daily records, or year and month for monthly records",
+                    )
+                    .row(1)
+                    .column("date"),
                 );
                 None
             }
@@ -559,9 +563,12 @@ impl Layout {
                     Some(PetMethod::Hargreaves)
                 } else {
                     problems.push(
-                        Problem::in_file(path, "no method can be used: every method needs tmax_c and tmin_c (Priestley–Taylor with rn_mj_m2 can use tmean_c)")
-                            .row(1)
-                            .column("tmax_c"),
+                        Problem::in_file(
+                            path,
+                            "no method can be used: every method needs tmax_c and tmin_c (Priestley–Taylor with rn_mj_m2 can use tmean_c)",
+                        )
+                        .row(1)
+                        .column("tmax_c"),
                     );
                     None
                 }
@@ -705,7 +712,11 @@ fn parse_rows(table: &Table, layout: &Layout, problems: &mut Vec<Problem>) -> Ve
         let catchment = if layout.has_catchment {
             let id = table.text(rec, "catchment");
             if id.is_empty() {
-                problems.push(Problem::in_file(path, "catchment is empty; every row needs one when the column is present").row(line).column("catchment"));
+                problems.push(
+                    Problem::in_file(path, "catchment is empty; every row needs one when the column is present")
+                        .row(line)
+                        .column("catchment"),
+                );
             }
             Some(id.to_string())
         } else {
@@ -778,13 +789,19 @@ fn whole_number(
 ) -> Option<i64> {
     let text = table.text(rec, col);
     if text.is_empty() {
-        problems.push(Problem::in_file(&table.path, format!("value is missing; expected a whole number from {lo} to {hi}")).row(line).column(col));
+        problems.push(
+            Problem::in_file(&table.path, format!("value is missing; expected a whole number from {lo} to {hi}")).row(line).column(col),
+        );
         return None;
     }
     match parse_number(text, false) {
         Ok(x) if x.fract() == 0.0 && x >= lo as f64 && x <= hi as f64 => Some(x as i64),
         Ok(x) => {
-            problems.push(Problem::in_file(&table.path, format!("{} is not allowed; expected a whole number from {lo} to {hi}", fmt_value(x))).row(line).column(col));
+            problems.push(
+                Problem::in_file(&table.path, format!("{} is not allowed; expected a whole number from {lo} to {hi}", fmt_value(x)))
+                    .row(line)
+                    .column(col),
+            );
             None
         }
         Err(m) => {
@@ -798,25 +815,38 @@ fn check_row_consistency(path: &Path, line: usize, v: &Values, problems: &mut Ve
     if let (Some(tmax), Some(tmin)) = (v.tmax_c, v.tmin_c) {
         if tmin > tmax {
             problems.push(
-                Problem::in_file(path, format!("tmin_c {} is above tmax_c {}; check for swapped columns", fmt_value(tmin), fmt_value(tmax)))
-                    .row(line)
-                    .column("tmin_c"),
+                Problem::in_file(
+                    path,
+                    format!("tmin_c {} is above tmax_c {}; check for swapped columns", fmt_value(tmin), fmt_value(tmax)),
+                )
+                .row(line)
+                .column("tmin_c"),
             );
         } else if let Some(tmean) = v.tmean_c {
             if tmean < tmin || tmean > tmax {
                 problems.push(
-                    Problem::in_file(path, format!("tmean_c {} lies outside tmin_c {} to tmax_c {}", fmt_value(tmean), fmt_value(tmin), fmt_value(tmax)))
-                        .row(line)
-                        .column("tmean_c"),
+                    Problem::in_file(
+                        path,
+                        format!("tmean_c {} lies outside tmin_c {} to tmax_c {}", fmt_value(tmean), fmt_value(tmin), fmt_value(tmax)),
+                    )
+                    .row(line)
+                    .column("tmean_c"),
                 );
             }
         }
         if let Some(dew) = v.dewpoint_c {
             if dew > tmax {
                 problems.push(
-                    Problem::in_file(path, format!("dewpoint_c {} is above tmax_c {}; the dew point cannot exceed the air temperature", fmt_value(dew), fmt_value(tmax)))
-                        .row(line)
-                        .column("dewpoint_c"),
+                    Problem::in_file(
+                        path,
+                        format!(
+                            "dewpoint_c {} is above tmax_c {}; the dew point cannot exceed the air temperature",
+                            fmt_value(dew),
+                            fmt_value(tmax)
+                        ),
+                    )
+                    .row(line)
+                    .column("dewpoint_c"),
                 );
             }
         }
@@ -826,7 +856,12 @@ fn check_row_consistency(path: &Path, line: usize, v: &Values, problems: &mut Ve
                 problems.push(
                     Problem::in_file(
                         path,
-                        format!("ea_kpa {} exceeds the saturation vapour pressure {:.3} kPa at tmax_c {}; check the units (kPa; hPa ÷ 10)", fmt_value(ea), es_max, fmt_value(tmax)),
+                        format!(
+                            "ea_kpa {} exceeds the saturation vapour pressure {:.3} kPa at tmax_c {}; check the units (kPa; hPa ÷ 10)",
+                            fmt_value(ea),
+                            es_max,
+                            fmt_value(tmax)
+                        ),
                     )
                     .row(line)
                     .column("ea_kpa"),
@@ -837,7 +872,9 @@ fn check_row_consistency(path: &Path, line: usize, v: &Values, problems: &mut Ve
     if let (Some(hi), Some(lo)) = (v.rh_max_pct, v.rh_min_pct) {
         if lo > hi {
             problems.push(
-                Problem::in_file(path, format!("rh_min_pct {} is above rh_max_pct {}", fmt_value(lo), fmt_value(hi))).row(line).column("rh_min_pct"),
+                Problem::in_file(path, format!("rh_min_pct {} is above rh_max_pct {}", fmt_value(lo), fmt_value(hi)))
+                    .row(line)
+                    .column("rh_min_pct"),
             );
         }
     }
@@ -1135,14 +1172,7 @@ enum Slot {
     Missing { row: Option<usize> },
 }
 
-fn assemble_daily(
-    catchment: Option<String>,
-    rows: &[Row],
-    outcomes: &[Outcome],
-    method: PetMethod,
-    rule: GapRule,
-    out: &mut PetOutput,
-) {
+fn assemble_daily(catchment: Option<String>, rows: &[Row], outcomes: &[Outcome], method: PetMethod, rule: GapRule, out: &mut PetOutput) {
     let (Some(first), Some(last)) = (rows.first(), rows.last()) else { return };
     let first_year = first.period.year();
     let last_year = last.period.year();
@@ -1253,13 +1283,7 @@ fn status(missing: u32, filled: u32) -> &'static str {
 }
 
 /// Describes why a run of slots is missing: absent rows and/or blank values by row.
-fn gap_cause(
-    run: &[Slot],
-    rows: &[Row],
-    blanks: &HashMap<usize, &[&'static str]>,
-    at_start: bool,
-    at_end: bool,
-) -> String {
+fn gap_cause(run: &[Slot], rows: &[Row], blanks: &HashMap<usize, &[&'static str]>, at_start: bool, at_end: bool) -> String {
     let mut no_rows = 0usize;
     let mut by_cols: BTreeMap<String, Vec<usize>> = BTreeMap::new();
     for slot in run {
@@ -1329,7 +1353,14 @@ fn assemble_monthly(catchment: Option<String>, rows: &[Row], outcomes: &[Outcome
         let run_end = idx - 1;
         let days = (run_start..=run_end).map(|i| month_of(i).days()).sum();
         let cause = gap_cause(&slots[run_start..=run_end], rows, &blanks, run_start == 0, run_end + 1 == len);
-        out.gaps.push(Gap { catchment: catchment.clone(), first: month_of(run_start), last: month_of(run_end), days, filled: false, cause });
+        out.gaps.push(Gap {
+            catchment: catchment.clone(),
+            first: month_of(run_start),
+            last: month_of(run_end),
+            days,
+            filled: false,
+            cause,
+        });
     }
     let name = method.name();
     for (y, year) in (first_year..=last_year).enumerate() {

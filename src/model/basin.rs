@@ -71,7 +71,14 @@ pub fn project_basin(
             let cohorts = Cohorts::from_classes(&p.invasion, c.infested);
             let (_, q_open) = et_and_yield_mm(c, p, c.mean_climate(), 0.0);
             let (_, q_forest) = et_and_yield_mm(c, p, c.mean_climate(), 1.0);
-            State { cohorts, f0: 0.0, f_uninvaded: c.uninvaded_canopy_fraction(), new_ha: 0.0, tracked: Vec::new(), dq_mm: (q_open - q_forest).max(0.0) }
+            State {
+                cohorts,
+                f0: 0.0,
+                f_uninvaded: c.uninvaded_canopy_fraction(),
+                new_ha: 0.0,
+                tracked: Vec::new(),
+                dq_mm: (q_open - q_forest).max(0.0),
+            }
         })
         .collect();
     let max_age = states.iter().map(|s| s.cohorts.oldest_age_yr()).max().unwrap_or(0) + 2 * n_years + 2;
@@ -112,13 +119,17 @@ pub fn project_basin(
                 Effort::Unlimited => vec![(None, (0..n).collect(), f64::INFINITY, false)],
                 Effort::BasinBudget(b) => vec![(None, (0..n).collect(), b.get(t).copied().unwrap_or(0.0) + carry[0], false)],
                 Effort::FixedArea(a) => vec![(None, (0..n).collect(), a.get(t).copied().unwrap_or(0.0), true)],
-                Effort::CatchmentBudget(bs) => (0..n).map(|i| (Some(i), vec![i], bs[i].get(t).copied().unwrap_or(0.0) + carry[i], false)).collect(),
+                Effort::CatchmentBudget(bs) => {
+                    (0..n).map(|i| (Some(i), vec![i], bs[i].get(t).copied().unwrap_or(0.0) + carry[i], false)).collect()
+                }
             };
             for (pool, members, available, by_area) in pools {
                 let mut left = available;
                 // 1. Follow-up of recently cleared land, paid first.
-                let fu_cost: Vec<f64> =
-                    members.iter().map(|&i| st.follow_up_cost_per_ha * states[i].tracked.iter().map(|r| r.cleared_ha).sum::<f64>()).collect();
+                let fu_cost: Vec<f64> = members
+                    .iter()
+                    .map(|&i| st.follow_up_cost_per_ha * states[i].tracked.iter().map(|r| r.cleared_ha).sum::<f64>())
+                    .collect();
                 let fu_total: f64 = fu_cost.iter().sum();
                 let paid_frac = if fu_total <= 0.0 || by_area { 1.0 } else { (left / fu_total).min(1.0) };
                 for (k, &i) in members.iter().enumerate() {
@@ -143,8 +154,13 @@ pub fn project_basin(
                             PriorityRule::BestValue => {
                                 let hi = (age + 1 + remaining_years).min(closure.len());
                                 let lo = (age + 1).min(hi);
-                                let value_m3_per_ha = st.efficacy * states[i].dq_mm * M3_PER_MM_HA * (closure_prefix[hi] - closure_prefix[lo]);
-                                if cost > 0.0 { value_m3_per_ha / cost } else { f64::MAX }
+                                let value_m3_per_ha =
+                                    st.efficacy * states[i].dq_mm * M3_PER_MM_HA * (closure_prefix[hi] - closure_prefix[lo]);
+                                if cost > 0.0 {
+                                    value_m3_per_ha / cost
+                                } else {
+                                    f64::MAX
+                                }
                             }
                         };
                         slots.push(Slot { catchment: i, age, area_ha: area, cost_per_ha: cost, key });

@@ -232,8 +232,7 @@ impl Cohorts {
     pub fn step_with(&mut self, params: &InvasionParams, vulnerable_ha: f64, extra_ha: f64) -> f64 {
         let seed_ha = self.area_at_least_age(params.seed_bearing_age_yr as usize);
         let infested = self.infested_ha();
-        let spread_ha =
-            new_infestation_ha(params.spread_rate_per_yr, seed_ha, params.seed_rain_ha_per_yr, infested, vulnerable_ha);
+        let spread_ha = new_infestation_ha(params.spread_rate_per_yr, seed_ha, params.seed_rain_ha_per_yr, infested, vulnerable_ha);
         let free_ha = (vulnerable_ha - infested).max(0.0);
         let new_ha = (spread_ha + extra_ha.max(0.0)).min(free_ha);
         self.areas_ha.push(new_ha);

@@ -64,12 +64,7 @@ pub enum ConcentrationFlag {
 /// Returns `Err(LowRunoff)` when the runoff depth (volume over `area_ha`) is below
 /// `min_runoff_mm`, or the volume is not positive.
 #[inline]
-pub fn concentration_mg_per_l(
-    load_kg_per_yr: f64,
-    volume_m3: f64,
-    area_ha: f64,
-    min_runoff_mm: f64,
-) -> Result<f64, ConcentrationFlag> {
+pub fn concentration_mg_per_l(load_kg_per_yr: f64, volume_m3: f64, area_ha: f64, min_runoff_mm: f64) -> Result<f64, ConcentrationFlag> {
     let depth_mm = if area_ha > 0.0 { volume_m3 / (area_ha * M3_PER_MM_HA) } else { 0.0 };
     if !(volume_m3 > 0.0) || depth_mm < min_runoff_mm {
         return Err(ConcentrationFlag::LowRunoff);

@@ -563,8 +563,8 @@ impl GaugeRecord {
         if observed_mm < lowest_mm {
             return Err(FitError::MeanYieldBelowCurve { observed_mm, lowest_mm, key, bound: hi });
         }
-        let sol = brent_root(|v| self.weighted_mean_yield(v, counts, total) - observed_mm, lo, hi, ROOT_TOL)
-            .map_err(FitError::Numerical)?;
+        let sol =
+            brent_root(|v| self.weighted_mean_yield(v, counts, total) - observed_mm, lo, hi, ROOT_TOL).map_err(FitError::Numerical)?;
         Ok(MeanFit {
             value: sol.x,
             observed_mm,
@@ -614,8 +614,7 @@ impl GaugeRecord {
         if windows.len() < MIN_YEARS {
             return Err(FitError::TooFewYears { available: windows.len(), needed: MIN_YEARS, window_yr: k });
         }
-        let obs: Vec<f64> =
-            windows.iter().map(|w| w.iter().map(|&i| self.years[i].observed_yield_mm).sum::<f64>() / k as f64).collect();
+        let obs: Vec<f64> = windows.iter().map(|w| w.iter().map(|&i| self.years[i].observed_yield_mm).sum::<f64>() / k as f64).collect();
         let sse = |v: f64| -> f64 {
             let sim = self.simulated_yield_mm(v);
             windows
@@ -628,8 +627,7 @@ impl GaugeRecord {
                 .sum()
         };
         let (lo, hi) = self.bounds();
-        let grid: Vec<f64> =
-            (0..GRID_POINTS).map(|j| lo * (hi / lo).powf(j as f64 / (GRID_POINTS - 1) as f64)).collect();
+        let grid: Vec<f64> = (0..GRID_POINTS).map(|j| lo * (hi / lo).powf(j as f64 / (GRID_POINTS - 1) as f64)).collect();
         let values: Vec<f64> = grid.iter().map(|&v| sse(v)).collect();
         let best = values.iter().enumerate().fold(0, |b, (j, v)| if *v < values[b] { j } else { b });
         let a = grid[best.saturating_sub(1)];

@@ -13,16 +13,16 @@ pub mod closure;
 pub mod control;
 pub mod cover;
 pub mod dilution;
-pub mod kernel;
 pub mod economics;
 pub mod exact;
 pub mod fit;
+pub mod kernel;
 pub mod network;
 pub mod pet;
 pub mod projection;
-pub mod stats;
 pub mod roots;
 pub mod skill;
+pub mod stats;
 pub mod summary;
 pub mod uncertainty;
 

@@ -139,8 +139,7 @@ pub fn year_result(
             )
         })
         .collect();
-    let concentrations =
-        loads.iter().map(|&l| dilution::concentration_mg_per_l(l, yield_m3, c.area_ha, p.min_runoff_mm)).collect();
+    let concentrations = loads.iter().map(|&l| dilution::concentration_mg_per_l(l, yield_m3, c.area_ha, p.min_runoff_mm)).collect();
     YearResult {
         year,
         rain_mm: cl.rain_mm,

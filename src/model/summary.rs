@@ -38,9 +38,7 @@ pub fn summarise(c: &Catchment, years: &[YearResult], contaminants: &[Contaminan
         change_at_offsets_pct: REPORT_OFFSETS_YR.iter().map(|&o| change_at(o)).collect(),
         change_at_horizon_pct: last.and_then(YearResult::yield_change_pct),
         change_vs_uninvaded_at_horizon_pct: last.and_then(YearResult::change_vs_uninvaded_pct),
-        water_lost_at_horizon_m3: last
-            .map(|y| dilution::volume_m3(y.baseline_yield_mm - y.yield_mm, c.area_ha))
-            .unwrap_or(0.0),
+        water_lost_at_horizon_m3: last.map(|y| dilution::volume_m3(y.baseline_yield_mm - y.yield_mm, c.area_ha)).unwrap_or(0.0),
         canopy_fraction_start: years.first().map(|y| y.canopy_fraction).unwrap_or(0.0),
         canopy_fraction_end: last.map(|y| y.canopy_fraction).unwrap_or(0.0),
         first_exceedance_year: contaminants
@@ -48,9 +46,7 @@ pub fn summarise(c: &Catchment, years: &[YearResult], contaminants: &[Contaminan
             .enumerate()
             .map(|(k, m)| first_exceedance(years.iter().map(|y| (y.year, y.concentrations[k])), m.guideline_mg_per_l))
             .collect(),
-        low_runoff_years: (0..contaminants.len())
-            .map(|k| years.iter().filter(|y| y.concentrations[k].is_err()).count())
-            .collect(),
+        low_runoff_years: (0..contaminants.len()).map(|k| years.iter().filter(|y| y.concentrations[k].is_err()).count()).collect(),
     }
 }
 

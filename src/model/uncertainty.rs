@@ -108,9 +108,7 @@ impl Distribution {
         match *self {
             Distribution::Fixed { value } => value,
             Distribution::Uniform { min, max } => Uniform::new(min, max).map(|d| d.inverse_cdf(u)).unwrap_or(min),
-            Distribution::Triangular { min, mode, max } => {
-                Triangular::new(min, max, mode).map(|d| d.inverse_cdf(u)).unwrap_or(mode)
-            }
+            Distribution::Triangular { min, mode, max } => Triangular::new(min, max, mode).map(|d| d.inverse_cdf(u)).unwrap_or(mode),
             Distribution::Normal { mean, sd, min, max } => {
                 let n = Normal::new(0.0, 1.0).expect("standard normal");
                 let (a, b) = (n.cdf((min - mean) / sd), n.cdf((max - mean) / sd));
@@ -145,7 +143,9 @@ impl Distribution {
     pub fn support(&self) -> (f64, f64) {
         match *self {
             Distribution::Fixed { value } => (value, value),
-            Distribution::Uniform { min, max } | Distribution::Triangular { min, max, .. } | Distribution::Pert { min, max, .. } => (min, max),
+            Distribution::Uniform { min, max } | Distribution::Triangular { min, max, .. } | Distribution::Pert { min, max, .. } => {
+                (min, max)
+            }
             Distribution::Normal { min, max, .. } => (min, max),
             Distribution::LogNormal { .. } => (0.0, f64::INFINITY),
         }
@@ -204,9 +204,7 @@ pub fn uniforms(sampling: Sampling, seed: u64, dimension: u64, members: usize) -
                 let j = rng.random_range(0..=i);
                 perm.swap(i, j);
             }
-            (0..members)
-                .map(|m| (perm[m] as f64 + open01(&mut stream(seed, dimension, m as u64))) / members as f64)
-                .collect()
+            (0..members).map(|m| (perm[m] as f64 + open01(&mut stream(seed, dimension, m as u64))) / members as f64).collect()
         }
     }
 }

@@ -127,9 +127,7 @@ impl Figure for HBarChart {
         let plot_left = PxRect::of(chart.plotting_area()).x0;
         for (i, b) in self.bars.iter().enumerate() {
             let y = row_y(i);
-            chart
-                .draw_series(std::iter::once(Rectangle::new([(0.0, y - half), (b.value, y + half)], b.colour.filled())))
-                .map_err(err)?;
+            chart.draw_series(std::iter::once(Rectangle::new([(0.0, y - half), (b.value, y + half)], b.colour.filled()))).map_err(err)?;
             if let Some((lo, hi)) = b.range {
                 let st = palette::RANGE.stroke_width(LINE_PX.min(5));
                 chart.draw_series(LineSeries::new([(lo, y), (hi, y)], st)).map_err(err)?;

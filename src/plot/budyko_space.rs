@@ -124,13 +124,22 @@ impl Figure for BudykoSpace {
         let mut entries = vec![
             Entry { label: forest_label, swatch: Swatch::Line { colour: palette::DENSE, dashed: false, width: LINE_PX + 2 } },
             Entry { label: grass_label, swatch: Swatch::Line { colour: palette::DENSE, dashed: true, width: LINE_PX } },
-            Entry { label: "Limits: ET = E0 (energy), ET = P (water)".into(), swatch: Swatch::Line { colour: palette::BASELINE, dashed: true, width: REF_LINE_PX } },
+            Entry {
+                label: "Limits: ET = E0 (energy), ET = P (water)".into(),
+                swatch: Swatch::Line { colour: palette::BASELINE, dashed: true, width: REF_LINE_PX },
+            },
         ];
         for (i, t) in self.trajectories.iter().enumerate() {
             entries.push(Entry { label: t.label.clone(), swatch: Swatch::LineMarker { colour: colour(i), shape: Shape::nth(i) } });
         }
-        entries.push(Entry { label: self.start_label.clone(), swatch: Swatch::Marker { colour: palette::BASELINE, shape: Shape::Circle, filled: false } });
-        entries.push(Entry { label: self.end_label.clone(), swatch: Swatch::Marker { colour: palette::BASELINE, shape: Shape::Circle, filled: true } });
+        entries.push(Entry {
+            label: self.start_label.clone(),
+            swatch: Swatch::Marker { colour: palette::BASELINE, shape: Shape::Circle, filled: false },
+        });
+        entries.push(Entry {
+            label: self.end_label.clone(),
+            swatch: Swatch::Marker { colour: palette::BASELINE, shape: Shape::Circle, filled: true },
+        });
 
         let (placement, area, strip) = {
             let probe = axes::build(&body, &ax)?;

@@ -6,8 +6,8 @@
 
 use super::{err, palette, Figure, FONT};
 use plotters::coord::Shift;
-use plotters::prelude::*;
 use plotters::element::DashedPathElement;
+use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 /// Width of the legend panel, pixels.
@@ -118,7 +118,9 @@ fn draw_series<DB: DrawingBackend>(
                 let pts: Vec<(f64, f64)> = split_runs(&s.points).into_iter().flatten().collect();
                 chart.draw_series(pts.iter().map(|&p| Circle::new(p, 15, WHITE.filled()))).map_err(err)?;
                 chart
-                    .draw_series(pts.iter().map(|&p| Circle::new(p, 15, ShapeStyle { color: s.colour.to_rgba(), filled: false, stroke_width: 5 })))
+                    .draw_series(
+                        pts.iter().map(|&p| Circle::new(p, 15, ShapeStyle { color: s.colour.to_rgba(), filled: false, stroke_width: 5 })),
+                    )
                     .map_err(err)?;
             }
         }

@@ -70,7 +70,12 @@ pub fn draw_marker<DB: DrawingBackend>(
     }
 }
 
-fn outline_or_fill<DB: DrawingBackend>(screen: &DrawingArea<DB, Shift>, pts: Vec<(i32, i32)>, colour: RGBColor, filled: bool) -> Result<(), String> {
+fn outline_or_fill<DB: DrawingBackend>(
+    screen: &DrawingArea<DB, Shift>,
+    pts: Vec<(i32, i32)>,
+    colour: RGBColor,
+    filled: bool,
+) -> Result<(), String> {
     if filled {
         screen.draw(&Polygon::new(pts, colour.filled())).map_err(err)
     } else {

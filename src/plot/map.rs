@@ -507,8 +507,11 @@ impl Figure for ChoroplethMap {
         // North arrow to the right of the bar.
         let nx = panel_right - px(24.0);
         let ny = y - px(14.0);
-        root.draw(&Polygon::new(vec![(nx, ny - px(26.0)), (nx - px(10.0), ny + px(6.0)), (nx, ny), (nx + px(10.0), ny + px(6.0))], DARK.filled()))
-            .map_err(err)?;
+        root.draw(&Polygon::new(
+            vec![(nx, ny - px(26.0)), (nx - px(10.0), ny + px(6.0)), (nx, ny), (nx + px(10.0), ny + px(6.0))],
+            DARK.filled(),
+        ))
+        .map_err(err)?;
         draw_text("N", (nx, ny + px(10.0)), &text(19.0, &DARK, HPos::Center, VPos::Top))?;
         y += bar_h + px(40.0);
 

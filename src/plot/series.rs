@@ -106,7 +106,10 @@ impl LineChart {
 
     fn axes(&self) -> Axes {
         let x = axes::year_range(
-            self.lines.iter().flat_map(|l| l.points.iter().map(|p| p.0)).chain(self.bands.iter().flat_map(|b| b.points.iter().map(|p| p.0))),
+            self.lines
+                .iter()
+                .flat_map(|l| l.points.iter().map(|p| p.0))
+                .chain(self.bands.iter().flat_map(|b| b.points.iter().map(|p| p.0))),
         );
         let vals = self
             .lines
@@ -264,7 +267,10 @@ impl Figure for CoverChart {
         ];
         let mut entries: Vec<Entry> =
             layers.iter().map(|(l, c, _)| Entry { label: (*l).into(), swatch: Swatch::Fill { colour: *c, opacity: 0.95 } }).collect();
-        entries.push(Entry { label: "Vulnerable area".into(), swatch: Swatch::Line { colour: palette::BASELINE, dashed: true, width: REF_LINE_PX } });
+        entries.push(Entry {
+            label: "Vulnerable area".into(),
+            swatch: Swatch::Line { colour: palette::BASELINE, dashed: true, width: REF_LINE_PX },
+        });
         let (placement, area, strip) = {
             let probe = axes::build(&body, &ax)?;
             let mut data = Occupied::default();

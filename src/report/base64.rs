@@ -25,15 +25,9 @@ mod tests {
     #[test]
     fn rfc4648_test_vectors() {
         // Source: RFC 4648, section 10 (test vectors).
-        for (input, expected) in [
-            ("", ""),
-            ("f", "Zg=="),
-            ("fo", "Zm8="),
-            ("foo", "Zm9v"),
-            ("foob", "Zm9vYg=="),
-            ("fooba", "Zm9vYmE="),
-            ("foobar", "Zm9vYmFy"),
-        ] {
+        for (input, expected) in
+            [("", ""), ("f", "Zg=="), ("fo", "Zm8="), ("foo", "Zm9v"), ("foob", "Zm9vYg=="), ("fooba", "Zm9vYmE="), ("foobar", "Zm9vYmFy")]
+        {
             assert_eq!(encode(input.as_bytes()), expected, "{input:?}");
         }
     }

@@ -70,7 +70,15 @@ fn change_cells(d: &RunData, r: &SummaryRow) -> Vec<Text> {
             })
         })
         .collect();
-    v.push(pct_cell(r, sc::HORIZON, r.get(sc::HORIZON)).then(range_text(d, &r.catchment, &r.strategy, "yield_change_pct", d.info.end_year(), 1, true)));
+    v.push(pct_cell(r, sc::HORIZON, r.get(sc::HORIZON)).then(range_text(
+        d,
+        &r.catchment,
+        &r.strategy,
+        "yield_change_pct",
+        d.info.end_year(),
+        1,
+        true,
+    )));
     v
 }
 
@@ -166,12 +174,13 @@ pub fn build(d: &RunData, drawn: &[Drawn]) -> Doc {
     );
     doc.notice(
         "Screening-level estimate",
-        vec![Text::new().plain(
-            "Mean-annual water-balance curves applied year by year: indicative, not a site hydrological assessment. \
+        vec![Text::new()
+            .plain(
+                "Mean-annual water-balance curves applied year by year: indicative, not a site hydrological assessment. \
              Read section ",
-        )
-        .plain("“Cautions”")
-        .plain(" before using any number in this report.")],
+            )
+            .plain("“Cautions”")
+            .plain(" before using any number in this report.")],
     );
     summary_section(d, &mut doc);
     inputs_section(d, &mut doc);
@@ -204,7 +213,10 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
         .num(i.start_year.to_string(), Some(Source::new("run_info.json", &[], "start_year")))
         .plain(" for ")
         .num(i.horizon_years.to_string(), Some(Source::new("run_info.json", &[], "horizon_years")))
-        .plain(format!(" years, with the {method} water-balance curve, as conifers spread, thicken and close canopy.", method = method_name(&i.method)));
+        .plain(format!(
+            " years, with the {method} water-balance curve, as conifers spread, thicken and close canopy.",
+            method = method_name(&i.method)
+        ));
     if programmes.is_empty() {
         t = t.plain(" No control programme was projected: only the no-control reference.");
     } else {
@@ -262,10 +274,13 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
     }
     // Largest and smallest losses.
     if let Some((k, o)) = figs::comparison_offset(d) {
-        let mut rows: Vec<&SummaryRow> = d.summary.iter().filter(|r| r.strategy == NO_CONTROL && r.catchment != BASIN && r.at_offsets[k].is_some()).collect();
+        let mut rows: Vec<&SummaryRow> =
+            d.summary.iter().filter(|r| r.strategy == NO_CONTROL && r.catchment != BASIN && r.at_offsets[k].is_some()).collect();
         rows.sort_by(|a, b| a.at_offsets[k].unwrap_or(0.0).total_cmp(&b.at_offsets[k].unwrap_or(0.0)));
         if let (Some(worst), Some(best)) = (rows.first(), rows.last()) {
-            let cell = |r: &SummaryRow| Text::new().num(signed(r.at_offsets[k].unwrap_or(f64::NAN), 1), Some(s_src(&r.catchment, NO_CONTROL, &offset_col(o))));
+            let cell = |r: &SummaryRow| {
+                Text::new().num(signed(r.at_offsets[k].unwrap_or(f64::NAN), 1), Some(s_src(&r.catchment, NO_CONTROL, &offset_col(o))))
+            };
             bullets.push(
                 Text::new()
                     .strong("Catchments. ")
@@ -297,13 +312,19 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
         } else {
             t = t.plain(format!("exceeded without control in {} of {} catchments, first in ", first.len(), d.catchments.len()));
             let (r, y) = first[0];
-            t = t.plain(format!("{} (", r.name)).num(y.to_string(), Some(s_src(&r.catchment, NO_CONTROL, &format!("{}_first_exceedance_year", c.name)))).plain(").");
+            t = t
+                .plain(format!("{} (", r.name))
+                .num(y.to_string(), Some(s_src(&r.catchment, NO_CONTROL, &format!("{}_first_exceedance_year", c.name))))
+                .plain(").");
         }
         bullets.push(t);
     }
     // Best programme by benefit-cost ratio (when water has a value) or levelised cost.
     let basin_rows: Vec<&SummaryRow> = d.summary.iter().filter(|r| r.catchment == BASIN && r.strategy != NO_CONTROL).collect();
-    let by_bcr = basin_rows.iter().filter(|r| r.get(sc::BCR).is_some()).max_by(|a, b| a.get(sc::BCR).unwrap_or(0.0).total_cmp(&b.get(sc::BCR).unwrap_or(0.0)));
+    let by_bcr = basin_rows
+        .iter()
+        .filter(|r| r.get(sc::BCR).is_some())
+        .max_by(|a, b| a.get(sc::BCR).unwrap_or(0.0).total_cmp(&b.get(sc::BCR).unwrap_or(0.0)));
     let by_lcoe = basin_rows
         .iter()
         .filter(|r| r.get(sc::LEVELISED).is_some_and(|v| v > 0.0))
@@ -316,7 +337,10 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
             .plain("/m³ for a total cost of $")
             .then(num_cell(r, sc::COST, |v| fixed(v, 0), 1.0));
         if let Some(b) = by_bcr {
-            t = t.plain(format!("); the highest benefit-cost ratio is that of {} (", b.strategy)).then(num_cell(b, sc::BCR, |v| fixed(v, 2), 1.0)).plain(").");
+            t = t
+                .plain(format!("); the highest benefit-cost ratio is that of {} (", b.strategy))
+                .then(num_cell(b, sc::BCR, |v| fixed(v, 2), 1.0))
+                .plain(").");
         } else {
             t = t.plain(").");
         }
@@ -329,7 +353,9 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
             fixed(members, 0)
         )));
     } else {
-        bullets.push(Text::new().strong("Ranges. ").plain("This run folder has no ensemble.csv, so values are single projections with central parameter values; no ranges are given."));
+        bullets.push(Text::new().strong("Ranges. ").plain(
+            "This run folder has no ensemble.csv, so values are single projections with central parameter values; no ranges are given.",
+        ));
     }
     doc.bullets(bullets);
 
@@ -345,7 +371,12 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
         .map(|r| {
             let mut row = vec![Text::new().code(&r.strategy)];
             row.extend(change_cells(d, r));
-            row.push(num_cell(r, sc::CANOPY_START, |v| fixed(v, 3), 1.0).plain(" → ").then(num_cell(r, sc::CANOPY_END, |v| fixed(v, 3), 1.0)));
+            row.push(num_cell(r, sc::CANOPY_START, |v| fixed(v, 3), 1.0).plain(" → ").then(num_cell(
+                r,
+                sc::CANOPY_END,
+                |v| fixed(v, 3),
+                1.0,
+            )));
             row.push(num_cell(r, sc::WATER_LOST, |v| fixed(v, 2), MILLION));
             row
         })
@@ -408,7 +439,12 @@ fn distributions(table: &toml::Table, prefix: &str, out: &mut Vec<(String, Strin
             toml::Value::Array(a) => {
                 for (n, item) in a.iter().enumerate() {
                     if let toml::Value::Table(t) = item {
-                        let label = t.get("name").or_else(|| t.get("catchment")).and_then(|v| v.as_str()).map(|s| format!("{path}[{s}]")).unwrap_or_else(|| format!("{path}[{}]", n + 1));
+                        let label = t
+                            .get("name")
+                            .or_else(|| t.get("catchment"))
+                            .and_then(|v| v.as_str())
+                            .map(|s| format!("{path}[{s}]"))
+                            .unwrap_or_else(|| format!("{path}[{}]", n + 1));
                         distributions(t, &label, out);
                     }
                 }
@@ -423,14 +459,17 @@ fn input_table_from_csv(t: &super::folder::CsvTable, caption: String) -> Table {
         .map(|c| (0..t.rows.len()).all(|r| t.text(r, c).is_empty() || t.input_number(r, c).is_some()) && !t.rows.is_empty())
         .collect();
     let keep: Vec<usize> = (0..t.headers.len()).filter(|&c| t.headers[c] != "notes").collect();
-    let rows: Vec<Vec<Text>> = (0..t.rows.len().min(MAX_INPUT_ROWS)).map(|r| keep.iter().map(|&c| Text::new().plain(t.text(r, c))).collect()).collect();
-    let note = (t.rows.len() > MAX_INPUT_ROWS).then(|| Text::new().plain(format!("First {MAX_INPUT_ROWS} of {} rows; all are in ", t.rows.len())).code(&t.name).plain("."));
+    let rows: Vec<Vec<Text>> =
+        (0..t.rows.len().min(MAX_INPUT_ROWS)).map(|r| keep.iter().map(|&c| Text::new().plain(t.text(r, c))).collect()).collect();
+    let note = (t.rows.len() > MAX_INPUT_ROWS)
+        .then(|| Text::new().plain(format!("First {MAX_INPUT_ROWS} of {} rows; all are in ", t.rows.len())).code(&t.name).plain("."));
     Table {
         caption,
         head: keep.iter().map(|&c| t.headers[c].clone()).collect(),
         align: keep.iter().map(|&c| if numeric[c] { Align::Right } else { Align::Left }).collect(),
         rows,
-        note: note.or_else(|| Some(Text::new().plain("As given in ").code(&t.name).plain("; units are in the column names (mm/yr, ha, kg/yr)."))),
+        note: note
+            .or_else(|| Some(Text::new().plain("As given in ").code(&t.name).plain("; units are in the column names (mm/yr, ha, kg/yr)."))),
     }
 }
 
@@ -449,7 +488,10 @@ fn inputs_section(d: &RunData, doc: &mut Doc) {
                 None => Text::from("none: every year uses each catchment's long-term means"),
             },
         ],
-        vec![Text::from("Projected years"), Text::new().num(i.start_year.to_string(), src("start_year")).plain("–").plain(i.end_year().to_string())],
+        vec![
+            Text::from("Projected years"),
+            Text::new().num(i.start_year.to_string(), src("start_year")).plain("–").plain(i.end_year().to_string()),
+        ],
         vec![Text::from("Water-balance method"), Text::from(method_name(&i.method))],
         vec![Text::from("Strategies"), Text::from(i.strategies.join(", "))],
         vec![Text::from("Discount rate, per year"), Text::new().num(num_plain(i.discount_rate), src("discount_rate"))],
@@ -478,7 +520,12 @@ fn inputs_section(d: &RunData, doc: &mut Doc) {
         Some(t) => {
             doc.table(input_table_from_csv(t, "The catchment table as copied into the run folder".into()));
         }
-        None => doc.para(Text::new().plain("The catchment table was not copied into this run folder (").code("inputs/").plain("); see the catchment names and areas in the results.")),
+        None => doc.para(
+            Text::new()
+                .plain("The catchment table was not copied into this run folder (")
+                .code("inputs/")
+                .plain("); see the catchment names and areas in the results."),
+        ),
     }
 
     doc.heading(3, "Contaminants");
@@ -514,7 +561,12 @@ fn inputs_section(d: &RunData, doc: &mut Doc) {
     doc.heading(3, "Scenario parameters");
     match &d.scenario {
         Some(s) => scenario_tables(s, doc),
-        None => doc.para(Text::new().plain("The scenario file was not copied into this run folder; the parameters recorded in ").code("run_info.json").plain(" appear in the methods section.")),
+        None => doc.para(
+            Text::new()
+                .plain("The scenario file was not copied into this run folder; the parameters recorded in ")
+                .code("run_info.json")
+                .plain(" appear in the methods section."),
+        ),
     }
 }
 
@@ -522,7 +574,9 @@ fn climate_inputs(d: &RunData, doc: &mut Doc) {
     let Some(t) = &d.climate_input else {
         doc.para(match &d.info.climate_table {
             Some(_) => Text::from("The climate table was not copied into this run folder."),
-            None => Text::from("No climate table: every projected year uses each catchment's long-term mean rainfall and PET from the catchment table."),
+            None => Text::from(
+                "No climate table: every projected year uses each catchment's long-term mean rainfall and PET from the catchment table.",
+            ),
         });
         return;
     };
@@ -595,7 +649,12 @@ fn climate_inputs(d: &RunData, doc: &mut Doc) {
         head: vec!["Catchment".into(), "Years".into(), "Records".into(), "Mean rainfall, mm/yr".into(), "Mean PET, mm/yr".into()],
         align: vec![Align::Left, Align::Left, Align::Right, Align::Right, Align::Right],
         rows,
-        note: Some(Text::new().plain("Computed from ").code(&t.name).plain(format!(". Projected years outside a catchment's record {rule_text} (beyond_record = \"{rule}\")."))),
+        note: Some(
+            Text::new()
+                .plain("Computed from ")
+                .code(&t.name)
+                .plain(format!(". Projected years outside a catchment's record {rule_text} (beyond_record = \"{rule}\").")),
+        ),
     });
 }
 
@@ -625,7 +684,8 @@ fn scenario_tables(s: &super::folder::ScenarioDoc, doc: &mut Doc) {
         note: Some(Text::from("Keys the scenario leaves out take their documented defaults (docs/scenario.md); the values the run used for the model core are listed in the methods section.")),
     });
     for (name, items) in arrays {
-        let mut keys: Vec<String> = ["name", "catchment"].iter().filter(|k| items.iter().any(|it| it.get(**k).is_some())).map(|k| k.to_string()).collect();
+        let mut keys: Vec<String> =
+            ["name", "catchment"].iter().filter(|k| items.iter().any(|it| it.get(**k).is_some())).map(|k| k.to_string()).collect();
         for it in items {
             if let Some(t) = it.as_table() {
                 for k in t.keys() {
@@ -652,7 +712,8 @@ fn scenario_tables(s: &super::folder::ScenarioDoc, doc: &mut Doc) {
     distributions(&s.table, "", &mut dists);
     if !dists.is_empty() {
         doc.table(Table {
-            caption: "Parameters given as distributions (sampled by the ensemble; the central value is used for the single projection)".into(),
+            caption: "Parameters given as distributions (sampled by the ensemble; the central value is used for the single projection)"
+                .into(),
             head: vec!["Parameter".into(), "Distribution".into()],
             align: vec![Align::Left, Align::Left],
             rows: dists.into_iter().map(|(p, t)| vec![Text::new().code(p), Text::from(t)]).collect(),
@@ -675,8 +736,12 @@ fn recorded(d: &RunData, info_path: &str, section: &str, key: &str) -> Text {
         if let Some(v) = s.table.get(section).and_then(|t| t.get(key)) {
             return match v {
                 // A distribution: its central value drives the single run (docs/scenario.md).
-                toml::Value::Table(t) => Text::new().plain("the central value of ").plain(distribution_text(t).unwrap_or_else(|| toml_text(v))).plain(";"),
-                toml::Value::Integer(_) | toml::Value::Float(_) => Text::new().num(toml_text(v), Some(Source::new(&s.name, &[section], key))),
+                toml::Value::Table(t) => {
+                    Text::new().plain("the central value of ").plain(distribution_text(t).unwrap_or_else(|| toml_text(v))).plain(";")
+                }
+                toml::Value::Integer(_) | toml::Value::Float(_) => {
+                    Text::new().num(toml_text(v), Some(Source::new(&s.name, &[section], key)))
+                }
                 _ => Text::new().plain(toml_text(v)),
             };
         }
@@ -694,7 +759,10 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
     doc.heading(3, "Evapotranspiration and water yield");
     match i.method {
         Method::Zhang { w_forest, w_grass } => {
-            doc.equation("ET/P = (1 + w·E0/P) / (1 + w·E0/P + P/E0)", "Zhang, Dawes & Walker (2001), eq. 8; P rainfall, E0 potential evapotranspiration, both mm/yr");
+            doc.equation(
+                "ET/P = (1 + w·E0/P) / (1 + w·E0/P + P/E0)",
+                "Zhang, Dawes & Walker (2001), eq. 8; P rainfall, E0 potential evapotranspiration, both mm/yr",
+            );
             doc.para(
                 Text::new()
                     .plain("with the plant-available-water coefficient w = ")
@@ -705,7 +773,10 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
             );
         }
         Method::Fu { omega_forest, omega_grass } => {
-            doc.equation("ET/P = 1 + φ − (1 + φ^ω)^(1/ω),   φ = E0/P", "Fu (1981), in the form of Zhang et al. (2004), eq. 4; evaluated in a numerically stable form");
+            doc.equation(
+                "ET/P = 1 + φ − (1 + φ^ω)^(1/ω),   φ = E0/P",
+                "Fu (1981), in the form of Zhang et al. (2004), eq. 4; evaluated in a numerically stable form",
+            );
             doc.para(
                 Text::new()
                     .plain("with ω = ")
@@ -731,7 +802,10 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
     }
 
     doc.heading(3, "Spread and density of the invader");
-    doc.equation("ΔI = min( (r·S + R)·(1 − I/V), V − I )", "Compounding spread from seed-bearing area with a logistic cap (age-cohort model)");
+    doc.equation(
+        "ΔI = min( (r·S + R)·(1 − I/V), V − I )",
+        "Compounding spread from seed-bearing area with a logistic cap (age-cohort model)",
+    );
     doc.para(
         Text::new()
             .plain("I is the infested area, V the vulnerable area, S the area of cohorts at or past the seed-bearing age of ")
@@ -748,7 +822,10 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
     );
 
     doc.heading(3, "Canopy closure");
-    let curve = d.scenario.as_ref().and_then(|s| s.table.get("canopy_closure").and_then(|c| c.get("curve")).and_then(|v| v.as_str()).map(str::to_string));
+    let curve = d
+        .scenario
+        .as_ref()
+        .and_then(|s| s.table.get("canopy_closure").and_then(|c| c.get("curve")).and_then(|v| v.as_str()).map(str::to_string));
     if curve.as_deref() == Some("table") {
         doc.para(
             Text::new()
@@ -756,10 +833,15 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
                 .then(recorded(d, "canopy_closure.ages_yr", "canopy_closure", "ages_yr"))
                 .plain(" and fractions ")
                 .then(recorded(d, "canopy_closure.fractions", "canopy_closure", "fractions"))
-                .plain(", interpolated linearly and held at the ends. Each cohort contributes area × closure(age) of ET-equivalent forest."),
+                .plain(
+                    ", interpolated linearly and held at the ends. Each cohort contributes area × closure(age) of ET-equivalent forest.",
+                ),
         );
     } else {
-        doc.equation("L(a) = 1 / (1 + exp(−k·(a − a½)));   closure(a) = c_max·(L(a) − L(0)) / (1 − L(0))", "Logistic closure with stand age a, rescaled to start at zero (after Scott & Smith 1997)");
+        doc.equation(
+            "L(a) = 1 / (1 + exp(−k·(a − a½)));   closure(a) = c_max·(L(a) − L(0)) / (1 − L(0))",
+            "Logistic closure with stand age a, rescaled to start at zero (after Scott & Smith 1997)",
+        );
         doc.para(
             Text::new()
                 .plain("with half-closure age a½ = ")
@@ -773,7 +855,10 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
     }
 
     doc.heading(3, "Contaminant loads and dilution");
-    doc.equation("L = A·[f·e_forest + (1 − f)·e_open] + L_point;   C = 1000·L / V", "Export-coefficient load (kg/yr) and flow-weighted concentration (mg/L) of the year's runoff volume V (m³/yr)");
+    doc.equation(
+        "L = A·[f·e_forest + (1 − f)·e_open] + L_point;   C = 1000·L / V",
+        "Export-coefficient load (kg/yr) and flow-weighted concentration (mg/L) of the year's runoff volume V (m³/yr)",
+    );
     doc.para(
         Text::new()
             .plain("Export coefficients e_open and e_forest are those of the contaminant table above; point loads come from the catchment table. Below a runoff depth of ")
@@ -789,13 +874,22 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
              (best-value) — at the cost per hectare of each cohort's density class, until the budget or fixed area is used. Treated area × efficacy is cleared \
              and stops producing seed. Water saved is the programme's yield minus the no-control yield of the same catchment and year.",
         );
-        doc.equation("water protected per $ = e·ΔQ·10·Σ_{k=1..L} closure(a + k) / c(a)", "Best-value ranking: efficacy e, yield lost per unit canopy ΔQ (mm/yr), remaining years L, cost per hectare c(a)");
+        doc.equation(
+            "water protected per $ = e·ΔQ·10·Σ_{k=1..L} closure(a + k) / c(a)",
+            "Best-value ranking: efficacy e, yield lost per unit canopy ΔQ (mm/yr), remaining years L, cost per hectare c(a)",
+        );
     }
     doc.heading(3, "Discounting and programme economics");
-    doc.equation("PV = Σ_t C_t / (1 + r)^t;   levelised cost = PV(cost) / PV(water saved)", "Present value of a yearly stream, year 0 = the start year (undiscounted)");
+    doc.equation(
+        "PV = Σ_t C_t / (1 + r)^t;   levelised cost = PV(cost) / PV(water saved)",
+        "Present value of a yearly stream, year 0 = the start year (undiscounted)",
+    );
     let mut t = Text::new().plain("with the discount rate r = ").then(info_num(d, "discount_rate", i.discount_rate)).plain(" per year.");
     if let Some(v) = i.water_value_per_m3 {
-        t = t.plain(" With the value of water v = ").then(info_num(d, "water_value_per_m3", v)).plain(" $/m³: NPV = v·PV(water) − PV(cost) and benefit-cost ratio = v·PV(water)/PV(cost).");
+        t = t
+            .plain(" With the value of water v = ")
+            .then(info_num(d, "water_value_per_m3", v))
+            .plain(" $/m³: NPV = v·PV(water) − PV(cost) and benefit-cost ratio = v·PV(water)/PV(cost).");
     }
     doc.para(t);
     if d.ensemble.is_some() || d.sensitivity.is_some() {
@@ -805,7 +899,11 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
             .as_ref()
             .and_then(|s| s.table.get("ensemble").and_then(|e| e.get("sampling")).and_then(|v| v.as_str()).map(str::to_string))
             .unwrap_or_else(|| "latin-hypercube".into());
-        let scheme = if sampling == "monte-carlo" { "independent random draws (plain Monte Carlo)" } else { "Latin hypercube sampling (McKay et al. 1979), one draw per stratum of each parameter" };
+        let scheme = if sampling == "monte-carlo" {
+            "independent random draws (plain Monte Carlo)"
+        } else {
+            "Latin hypercube sampling (McKay et al. 1979), one draw per stratum of each parameter"
+        };
         let ens = d.scenario.as_ref().and_then(|s| s.table.get("ensemble")).and_then(|e| e.as_table());
         let get = |k: &str| ens.and_then(|e| e.get(k)).map(toml_text);
         let climate = match get("climate").as_deref() {
@@ -830,7 +928,10 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
             if members.is_empty() { "" } else { "." }
         ));
         if d.sensitivity.is_some() {
-            doc.equation("ρ = Spearman rank correlation between a parameter's draws and the result across members", "Rank correlation and standardised regression coefficients (Saltelli et al. 2008)");
+            doc.equation(
+                "ρ = Spearman rank correlation between a parameter's draws and the result across members",
+                "Rank correlation and standardised regression coefficients (Saltelli et al. 2008)",
+            );
         }
     }
 }
@@ -874,11 +975,27 @@ fn results_section(d: &RunData, doc: &mut Doc, drawn: &[Drawn]) {
     );
     // Maps, when the run had catchment boundaries (drawn by the run, not the report).
     if let Some((_, o)) = figs::comparison_offset(d).filter(|(_, o)| *o == 20) {
-        figure_if(d, doc, "map_yield_change_20y", Text::new().plain(format!("Map of the yield change {o} years after the start ({}) without control, by catchment.", i.start_year + o)));
+        figure_if(
+            d,
+            doc,
+            "map_yield_change_20y",
+            Text::new()
+                .plain(format!("Map of the yield change {o} years after the start ({}) without control, by catchment.", i.start_year + o)),
+        );
     }
-    figure_if(d, doc, "map_yield_change_horizon", Text::new().plain(format!("Map of the yield change at the horizon ({}) without control, by catchment.", i.end_year())));
+    figure_if(
+        d,
+        doc,
+        "map_yield_change_horizon",
+        Text::new().plain(format!("Map of the yield change at the horizon ({}) without control, by catchment.", i.end_year())),
+    );
     let basin_cover = format!("basin_{}_cover", file_stem(NO_CONTROL));
-    figure_if(d, doc, &basin_cover, Text::new().plain("Infested area of the whole basin by density class without control, against the vulnerable area."));
+    figure_if(
+        d,
+        doc,
+        &basin_cover,
+        Text::new().plain("Infested area of the whole basin by density class without control, against the vulnerable area."),
+    );
 
     doc.heading(3, "Catchments");
     catchment_overview(d, doc);
@@ -911,7 +1028,10 @@ fn catchment_overview(d: &RunData, doc: &mut Doc) {
     let mut rows = Vec::new();
     for (id, name, _) in &d.catchments {
         let Some(r) = d.summary_row(id, NO_CONTROL) else { continue };
-        let mut row = vec![Text::new().plain(name.clone()).plain(" (").code(id).plain(")"), Text::new().num(fixed(r.area_ha, 0), Some(s_src(id, NO_CONTROL, "area_ha")))];
+        let mut row = vec![
+            Text::new().plain(name.clone()).plain(" (").code(id).plain(")"),
+            Text::new().num(fixed(r.area_ha, 0), Some(s_src(id, NO_CONTROL, "area_ha"))),
+        ];
         row.extend(change_cells(d, r));
         row.push(num_cell(r, sc::CANOPY_START, |v| fixed(v, 3), 1.0).plain(" → ").then(num_cell(r, sc::CANOPY_END, |v| fixed(v, 3), 1.0)));
         for (k, c) in i.contaminants.iter().enumerate() {
@@ -921,18 +1041,25 @@ fn catchment_overview(d: &RunData, doc: &mut Doc) {
     }
     let n = head.len();
     doc.table(Table {
-        caption: "Every catchment without control: yield change against the baseline, canopy fraction and first year above each guideline".into(),
+        caption: "Every catchment without control: yield change against the baseline, canopy fraction and first year above each guideline"
+            .into(),
         align: (0..n).map(|k| if k == 0 || k >= n - i.contaminants.len() { Align::Left } else { Align::Right }).collect(),
         head,
         rows,
-        note: Some(Text::new().plain("Source: ").code(SUMMARY).plain(if d.ensemble.is_some() { "; ranges in brackets: 5–95 % of ensemble members (ensemble.csv)." } else { "." })),
+        note: Some(Text::new().plain("Source: ").code(SUMMARY).plain(if d.ensemble.is_some() {
+            "; ranges in brackets: 5–95 % of ensemble members (ensemble.csv)."
+        } else {
+            "."
+        })),
     });
 }
 
 fn conc_cell(d: &RunData, id: &str, year: i32, k: usize, name: &str) -> Text {
     let ys = d.years(id, NO_CONTROL);
     match ys.iter().find(|y| y.year == year).and_then(|y| y.conc.get(k).copied().flatten()) {
-        Some(v) => Text::new().num(sig(v, 3), Some(Source::new("yearly.csv", &[id, NO_CONTROL, &year.to_string()], &format!("{name}_mg_per_l")))),
+        Some(v) => {
+            Text::new().num(sig(v, 3), Some(Source::new("yearly.csv", &[id, NO_CONTROL, &year.to_string()], &format!("{name}_mg_per_l"))))
+        }
         None => undefined(),
     }
 }
@@ -942,15 +1069,28 @@ fn catchment_detail(d: &RunData, doc: &mut Doc, id: &str, name: &str) {
     doc.heading(4, name);
     let stem = file_stem(id);
     let Some(nc) = d.summary_row(id, NO_CONTROL) else { return };
-    let mut t = Text::new().plain(format!("{name} (")).code(id).plain(", ").num(fixed(nc.area_ha, 0), Some(s_src(id, NO_CONTROL, "area_ha"))).plain(" ha). Without control its yield changes by ");
+    let mut t = Text::new()
+        .plain(format!("{name} ("))
+        .code(id)
+        .plain(", ")
+        .num(fixed(nc.area_ha, 0), Some(s_src(id, NO_CONTROL, "area_ha")))
+        .plain(" ha). Without control its yield changes by ");
     t = t.then(pct_cell(nc, sc::HORIZON, nc.get(sc::HORIZON))).plain(format!(" % by {} against the baseline", i.end_year()));
     if let Some(v) = nc.get(sc::VS_UNINVADED) {
-        t = t.plain(" and by ").num(signed(v, 1), Some(s_src(id, NO_CONTROL, sc::VS_UNINVADED))).plain(" % against the same catchment with no invader at all");
+        t = t
+            .plain(" and by ")
+            .num(signed(v, 1), Some(s_src(id, NO_CONTROL, sc::VS_UNINVADED)))
+            .plain(" % against the same catchment with no invader at all");
     }
-    t = t.plain("; in the last year that is ").then(num_cell(nc, sc::WATER_LOST, |v| fixed(v, 2), MILLION)).plain(" million m³ less water than the baseline.");
+    t = t
+        .plain("; in the last year that is ")
+        .then(num_cell(nc, sc::WATER_LOST, |v| fixed(v, 2), MILLION))
+        .plain(" million m³ less water than the baseline.");
     // The most influential uncertain parameter at the horizon, when ranked.
     if let Some(top) = d.sensitivity.as_ref().and_then(|rows| {
-        rows.iter().filter(|r| r.catchment == id && r.strategy == NO_CONTROL && r.at == "horizon" && r.spearman_rho.is_some()).min_by_key(|r| r.rank)
+        rows.iter()
+            .filter(|r| r.catchment == id && r.strategy == NO_CONTROL && r.at == "horizon" && r.spearman_rho.is_some())
+            .min_by_key(|r| r.rank)
     }) {
         let key = [id, NO_CONTROL, "horizon", top.parameter.as_str()];
         t = t
@@ -1014,14 +1154,22 @@ fn catchment_detail(d: &RunData, doc: &mut Doc, id: &str, name: &str) {
             .map(|(k, c)| {
                 let mut row = vec![
                     Text::new().code(&c.name),
-                    c.guideline_mg_per_l.map(|g| Text::new().num(num_plain(g), Some(Source::new("run_info.json", &[], &format!("contaminants.{}.guideline_mg_per_l", c.name))))).unwrap_or_else(|| Text::from("none")),
+                    c.guideline_mg_per_l
+                        .map(|g| {
+                            Text::new().num(
+                                num_plain(g),
+                                Some(Source::new("run_info.json", &[], &format!("contaminants.{}.guideline_mg_per_l", c.name))),
+                            )
+                        })
+                        .unwrap_or_else(|| Text::from("none")),
                     conc_cell(d, id, i.start_year, k, &c.name),
                 ];
                 if let Some(y) = y20 {
                     row.push(conc_cell(d, id, y, k, &c.name));
                 }
                 row.push(conc_cell(d, id, i.end_year(), k, &c.name));
-                let max = ys.iter().filter_map(|y| y.conc.get(k).copied().flatten().map(|v| (v, y.year))).max_by(|a, b| a.0.total_cmp(&b.0));
+                let max =
+                    ys.iter().filter_map(|y| y.conc.get(k).copied().flatten().map(|v| (v, y.year))).max_by(|a, b| a.0.total_cmp(&b.0));
                 row.push(match max {
                     Some((v, y)) => Text::new()
                         .num(sig(v, 3), Some(Source::new("yearly.csv", &[id, NO_CONTROL, &y.to_string()], &format!("{}_mg_per_l", c.name))))
@@ -1033,7 +1181,17 @@ fn catchment_detail(d: &RunData, doc: &mut Doc, id: &str, name: &str) {
                     let q = d.ensemble.as_ref().and_then(|e| e.get(id, NO_CONTROL, &format!("{}_mg_per_l", c.name), i.end_year()));
                     row.push(match q.and_then(|q| q.prob_above_guideline) {
                         Some(p) => Text::new()
-                            .num(fixed(100.0 * p, 0), Some(Source::new("ensemble.csv", &[id, NO_CONTROL, &i.end_year().to_string(), &format!("{}_mg_per_l", c.name)], "prob_above_guideline").scaled(0.01)))
+                            .num(
+                                fixed(100.0 * p, 0),
+                                Some(
+                                    Source::new(
+                                        "ensemble.csv",
+                                        &[id, NO_CONTROL, &i.end_year().to_string(), &format!("{}_mg_per_l", c.name)],
+                                        "prob_above_guideline",
+                                    )
+                                    .scaled(0.01),
+                                ),
+                            )
                             .plain(" %"),
                         None => undefined(),
                     });
@@ -1045,7 +1203,10 @@ fn catchment_detail(d: &RunData, doc: &mut Doc, id: &str, name: &str) {
         let low = ys.iter().filter(|y| y.low_runoff).count();
         let mut note = Text::new().plain("Without control; from yearly.csv (first year above guideline from summary.csv).");
         if low > 0 {
-            note = note.plain(format!(" In {low} of {} years runoff was too small to state a concentration (flag low-runoff); those years are left out.", ys.len()));
+            note = note.plain(format!(
+                " In {low} of {} years runoff was too small to state a concentration (flag low-runoff); those years are left out.",
+                ys.len()
+            ));
         }
         let first_idx = head.iter().position(|h| h == "First above guideline");
         doc.table(Table {
@@ -1060,7 +1221,11 @@ fn catchment_detail(d: &RunData, doc: &mut Doc, id: &str, name: &str) {
     // Programme economics for the catchment.
     let progs: Vec<&SummaryRow> = d.programmes().filter_map(|st| d.summary_row(id, st)).collect();
     if !progs.is_empty() {
-        doc.table(economics_table(d, &progs, format!("{name}: what each control programme costs and saves (its share of the basin programme)")));
+        doc.table(economics_table(
+            d,
+            &progs,
+            format!("{name}: what each control programme costs and saves (its share of the basin programme)"),
+        ));
     }
 
     // Figures.
@@ -1068,7 +1233,8 @@ fn catchment_detail(d: &RunData, doc: &mut Doc, id: &str, name: &str) {
         d,
         doc,
         &format!("{stem}_yield"),
-        Text::new().plain(format!("{name}: annual water yield without control, against the baseline (today's cover held) and no invasion.")),
+        Text::new()
+            .plain(format!("{name}: annual water yield without control, against the baseline (today's cover held) and no invasion.")),
     );
     figure_if(
         d,
@@ -1170,7 +1336,11 @@ fn nodes_results(d: &RunData, doc: &mut Doc) {
             row.push(match c.guideline_mg_per_l {
                 None => Text::from("no guideline"),
                 Some(g) => match ys.iter().find(|y| y.conc.get(k).copied().flatten().is_some_and(|v| v > g)) {
-                    Some(y) => Text::new().num(y.year.to_string(), src(y.year, &col)).plain(" (").num(sig(y.conc[k].unwrap_or(f64::NAN), 3), src(y.year, &col)).plain(" mg/L)"),
+                    Some(y) => Text::new()
+                        .num(y.year.to_string(), src(y.year, &col))
+                        .plain(" (")
+                        .num(sig(y.conc[k].unwrap_or(f64::NAN), 3), src(y.year, &col))
+                        .plain(" mg/L)"),
                     None => Text::from("not exceeded"),
                 },
             });
@@ -1191,7 +1361,11 @@ fn economics_results(d: &RunData, doc: &mut Doc) {
     doc.heading(3, "Strategy economics");
     let rows: Vec<&SummaryRow> = d.programmes().filter_map(|st| d.summary_row(BASIN, st)).collect();
     if !rows.is_empty() {
-        doc.table(economics_table(d, &rows, "The basin: what each control programme costs and what water it saves over the horizon".into()));
+        doc.table(economics_table(
+            d,
+            &rows,
+            "The basin: what each control programme costs and what water it saves over the horizon".into(),
+        ));
     }
     figure_if(
         d,
@@ -1200,7 +1374,12 @@ fn economics_results(d: &RunData, doc: &mut Doc) {
         Text::new().plain("Cumulative control cost against cumulative water saved for the basin, one line per programme: the steeper the line, the more water each dollar buys."),
     );
     for st in d.programmes() {
-        figure_if(d, doc, &format!("basin_{}_cover", file_stem(st)), Text::new().plain(format!("Infested area of the basin by density class under {st}.")));
+        figure_if(
+            d,
+            doc,
+            &format!("basin_{}_cover", file_stem(st)),
+            Text::new().plain(format!("Infested area of the basin by density class under {st}.")),
+        );
         figure_if(
             d,
             doc,
@@ -1247,7 +1426,9 @@ fn delay_results(d: &RunData, doc: &mut Doc) {
     for st in strategies {
         let mut rows: Vec<&super::folder::DelayRow> = d.delay.iter().filter(|r| &r.strategy == st).collect();
         rows.sort_by_key(|r| r.delay_yr);
-        let src = |r: &super::folder::DelayRow, col: &str, scale: f64| Some(Source::new("delay.csv", &[st.as_str(), &r.delay_yr.to_string()], col).scaled(scale));
+        let src = |r: &super::folder::DelayRow, col: &str, scale: f64| {
+            Some(Source::new("delay.csv", &[st.as_str(), &r.delay_yr.to_string()], col).scaled(scale))
+        };
         if let (Some(a), Some(b)) = (rows.first(), rows.last()) {
             if a.delay_yr != b.delay_yr {
                 doc.para(
@@ -1293,17 +1474,25 @@ fn delay_results(d: &RunData, doc: &mut Doc) {
             rows: body,
             note: Some(Text::new().plain("Source: ").code("delay.csv").plain(". A later start costs more in total because the stands it meets are denser; its present value can still fall because the spending is discounted further.")),
         });
-        figure_if(d, doc, &format!("delay_{}", file_stem(st)), Text::new().plain(format!("{st}: total cost and water lost as the start is delayed.")));
+        figure_if(
+            d,
+            doc,
+            &format!("delay_{}", file_stem(st)),
+            Text::new().plain(format!("{st}: total cost and water lost as the start is delayed.")),
+        );
     }
 }
 
 fn sensitivity_results(d: &RunData, doc: &mut Doc) {
     doc.heading(3, "Sensitivity");
     let (Some(rows), Some((catchment, strategy))) = (&d.sensitivity, figs::sensitivity_subject(d)) else {
-        doc.para("This run folder has no sensitivity.csv (no ensemble with uncertain parameters was run), so no sensitivity ranking is given.");
+        doc.para(
+            "This run folder has no sensitivity.csv (no ensemble with uncertain parameters was run), so no sensitivity ranking is given.",
+        );
         return;
     };
-    let mut ats: Vec<(String, i32)> = rows.iter().filter(|r| r.catchment == catchment && r.strategy == strategy).map(|r| (r.at.clone(), r.year)).collect();
+    let mut ats: Vec<(String, i32)> =
+        rows.iter().filter(|r| r.catchment == catchment && r.strategy == strategy).map(|r| (r.at.clone(), r.year)).collect();
     ats.sort_by_key(|a| a.1);
     ats.dedup();
     let subject = display_name(d, &catchment);
@@ -1312,7 +1501,8 @@ fn sensitivity_results(d: &RunData, doc: &mut Doc) {
         "Which uncertain parameters drive the {result} of {subject} under {strategy}: the Spearman rank correlation ρ between each parameter's draws and that result across ensemble members (its sign gives the direction: ρ > 0, a higher value of the parameter gives a higher result, i.e. less loss), and the standardised regression coefficient. Rank 1 is the most influential."
     ));
     for (at, year) in &ats {
-        let mut rs: Vec<&super::folder::SensitivityRow> = rows.iter().filter(|r| r.catchment == catchment && r.strategy == strategy && &r.at == at && r.year == *year).collect();
+        let mut rs: Vec<&super::folder::SensitivityRow> =
+            rows.iter().filter(|r| r.catchment == catchment && r.strategy == strategy && &r.at == at && r.year == *year).collect();
         rs.sort_by_key(|r| r.rank);
         let variable = rs.iter().find_map(|r| r.variable.clone());
         let body = rs
@@ -1390,10 +1580,18 @@ fn cautions_section(d: &RunData, doc: &mut Doc) {
     doc.notice(
         "Read before use",
         vec![
-            Text::new().strong("Screening-level estimate. ").plain("These projections are for screening and comparing options, not for design or allocation."),
-            Text::new().strong("Mean-annual curves ignore storage. ").plain("Water-balance curves for long-term means, applied year by year, ignore storage carry-over between years."),
-            Text::new().strong("Not a substitute for a site hydrological assessment. ").plain("Local measurements and a site study are needed before decisions rest on these numbers."),
-            Text::new().strong("Defer to local regulation and qualified practitioners. ").plain("Regulators, hydrologists and water-quality practitioners decide what applies at a site."),
+            Text::new()
+                .strong("Screening-level estimate. ")
+                .plain("These projections are for screening and comparing options, not for design or allocation."),
+            Text::new()
+                .strong("Mean-annual curves ignore storage. ")
+                .plain("Water-balance curves for long-term means, applied year by year, ignore storage carry-over between years."),
+            Text::new()
+                .strong("Not a substitute for a site hydrological assessment. ")
+                .plain("Local measurements and a site study are needed before decisions rest on these numbers."),
+            Text::new()
+                .strong("Defer to local regulation and qualified practitioners. ")
+                .plain("Regulators, hydrologists and water-quality practitioners decide what applies at a site."),
             Text::new().em("As recorded by the run: ").plain(d.info.cautions.clone()),
         ],
     );

@@ -9,12 +9,12 @@
 
 use super::folder::{RunData, BASIN, NO_CONTROL};
 use crate::error::Result;
+use crate::io::catchments::file_stem;
 use crate::model::budyko::CoverCurves;
 use crate::plot::basin::{catchment_comparison, CatchmentChange};
 use crate::plot::budyko_space::{BudykoSpace, Trajectory};
 use crate::plot::sensitivity::{influence_chart, Influence, InfluencePanel};
 use crate::plot::series::{Band, Corner, Line, LineChart};
-use crate::io::catchments::file_stem;
 use crate::plot::{palette, save_figure, Formats};
 
 /// Stem of the catchment comparison figure.
@@ -94,11 +94,7 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
     let rows: Vec<CatchmentChange> = values
         .iter()
         .filter_map(|(id, name, v)| {
-            let range = d
-                .ensemble
-                .as_ref()
-                .and_then(|e| e.get(id, NO_CONTROL, "yield_change_pct", year))
-                .map(|q| (q.p5, q.p95));
+            let range = d.ensemble.as_ref().and_then(|e| e.get(id, NO_CONTROL, "yield_change_pct", year)).map(|q| (q.p5, q.p95));
             v.map(|v| CatchmentChange {
                 name: if id == BASIN { "Basin (all catchments)".to_string() } else { name.clone() },
                 change_pct: v,
@@ -108,8 +104,12 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
         })
         .collect();
     if !rows.is_empty() {
-        let (chart, left_out) =
-            catchment_comparison(format!("{} — yield change by catchment, {NO_CONTROL}", d.info.title), col_label, Some("5–95 % range across ensemble members".into()), &rows);
+        let (chart, left_out) = catchment_comparison(
+            format!("{} — yield change by catchment, {NO_CONTROL}", d.info.title),
+            col_label,
+            Some("5–95 % range across ensemble members".into()),
+            &rows,
+        );
         save_figure(&chart, &dir.join(COMPARISON), formats)?;
         let note = if left_out > 0 { format!("The {left_out} catchments with the smallest losses are not drawn.") } else { String::new() };
         out.push(Drawn { stem: COMPARISON.into(), note });
@@ -165,16 +165,28 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
     // 3. Sensitivity.
     if let Some(rows) = &d.sensitivity {
         if let Some((catchment, strategy)) = sensitivity_subject(d) {
-            let mut ats: Vec<(String, i32)> = rows.iter().filter(|r| r.catchment == catchment && r.strategy == strategy).map(|r| (r.at.clone(), r.year)).collect();
+            let mut ats: Vec<(String, i32)> =
+                rows.iter().filter(|r| r.catchment == catchment && r.strategy == strategy).map(|r| (r.at.clone(), r.year)).collect();
             ats.sort_by_key(|a| a.1);
             ats.dedup();
             for (at, year) in &ats {
                 let panel = InfluencePanel {
-                    title: format!("{}, {strategy}: parameter influence, {} ({year})", subject_name(d, &catchment), at_label(at).to_lowercase()),
+                    title: format!(
+                        "{}, {strategy}: parameter influence, {} ({year})",
+                        subject_name(d, &catchment),
+                        at_label(at).to_lowercase()
+                    ),
                     influences: rows
                         .iter()
                         .filter(|r| r.catchment == catchment && r.strategy == strategy && &r.at == at && r.year == *year)
-                        .filter_map(|r| r.spearman_rho.map(|rho| Influence { parameter: r.parameter.clone(), spearman_rho: rho, src: r.src, rank: r.rank }))
+                        .filter_map(|r| {
+                            r.spearman_rho.map(|rho| Influence {
+                                parameter: r.parameter.clone(),
+                                spearman_rho: rho,
+                                src: r.src,
+                                rank: r.rank,
+                            })
+                        })
                         .collect(),
                 };
                 if !panel.influences.is_empty() {
@@ -189,7 +201,8 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
     // 4. Ensemble ranges over time.
     if let Some(e) = &d.ensemble {
         // Only for the catchments the report details (all of them in small basins).
-        let mut subjects: Vec<(String, String)> = super::content::detailed_catchments(d).into_iter().map(|c| (c.0.clone(), c.1.clone())).collect();
+        let mut subjects: Vec<(String, String)> =
+            super::content::detailed_catchments(d).into_iter().map(|c| (c.0.clone(), c.1.clone())).collect();
         subjects.push((BASIN.to_string(), "Basin (all catchments)".to_string()));
         for (id, name) in subjects {
             let stem = file_stem(&id);
@@ -200,7 +213,12 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
                     format!("{name} — water yield with ensemble ranges"),
                     "Water yield (mm/yr)".into(),
                     vec![
-                        Line { label: "Ensemble median".into(), points: ys.iter().map(|(y, q)| (*y as f64, Some(q.p50))).collect(), colour: palette::RANGE, dashed: true },
+                        Line {
+                            label: "Ensemble median".into(),
+                            points: ys.iter().map(|(y, q)| (*y as f64, Some(q.p50))).collect(),
+                            colour: palette::RANGE,
+                            dashed: true,
+                        },
                         Line {
                             label: "Projected (central parameters)".into(),
                             points: years.iter().map(|y| (y.year as f64, Some(y.yield_mm))).collect(),
@@ -223,7 +241,12 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
                     format!("{name} — {} with ensemble ranges", c.name),
                     format!("{} (mg/L)", c.name),
                     vec![
-                        Line { label: "Ensemble median".into(), points: qs.iter().map(|(y, q)| (*y as f64, Some(q.p50))).collect(), colour: palette::RANGE, dashed: true },
+                        Line {
+                            label: "Ensemble median".into(),
+                            points: qs.iter().map(|(y, q)| (*y as f64, Some(q.p50))).collect(),
+                            colour: palette::RANGE,
+                            dashed: true,
+                        },
                         Line {
                             label: "Projected (central parameters)".into(),
                             points: years.iter().map(|y| (y.year as f64, y.conc.get(k).copied().flatten())).collect(),
@@ -233,7 +256,8 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
                     ],
                 );
                 chart.bands = bands(&qs, palette::series(k + 1));
-                chart.thresholds = c.guideline_mg_per_l.map(|g| vec![(format!("Guideline {g} mg/L"), g, palette::GUIDELINE)]).unwrap_or_default();
+                chart.thresholds =
+                    c.guideline_mg_per_l.map(|g| vec![(format!("Guideline {g} mg/L"), g, palette::GUIDELINE)]).unwrap_or_default();
                 chart.legend_at = Corner::UpperLeft;
                 let stem_c = format!("{stem}_{}_range", c.name);
                 save_figure(&chart, &dir.join(&stem_c), formats)?;
@@ -261,8 +285,18 @@ pub fn window_starts(n: usize, window: usize) -> Vec<usize> {
 
 fn bands(qs: &[(i32, super::folder::Quantiles)], colour: plotters::style::RGBColor) -> Vec<Band> {
     vec![
-        Band { label: "5–95 % of members".into(), points: qs.iter().map(|(y, q)| (*y as f64, q.p5, q.p95)).collect(), colour, opacity: 0.16 },
-        Band { label: "25–75 % of members".into(), points: qs.iter().map(|(y, q)| (*y as f64, q.p25, q.p75)).collect(), colour, opacity: 0.34 },
+        Band {
+            label: "5–95 % of members".into(),
+            points: qs.iter().map(|(y, q)| (*y as f64, q.p5, q.p95)).collect(),
+            colour,
+            opacity: 0.16,
+        },
+        Band {
+            label: "25–75 % of members".into(),
+            points: qs.iter().map(|(y, q)| (*y as f64, q.p25, q.p75)).collect(),
+            colour,
+            opacity: 0.34,
+        },
     ]
 }
 

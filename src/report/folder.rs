@@ -50,7 +50,8 @@ impl CsvTable {
             return Ok(None);
         }
         let file = std::fs::File::open(&path).map_err(|e| Error::io(format!("reading {}", path.display()), e))?;
-        let mut rd = csv::ReaderBuilder::new().has_headers(true).flexible(true).from_reader(std::io::BufReader::with_capacity(1 << 16, file));
+        let mut rd =
+            csv::ReaderBuilder::new().has_headers(true).flexible(true).from_reader(std::io::BufReader::with_capacity(1 << 16, file));
         let headers: Vec<String> = rd
             .headers()
             .map_err(|e| Error::invalid(Problem::in_file(&path, format!("cannot read the header: {e}")).row(1)))?
@@ -380,7 +381,9 @@ impl RunInfo {
             return Err(Error::Invalid(problems));
         }
         if !(horizon_years >= 0.0 && horizon_years.fract() == 0.0 && start_year.fract() == 0.0) {
-            return Err(Error::invalid(Problem::in_file(path, "start_year and horizon_years must be whole numbers").column("horizon_years")));
+            return Err(Error::invalid(
+                Problem::in_file(path, "start_year and horizon_years must be whole numbers").column("horizon_years"),
+            ));
         }
         Ok(RunInfo {
             title,
@@ -534,7 +537,10 @@ impl Ensemble {
     /// The series of `variable` over years.
     pub fn series(&self, catchment: &str, strategy: &str, variable: &str) -> Vec<(i32, Quantiles)> {
         self.rows
-            .range((catchment.to_string(), strategy.to_string(), variable.to_string(), i32::MIN)..=(catchment.to_string(), strategy.to_string(), variable.to_string(), i32::MAX))
+            .range(
+                (catchment.to_string(), strategy.to_string(), variable.to_string(), i32::MIN)
+                    ..=(catchment.to_string(), strategy.to_string(), variable.to_string(), i32::MAX),
+            )
             .map(|(k, q)| (k.3, *q))
             .collect()
     }
@@ -735,7 +741,10 @@ pub fn read_run(dir: &Path) -> Result<RunData> {
             catchments.push((r.catchment.clone(), r.name.clone(), r.area_ha));
         }
         if !info.strategies.contains(&r.strategy) && problems.len() < MAX_PROBLEMS {
-            problems.push(Problem::in_file(&summary_path, format!("strategy '{}' is not among run_info.json's strategies", r.strategy)).column("strategy"));
+            problems.push(
+                Problem::in_file(&summary_path, format!("strategy '{}' is not among run_info.json's strategies", r.strategy))
+                    .column("strategy"),
+            );
         }
     }
     if catchments.is_empty() {
@@ -753,7 +762,8 @@ pub fn read_run(dir: &Path) -> Result<RunData> {
     }
 
     // Which catchments the report details and draws: all in small basins.
-    let horizon = |id: &str| summary_index.get(&(id.to_string(), NO_CONTROL.to_string())).and_then(|&k| summary[k].get(summary_cols::HORIZON));
+    let horizon =
+        |id: &str| summary_index.get(&(id.to_string(), NO_CONTROL.to_string())).and_then(|&k| summary[k].get(summary_cols::HORIZON));
     let largest = |n: usize, key: &dyn Fn(&str) -> f64| -> BTreeSet<String> {
         let mut ids: Vec<&String> = catchments.iter().map(|c| &c.0).collect();
         ids.sort_by(|a, b| key(a).total_cmp(&key(b)).then_with(|| a.cmp(b)));
@@ -901,7 +911,8 @@ fn read_summary(t: &CsvTable, contaminants: &[String], problems: &mut Vec<Proble
         .collect();
     offsets.sort();
     use summary_cols::*;
-    let named = [HORIZON, VS_UNINVADED, WATER_LOST, CANOPY_START, CANOPY_END, COST, COST_PV, SAVED, SAVED_PV, COST_PER_M3, LEVELISED, NPV, BCR];
+    let named =
+        [HORIZON, VS_UNINVADED, WATER_LOST, CANOPY_START, CANOPY_END, COST, COST_PV, SAVED, SAVED_PV, COST_PER_M3, LEVELISED, NPV, BCR];
     let cols = t.require(&named, problems);
     let exceed: Vec<usize> = contaminants
         .iter()
@@ -1018,7 +1029,16 @@ fn read_nodes(t: &CsvTable, contaminants: &[String], problems: &mut Vec<Problem>
 
 fn read_delay(t: &CsvTable, problems: &mut Vec<Problem>) -> Vec<DelayRow> {
     let c = t.require(
-        &["strategy", "delay_yr", "start_year", "total_cost", "total_cost_pv", "water_saved_m3", "water_lost_vs_baseline_m3", "final_infested_ha"],
+        &[
+            "strategy",
+            "delay_yr",
+            "start_year",
+            "total_cost",
+            "total_cost_pv",
+            "water_saved_m3",
+            "water_lost_vs_baseline_m3",
+            "final_infested_ha",
+        ],
         problems,
     );
     if !problems.is_empty() {
@@ -1047,7 +1067,9 @@ fn read_budget(t: &CsvTable, problems: &mut Vec<Problem>) -> BTreeMap<(String, S
         return out;
     }
     for r in 0..t.rows.len() {
-        let e = out.entry((t.text(r, c[0]).to_string(), t.text(r, c[1]).to_string())).or_insert_with(|| BudgetTotals { available: Some(0.0), ..Default::default() });
+        let e = out
+            .entry((t.text(r, c[0]).to_string(), t.text(r, c[1]).to_string()))
+            .or_insert_with(|| BudgetTotals { available: Some(0.0), ..Default::default() });
         e.years += 1;
         if t.text(r, c[3]) == "unlimited" {
             e.available = None;
@@ -1070,7 +1092,8 @@ fn read_ensemble(t: &CsvTable, problems: &mut Vec<Problem>) -> Ensemble {
     for r in 0..t.rows.len() {
         let Some(year) = t.int(r, c[2], problems) else { continue };
         let n = |k: usize, p: &mut Vec<Problem>| t.num(r, c[k], p);
-        let (Some(p5), Some(p25), Some(p50), Some(p75), Some(p95)) = (n(4, problems), n(5, problems), n(6, problems), n(7, problems), n(8, problems))
+        let (Some(p5), Some(p25), Some(p50), Some(p75), Some(p95)) =
+            (n(4, problems), n(5, problems), n(6, problems), n(7, problems), n(8, problems))
         else {
             // Undefined percentiles (e.g. too little runoff in every member) are left out.
             continue;

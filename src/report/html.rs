@@ -117,7 +117,8 @@ pub fn render(doc: &Doc, run_dir: &Path, footer: &Text) -> String {
     h.push_str("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n");
     let _ = writeln!(h, "<meta name=\"generator\" content=\"yieldshift report\">\n<title>{}</title>", escape(&doc.title));
     let _ = writeln!(h, "<style>{STYLE}</style>\n</head>\n<body>");
-    let _ = writeln!(h, "<header class=\"top\">\n<h1>{}</h1>\n<p class=\"sub\">{}</p>\n</header>", escape(&doc.title), escape(&doc.subtitle));
+    let _ =
+        writeln!(h, "<header class=\"top\">\n<h1>{}</h1>\n<p class=\"sub\">{}</p>\n</header>", escape(&doc.title), escape(&doc.subtitle));
 
     // Contents.
     h.push_str("<nav class=\"toc\" aria-label=\"Contents\">\n<ol>\n");
@@ -158,7 +159,8 @@ pub fn render(doc: &Doc, run_dir: &Path, footer: &Text) -> String {
             }
             Block::Table { number, table } => {
                 let class = if table.head.len() > 9 { " class=\"wide\"" } else { "" };
-                let _ = writeln!(h, "<table{class}>\n<caption><span class=\"no\">Table {number}.</span>{}</caption>", escape(&table.caption));
+                let _ =
+                    writeln!(h, "<table{class}>\n<caption><span class=\"no\">Table {number}.</span>{}</caption>", escape(&table.caption));
                 h.push_str("<thead><tr>");
                 for (i, c) in table.head.iter().enumerate() {
                     let r = if table.align.get(i) == Some(&Align::Right) { " class=\"r\"" } else { "" };

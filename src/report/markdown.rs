@@ -103,7 +103,12 @@ pub fn render(doc: &Doc, footer: &Text) -> String {
                     "![Figure {number}](figures/{})\n\n*Figure {number}.* {}{}\n",
                     figure.shown().replace(' ', "%20"),
                     spans(&figure.caption).trim_end(),
-                    figure.svg.as_ref().filter(|_| figure.png.is_some()).map(|s| format!(" Vector version: {}.", code(&format!("figures/{s}")))).unwrap_or_default()
+                    figure
+                        .svg
+                        .as_ref()
+                        .filter(|_| figure.png.is_some())
+                        .map(|s| format!(" Vector version: {}.", code(&format!("figures/{s}"))))
+                        .unwrap_or_default()
                 );
             }
             Block::Notice { title, lines } => {

@@ -118,13 +118,7 @@ impl CoverCurves {
 /// * `canopy_fraction` `f` — ET-equivalent forest fraction of the catchment, 0–1.
 /// * `pet_forest_mm`, `pet_grass_mm` — evaporative demand over each cover, mm/yr.
 #[inline]
-pub fn mixed_et_mm(
-    curves: &CoverCurves,
-    rain_mm: f64,
-    pet_forest_mm: f64,
-    pet_grass_mm: f64,
-    canopy_fraction: f64,
-) -> f64 {
+pub fn mixed_et_mm(curves: &CoverCurves, rain_mm: f64, pet_forest_mm: f64, pet_grass_mm: f64, canopy_fraction: f64) -> f64 {
     let f = canopy_fraction.clamp(0.0, 1.0);
     f * curves.forest_et_mm(rain_mm, pet_forest_mm) + (1.0 - f) * curves.grass_et_mm(rain_mm, pet_grass_mm)
 }

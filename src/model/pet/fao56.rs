@@ -214,9 +214,7 @@ impl Humidity {
         match *self {
             Humidity::VapourPressure { ea_kpa } => ea_kpa,
             Humidity::DewPoint { dewpoint_c } => ea_from_dewpoint_kpa(dewpoint_c),
-            Humidity::RhMaxMin { rh_max_pct, rh_min_pct } => {
-                ea_from_rh_max_min_kpa(tmax_c, tmin_c, rh_max_pct, rh_min_pct)
-            }
+            Humidity::RhMaxMin { rh_max_pct, rh_min_pct } => ea_from_rh_max_min_kpa(tmax_c, tmin_c, rh_max_pct, rh_min_pct),
             Humidity::RhMax { rh_max_pct } => ea_from_rh_max_kpa(tmin_c, rh_max_pct),
             Humidity::RhMean { rh_mean_pct } => ea_from_rh_mean_kpa(tmax_c, tmin_c, rh_mean_pct),
             Humidity::TminAsDewPoint => ea_from_tmin_kpa(tmin_c),
@@ -282,9 +280,7 @@ pub fn ea_from_dewpoint_kpa(dewpoint_c: f64) -> f64 {
 
 /// Actual vapour pressure `ea`, kPa, from RHmax and RHmin (%) (FAO-56 eq. 17).
 pub fn ea_from_rh_max_min_kpa(tmax_c: f64, tmin_c: f64, rh_max_pct: f64, rh_min_pct: f64) -> f64 {
-    (saturation_vapour_pressure_kpa(tmin_c) * rh_max_pct / 100.0
-        + saturation_vapour_pressure_kpa(tmax_c) * rh_min_pct / 100.0)
-        / 2.0
+    (saturation_vapour_pressure_kpa(tmin_c) * rh_max_pct / 100.0 + saturation_vapour_pressure_kpa(tmax_c) * rh_min_pct / 100.0) / 2.0
 }
 
 /// Actual vapour pressure `ea`, kPa, from RHmax (%) alone (FAO-56 eq. 18).
@@ -325,10 +321,7 @@ pub fn extraterrestrial_radiation_mj_m2_day(latitude_deg: f64, day_of_year: u32)
     let dr = inverse_relative_distance(day_of_year);
     let delta = solar_declination_rad(day_of_year);
     let ws = sunset_hour_angle_rad(phi, delta);
-    let ra = 24.0 * 60.0 / PI
-        * SOLAR_CONSTANT_MJ_M2_MIN
-        * dr
-        * (ws * phi.sin() * delta.sin() + phi.cos() * delta.cos() * ws.sin());
+    let ra = 24.0 * 60.0 / PI * SOLAR_CONSTANT_MJ_M2_MIN * dr * (ws * phi.sin() * delta.sin() + phi.cos() * delta.cos() * ws.sin());
     ra.max(0.0)
 }
 
@@ -341,12 +334,7 @@ pub fn daylight_hours(latitude_deg: f64, day_of_year: u32) -> f64 {
 /// Solar radiation `Rs`, MJ m⁻² day⁻¹, from sunshine hours `n` and daylight hours `N`
 /// by the Ångström formula (FAO-56 eq. 35). `n/N` is capped at 1; when `N = 0`
 /// (polar night) `Rs = a_s Ra`, which is 0 since `Ra` is then 0.
-pub fn solar_radiation_from_sunshine_mj_m2_day(
-    sunshine_h: f64,
-    daylight_h: f64,
-    ra_mj_m2_day: f64,
-    angstrom: Angstrom,
-) -> f64 {
+pub fn solar_radiation_from_sunshine_mj_m2_day(sunshine_h: f64, daylight_h: f64, ra_mj_m2_day: f64, angstrom: Angstrom) -> f64 {
     let ratio = if daylight_h > 0.0 { (sunshine_h / daylight_h).clamp(0.0, 1.0) } else { 0.0 };
     (angstrom.a_s + angstrom.b_s * ratio) * ra_mj_m2_day
 }
@@ -369,22 +357,11 @@ pub fn net_shortwave_radiation_mj_m2_day(rs_mj_m2_day: f64, albedo: f64) -> f64 
 /// Net outgoing longwave radiation `Rnl`, MJ m⁻² day⁻¹ (FAO-56 eq. 39).
 ///
 /// `Rs/Rso` is capped at 1.0; when `Rso ≤ 0` (polar night) it is taken as 1.
-pub fn net_longwave_radiation_mj_m2_day(
-    tmax_c: f64,
-    tmin_c: f64,
-    ea_kpa: f64,
-    rs_mj_m2_day: f64,
-    rso_mj_m2_day: f64,
-) -> f64 {
+pub fn net_longwave_radiation_mj_m2_day(tmax_c: f64, tmin_c: f64, ea_kpa: f64, rs_mj_m2_day: f64, rso_mj_m2_day: f64) -> f64 {
     let tmax_k4 = (tmax_c + KELVIN_OFFSET_EQ39).powi(4);
     let tmin_k4 = (tmin_c + KELVIN_OFFSET_EQ39).powi(4);
-    let relative_shortwave =
-        if rso_mj_m2_day > 0.0 { (rs_mj_m2_day / rso_mj_m2_day).clamp(0.0, 1.0) } else { 1.0 };
-    STEFAN_BOLTZMANN_MJ_K4_M2_DAY
-        * (tmax_k4 + tmin_k4)
-        / 2.0
-        * (0.34 - 0.14 * ea_kpa.max(0.0).sqrt())
-        * (1.35 * relative_shortwave - 0.35)
+    let relative_shortwave = if rso_mj_m2_day > 0.0 { (rs_mj_m2_day / rso_mj_m2_day).clamp(0.0, 1.0) } else { 1.0 };
+    STEFAN_BOLTZMANN_MJ_K4_M2_DAY * (tmax_k4 + tmin_k4) / 2.0 * (0.34 - 0.14 * ea_kpa.max(0.0).sqrt()) * (1.35 * relative_shortwave - 0.35)
 }
 
 /// Soil heat flux `G` for a monthly period, MJ m⁻² day⁻¹, from mean monthly air
@@ -458,14 +435,7 @@ pub struct RadiationTerms {
 
 /// Runs the FAO-56 radiation chain for one period at `site` on day `J`: Ra, N, Rs
 /// (from sunshine or measured), Rso, Rns, Rnl and Rn.
-pub fn radiation_terms(
-    site: &Site,
-    day_of_year: u32,
-    solar: Solar,
-    tmax_c: f64,
-    tmin_c: f64,
-    ea_kpa: f64,
-) -> RadiationTerms {
+pub fn radiation_terms(site: &Site, day_of_year: u32, solar: Solar, tmax_c: f64, tmin_c: f64, ea_kpa: f64) -> RadiationTerms {
     let ra = extraterrestrial_radiation_mj_m2_day(site.latitude_deg(), day_of_year);
     let daylight_h = daylight_hours(site.latitude_deg(), day_of_year);
     let rs = match solar {
@@ -539,16 +509,7 @@ pub fn penman_monteith(site: &Site, input: &PenmanMonteithInput) -> PenmanMontei
     let es = mean_saturation_vapour_pressure_kpa(input.tmax_c, input.tmin_c);
     let ea = input.humidity.actual_vapour_pressure_kpa(input.tmax_c, input.tmin_c);
     let radiation = radiation_terms(site, input.day_of_year, input.solar, input.tmax_c, input.tmin_c, ea);
-    let et0 = et0_penman_monteith_mm_per_day(
-        delta,
-        gamma,
-        radiation.rn_mj_m2_day,
-        input.g_mj_m2_day,
-        t_mean_c,
-        input.u2_m_per_s,
-        es,
-        ea,
-    );
+    let et0 = et0_penman_monteith_mm_per_day(delta, gamma, radiation.rn_mj_m2_day, input.g_mj_m2_day, t_mean_c, input.u2_m_per_s, es, ea);
     PenmanMonteithTerms {
         pressure_kpa,
         gamma_kpa_per_c: gamma,
@@ -603,11 +564,7 @@ mod tests {
         // Saturated air at the dew point Tmin: eq. 18 with 100 % equals eq. 48.
         assert_abs_diff_eq!(ea_from_rh_max_kpa(7.0, 100.0), ea_from_tmin_kpa(7.0), epsilon = 1e-12);
         // eq. 19 with 100 % equals es (eq. 12).
-        assert_abs_diff_eq!(
-            ea_from_rh_mean_kpa(25.0, 10.0, 100.0),
-            mean_saturation_vapour_pressure_kpa(25.0, 10.0),
-            epsilon = 1e-12
-        );
+        assert_abs_diff_eq!(ea_from_rh_mean_kpa(25.0, 10.0, 100.0), mean_saturation_vapour_pressure_kpa(25.0, 10.0), epsilon = 1e-12);
         // Δ is the derivative of e°(T): compare with a central difference.
         let h = 1e-4;
         let numeric = (saturation_vapour_pressure_kpa(20.0 + h) - saturation_vapour_pressure_kpa(20.0 - h)) / (2.0 * h);
@@ -648,10 +605,6 @@ mod tests {
     fn calibrated_angstrom_uses_eq36() {
         let cal = Angstrom { a_s: 0.2, b_s: 0.55 };
         assert_abs_diff_eq!(clear_sky_radiation_mj_m2_day(40.0, 500.0, cal), 0.75 * 40.0, epsilon = 1e-12);
-        assert_abs_diff_eq!(
-            clear_sky_radiation_mj_m2_day(40.0, 500.0, Angstrom::default()),
-            0.76 * 40.0,
-            epsilon = 1e-12
-        );
+        assert_abs_diff_eq!(clear_sky_radiation_mj_m2_day(40.0, 500.0, Angstrom::default()), 0.76 * 40.0, epsilon = 1e-12);
     }
 }

@@ -52,11 +52,7 @@ pub const HARGREAVES_OFFSET_C: f64 = 17.8;
 pub fn et0_hargreaves_mm_per_day(tmax_c: f64, tmin_c: f64, ra_mj_m2_day: f64) -> f64 {
     let t_mean = mean_temperature_c(tmax_c, tmin_c);
     let range = (tmax_c - tmin_c).max(0.0);
-    let et0 = HARGREAVES_COEFFICIENT
-        * (t_mean + HARGREAVES_OFFSET_C)
-        * range.sqrt()
-        * MM_PER_DAY_PER_MJ_M2_DAY
-        * ra_mj_m2_day;
+    let et0 = HARGREAVES_COEFFICIENT * (t_mean + HARGREAVES_OFFSET_C) * range.sqrt() * MM_PER_DAY_PER_MJ_M2_DAY * ra_mj_m2_day;
     et0.max(0.0)
 }
 

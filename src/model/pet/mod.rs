@@ -48,8 +48,7 @@ pub enum PetMethod {
 
 impl PetMethod {
     /// Every method, in order of preference when the data allow it.
-    pub const ALL: [PetMethod; 3] =
-        [PetMethod::PenmanMonteith, PetMethod::PriestleyTaylor, PetMethod::Hargreaves];
+    pub const ALL: [PetMethod; 3] = [PetMethod::PenmanMonteith, PetMethod::PriestleyTaylor, PetMethod::Hargreaves];
 
     /// The name written in output files and accepted on the command line.
     pub fn name(self) -> &'static str {
@@ -114,13 +113,7 @@ impl Site {
             return Err(SiteError::Elevation(elevation_m));
         }
         let Angstrom { a_s, b_s } = angstrom;
-        let ok = a_s.is_finite()
-            && b_s.is_finite()
-            && a_s > 0.0
-            && a_s < 1.0
-            && b_s > 0.0
-            && b_s < 1.0
-            && a_s + b_s <= 1.0;
+        let ok = a_s.is_finite() && b_s.is_finite() && a_s > 0.0 && a_s < 1.0 && b_s > 0.0 && b_s < 1.0 && a_s + b_s <= 1.0;
         if !ok {
             return Err(SiteError::Angstrom { a_s, b_s });
         }

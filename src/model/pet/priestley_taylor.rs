@@ -43,8 +43,8 @@
 //! 20 and the radiation chain eq. 21–40).
 
 use super::fao56::{
-    atmospheric_pressure_kpa, mean_temperature_c, psychrometric_constant_kpa_per_c, radiation_terms,
-    slope_vapour_pressure_curve_kpa_per_c, Humidity, RadiationTerms, Solar, MM_PER_DAY_PER_MJ_M2_DAY,
+    atmospheric_pressure_kpa, mean_temperature_c, psychrometric_constant_kpa_per_c, radiation_terms, slope_vapour_pressure_curve_kpa_per_c,
+    Humidity, RadiationTerms, Solar, MM_PER_DAY_PER_MJ_M2_DAY,
 };
 use super::Site;
 
@@ -53,16 +53,8 @@ pub const ALPHA: f64 = 1.26;
 
 /// Priestley–Taylor evaporation, mm/day, from its terms: `delta` and `gamma` in
 /// kPa/°C, `rn` and `g` in MJ m⁻² day⁻¹, `alpha` dimensionless.
-pub fn et0_priestley_taylor_mm_per_day(
-    delta_kpa_per_c: f64,
-    gamma_kpa_per_c: f64,
-    rn_mj_m2_day: f64,
-    g_mj_m2_day: f64,
-    alpha: f64,
-) -> f64 {
-    alpha * delta_kpa_per_c / (delta_kpa_per_c + gamma_kpa_per_c)
-        * MM_PER_DAY_PER_MJ_M2_DAY
-        * (rn_mj_m2_day - g_mj_m2_day)
+pub fn et0_priestley_taylor_mm_per_day(delta_kpa_per_c: f64, gamma_kpa_per_c: f64, rn_mj_m2_day: f64, g_mj_m2_day: f64, alpha: f64) -> f64 {
+    alpha * delta_kpa_per_c / (delta_kpa_per_c + gamma_kpa_per_c) * MM_PER_DAY_PER_MJ_M2_DAY * (rn_mj_m2_day - g_mj_m2_day)
 }
 
 /// Where the net radiation of a period comes from.
@@ -161,11 +153,7 @@ mod tests {
             },
             0.0,
         );
-        let meas = priestley_taylor(
-            &site,
-            &NetRadiation::Measured { t_mean_c: 16.5, rn_mj_m2_day: est.rn_mj_m2_day },
-            0.0,
-        );
+        let meas = priestley_taylor(&site, &NetRadiation::Measured { t_mean_c: 16.5, rn_mj_m2_day: est.rn_mj_m2_day }, 0.0);
         assert_abs_diff_eq!(est.et0_mm_per_day, meas.et0_mm_per_day, epsilon = 1e-12);
         assert!(est.radiation.is_some() && meas.radiation.is_none());
     }
