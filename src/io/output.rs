@@ -275,21 +275,21 @@ pub fn budget_fields(strategy: &str, pool: &str, b: &BudgetYear) -> Vec<String> 
     ]
 }
 
+/// Columns of `delay.csv` (written here, read by the report).
+pub const DELAY_COLUMNS: [&str; 8] = [
+    "strategy",
+    "delay_yr",
+    "start_year",
+    "total_cost",
+    "total_cost_pv",
+    "water_saved_m3",
+    "water_lost_vs_baseline_m3",
+    "final_infested_ha",
+];
+
 /// Header of `delay.csv`.
 pub fn delay_header() -> Vec<String> {
-    [
-        "strategy",
-        "delay_yr",
-        "start_year",
-        "total_cost",
-        "total_cost_pv",
-        "water_saved_m3",
-        "water_lost_vs_baseline_m3",
-        "final_infested_ha",
-    ]
-    .iter()
-    .map(|s| s.to_string())
-    .collect()
+    DELAY_COLUMNS.iter().map(|s| s.to_string()).collect()
 }
 
 /// Header of `nodes.csv`.

@@ -156,16 +156,4 @@ impl Figure for HBarChart {
 }
 
 /// Bar charts side by side in one figure.
-#[derive(Debug, Clone)]
-pub struct BarPanels(pub Vec<HBarChart>);
-
-impl Figure for BarPanels {
-    fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> Result<(), String> {
-        root.fill(&WHITE).map_err(err)?;
-        let areas = root.split_evenly((1, self.0.len().max(1)));
-        for (chart, area) in self.0.iter().zip(areas.iter()) {
-            chart.draw(area)?;
-        }
-        Ok(())
-    }
-}
+pub type BarPanels = super::series::Panels<HBarChart>;

@@ -69,22 +69,6 @@ fn range_of(values: impl Iterator<Item = f64>) -> Option<(f64, f64)> {
     lo.is_finite().then_some((lo, hi))
 }
 
-fn split_runs(points: &[(f64, Option<f64>)]) -> Vec<Vec<(f64, f64)>> {
-    let mut out = vec![];
-    let mut cur = vec![];
-    for &(x, y) in points {
-        match y {
-            Some(y) if y.is_finite() => cur.push((x, y)),
-            _ if !cur.is_empty() => out.push(std::mem::take(&mut cur)),
-            _ => {}
-        }
-    }
-    if !cur.is_empty() {
-        out.push(cur);
-    }
-    out
-}
-
 /// Draws the series on a chart (shared by both figures).
 fn draw_series<DB: DrawingBackend>(
     chart: &mut ChartContext<'_, DB, Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>>,
@@ -95,27 +79,27 @@ fn draw_series<DB: DrawingBackend>(
         let line = ShapeStyle { color: s.colour.to_rgba(), filled: false, stroke_width: 4 };
         match s.mark {
             Mark::Line => {
-                for run in split_runs(&s.points) {
+                for run in super::series::segments(&s.points) {
                     chart.draw_series(LineSeries::new(run, line)).map_err(err)?;
                 }
             }
             Mark::Dashed => {
-                for run in split_runs(&s.points) {
+                for run in super::series::segments(&s.points) {
                     chart.draw_series(DashedLineSeries::new(run, 14, 9, line)).map_err(err)?;
                 }
             }
             Mark::Points => {
                 if join_points {
                     let thin = ShapeStyle { color: s.colour.mix(0.6), filled: false, stroke_width: 1 };
-                    for run in split_runs(&s.points) {
+                    for run in super::series::segments(&s.points) {
                         chart.draw_series(LineSeries::new(run, thin)).map_err(err)?;
                     }
                 }
-                let pts: Vec<(f64, f64)> = split_runs(&s.points).into_iter().flatten().collect();
+                let pts: Vec<(f64, f64)> = super::series::segments(&s.points).into_iter().flatten().collect();
                 chart.draw_series(pts.into_iter().map(|p| Circle::new(p, 8, s.colour.filled()))).map_err(err)?;
             }
             Mark::BigPoint => {
-                let pts: Vec<(f64, f64)> = split_runs(&s.points).into_iter().flatten().collect();
+                let pts: Vec<(f64, f64)> = super::series::segments(&s.points).into_iter().flatten().collect();
                 chart.draw_series(pts.iter().map(|&p| Circle::new(p, 15, WHITE.filled()))).map_err(err)?;
                 chart
                     .draw_series(

@@ -35,7 +35,7 @@ pub const MAX_PARAMETERS: usize = 15;
 /// The figure: panels side by side, bars from −1 to 1, coloured by sign. For
 /// long parameter names prefer one [`influence_chart`] per time of evaluation.
 pub fn influence_panels(panels: &[InfluencePanel]) -> BarPanels {
-    BarPanels(panels.iter().map(influence_chart).collect())
+    super::series::Panels(panels.iter().map(influence_chart).collect())
 }
 
 /// One panel as a figure of its own: bars from −1 to 1, coloured by sign, the

@@ -149,11 +149,11 @@ impl LineChart {
     }
 }
 
-/// Charts side by side in one figure.
+/// Figures side by side in one figure (line charts, bar charts, …).
 #[derive(Debug, Clone)]
-pub struct Panels(pub Vec<LineChart>);
+pub struct Panels<F = LineChart>(pub Vec<F>);
 
-impl Figure for Panels {
+impl<F: Figure> Figure for Panels<F> {
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> Result<(), String> {
         root.fill(&WHITE).map_err(err)?;
         let areas = root.split_evenly((1, self.0.len().max(1)));
@@ -222,7 +222,8 @@ impl Figure for LineChart {
     }
 }
 
-fn segments(points: &[(f64, Option<f64>)]) -> Vec<Vec<(f64, f64)>> {
+/// Splits a series at missing or non-finite values into drawable runs.
+pub(crate) fn segments(points: &[(f64, Option<f64>)]) -> Vec<Vec<(f64, f64)>> {
     let mut out = vec![];
     let mut cur = vec![];
     for &(x, y) in points {

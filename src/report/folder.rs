@@ -1028,19 +1028,7 @@ fn read_nodes(t: &CsvTable, contaminants: &[String], problems: &mut Vec<Problem>
 }
 
 fn read_delay(t: &CsvTable, problems: &mut Vec<Problem>) -> Vec<DelayRow> {
-    let c = t.require(
-        &[
-            "strategy",
-            "delay_yr",
-            "start_year",
-            "total_cost",
-            "total_cost_pv",
-            "water_saved_m3",
-            "water_lost_vs_baseline_m3",
-            "final_infested_ha",
-        ],
-        problems,
-    );
+    let c = t.require(&crate::io::output::DELAY_COLUMNS, problems);
     if !problems.is_empty() {
         return vec![];
     }
