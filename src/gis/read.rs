@@ -5,7 +5,7 @@
 //! the message, the feature's number (1-based, as a GIS attribute table counts)
 //! and id. Every problem in the file is collected before returning.
 
-use super::validate::{check_rings, check_topology, parse_geometry, to_multipolygon};
+use super::validate::{check_rings, check_topology, json_kind, parse_geometry, to_multipolygon};
 use super::{area::geodesic_area_ha, json_lines::feature_lines, Boundaries, Boundary, RESULTS_MEMBER};
 use crate::error::Problem;
 use crate::io::table::{read_limited, suggestion};
@@ -203,16 +203,6 @@ pub(crate) fn parse_boundaries(path: &Path, bytes: &[u8], id_property: &str, cat
     }
 }
 
-fn json_kind(v: &Value) -> &'static str {
-    match v {
-        Value::Null => "null",
-        Value::Bool(_) => "true/false",
-        Value::Number(_) => "a number",
-        Value::String(_) => "text",
-        Value::Array(_) => "an array",
-        Value::Object(_) => "an object",
-    }
-}
 
 /// The `features` array of a FeatureCollection, or why the file is not one.
 fn top_level<'a>(path: &Path, root: &'a Value) -> Result<&'a Vec<Value>, Vec<Problem>> {

@@ -36,7 +36,7 @@ const MAX_TOPOLOGY_ISSUES: usize = 3;
 /// MultiPolygon. Other geometry types and malformed coordinates are refused.
 pub(crate) fn parse_geometry(g: &Value) -> Result<(Vec<RawPolygon>, bool), Vec<Issue>> {
     let Some(obj) = g.as_object() else {
-        return Err(vec![issue("geometry", format!("geometry is {}, not a GeoJSON geometry object", kind(g)))]);
+        return Err(vec![issue("geometry", format!("geometry is {}, not a GeoJSON geometry object", json_kind(g)))]);
     };
     let ty = obj.get("type").and_then(Value::as_str).unwrap_or("");
     let coords = obj.get("coordinates");
@@ -91,7 +91,8 @@ pub(crate) fn parse_geometry(g: &Value) -> Result<(Vec<RawPolygon>, bool), Vec<I
     }
 }
 
-fn kind(v: &Value) -> &'static str {
+/// What a JSON value is, for messages ("a number", "an array", …).
+pub(super) fn json_kind(v: &Value) -> &'static str {
     match v {
         Value::Null => "null",
         Value::Bool(_) => "true/false",
@@ -114,7 +115,7 @@ fn parse_rings(v: &Value, at: &str) -> Result<RawPolygon, Vec<Issue>> {
     for (r, ring) in rings.iter().enumerate() {
         let at_r = format!("{at}[{r}]");
         let Some(positions) = ring.as_array() else {
-            issues.push(issue(&at_r, format!("ring is {}, not an array of [longitude, latitude] positions", kind(ring))));
+            issues.push(issue(&at_r, format!("ring is {}, not an array of [longitude, latitude] positions", json_kind(ring))));
             continue;
         };
         let mut pts = Vec::with_capacity(positions.len());
