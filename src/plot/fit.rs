@@ -11,7 +11,18 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 /// Width of the legend panel, pixels.
-const LEGEND_W: u32 = 430;
+/// Legend panel width at the shared figure size.
+const LEGEND_W: u32 = 480 * super::SIZE.0 / 1600;
+
+/// Scales a length laid out for a 1600-px-wide figure to [`super::SIZE`].
+const fn k(px: u32) -> u32 {
+    px * super::SIZE.0 / 1600
+}
+
+/// [`k`] for signed pixel offsets.
+const fn ki(px: i32) -> i32 {
+    px * super::SIZE.0 as i32 / 1600
+}
 
 /// How a series is drawn and shown in the legend.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -76,7 +87,7 @@ fn draw_series<DB: DrawingBackend>(
     join_points: bool,
 ) -> Result<(), String> {
     for s in series {
-        let line = ShapeStyle { color: s.colour.to_rgba(), filled: false, stroke_width: 4 };
+        let line = ShapeStyle { color: s.colour.to_rgba(), filled: false, stroke_width: k(4) };
         match s.mark {
             Mark::Line => {
                 for run in super::series::segments(&s.points) {
@@ -96,14 +107,15 @@ fn draw_series<DB: DrawingBackend>(
                     }
                 }
                 let pts: Vec<(f64, f64)> = super::series::segments(&s.points).into_iter().flatten().collect();
-                chart.draw_series(pts.into_iter().map(|p| Circle::new(p, 8, s.colour.filled()))).map_err(err)?;
+                chart.draw_series(pts.into_iter().map(|p| Circle::new(p, k(8), s.colour.filled()))).map_err(err)?;
             }
             Mark::BigPoint => {
                 let pts: Vec<(f64, f64)> = super::series::segments(&s.points).into_iter().flatten().collect();
-                chart.draw_series(pts.iter().map(|&p| Circle::new(p, 15, WHITE.filled()))).map_err(err)?;
+                chart.draw_series(pts.iter().map(|&p| Circle::new(p, k(15), WHITE.filled()))).map_err(err)?;
                 chart
                     .draw_series(
-                        pts.iter().map(|&p| Circle::new(p, 15, ShapeStyle { color: s.colour.to_rgba(), filled: false, stroke_width: 5 })),
+                        pts.iter()
+                            .map(|&p| Circle::new(p, k(15), ShapeStyle { color: s.colour.to_rgba(), filled: false, stroke_width: k(5) })),
                     )
                     .map_err(err)?;
             }
@@ -114,27 +126,27 @@ fn draw_series<DB: DrawingBackend>(
 
 /// Draws the legend and notes in the right-hand panel.
 fn draw_legend<DB: DrawingBackend>(panel: &DrawingArea<DB, Shift>, series: &[FitSeries], notes: &[String]) -> Result<(), String> {
-    let label_style = TextStyle::from((FONT, 26).into_font()).pos(Pos::new(HPos::Left, VPos::Center));
-    let note_style = TextStyle::from((FONT, 22).into_font()).color(&RGBColor(70, 70, 70));
-    let x0 = 16;
-    let mut y = 70;
+    let label_style = TextStyle::from((FONT, super::LEGEND_PX).into_font()).pos(Pos::new(HPos::Left, VPos::Center));
+    let note_style = TextStyle::from((FONT, super::NOTE_PX).into_font()).color(&RGBColor(70, 70, 70));
+    let x0 = ki(16);
+    let mut y = ki(70);
     for s in series {
-        let line = ShapeStyle { color: s.colour.to_rgba(), filled: false, stroke_width: 4 };
+        let line = ShapeStyle { color: s.colour.to_rgba(), filled: false, stroke_width: k(4) };
         match s.mark {
-            Mark::Line => panel.draw(&PathElement::new(vec![(x0, y), (x0 + 56, y)], line)).map_err(err)?,
-            Mark::Dashed => panel.draw(&DashedPathElement::new(vec![(x0, y), (x0 + 56, y)], 12, 7, line)).map_err(err)?,
-            Mark::Points => panel.draw(&Circle::new((x0 + 28, y), 8, s.colour.filled())).map_err(err)?,
+            Mark::Line => panel.draw(&PathElement::new(vec![(x0, y), (x0 + ki(56), y)], line)).map_err(err)?,
+            Mark::Dashed => panel.draw(&DashedPathElement::new(vec![(x0, y), (x0 + ki(56), y)], 12, 7, line)).map_err(err)?,
+            Mark::Points => panel.draw(&Circle::new((x0 + ki(28), y), k(8), s.colour.filled())).map_err(err)?,
             Mark::BigPoint => panel
-                .draw(&Circle::new((x0 + 28, y), 14, ShapeStyle { color: s.colour.to_rgba(), filled: false, stroke_width: 5 }))
+                .draw(&Circle::new((x0 + ki(28), y), k(14), ShapeStyle { color: s.colour.to_rgba(), filled: false, stroke_width: k(5) }))
                 .map_err(err)?,
         }
-        panel.draw(&Text::new(s.label.clone(), (x0 + 72, y), label_style.clone())).map_err(err)?;
-        y += 50;
+        panel.draw(&Text::new(s.label.clone(), (x0 + ki(72), y), label_style.clone())).map_err(err)?;
+        y += ki(50);
     }
-    y += 20;
+    y += ki(20);
     for n in notes {
         panel.draw(&Text::new(n.clone(), (x0, y), note_style.clone())).map_err(err)?;
-        y += 32;
+        y += ki(48);
     }
     Ok(())
 }
@@ -142,7 +154,7 @@ fn draw_legend<DB: DrawingBackend>(panel: &DrawingArea<DB, Shift>, series: &[Fit
 impl Figure for YieldFitChart {
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> Result<(), String> {
         root.fill(&WHITE).map_err(err)?;
-        let body = root.titled(&self.title, (FONT, 40)).map_err(err)?;
+        let body = root.titled(&self.title, (FONT, super::TITLE_PX)).map_err(err)?;
         let (w, _) = body.dim_in_pixel();
         let (plot, panel) = body.split_horizontally(w.saturating_sub(LEGEND_W));
         let (x0, x1) = range_of(self.series.iter().flat_map(|s| s.points.iter().map(|p| p.0))).unwrap_or((0.0, 1.0));
@@ -150,9 +162,9 @@ impl Figure for YieldFitChart {
         let (_, hi) = range_of(self.series.iter().flat_map(|s| s.points.iter().filter_map(|p| p.1))).unwrap_or((0.0, 1.0));
         let y1 = if hi > 0.0 { hi * 1.08 } else { 1.0 };
         let mut chart = ChartBuilder::on(&plot)
-            .margin(20)
-            .x_label_area_size(80)
-            .y_label_area_size(120)
+            .margin(k(20))
+            .x_label_area_size(k(80))
+            .y_label_area_size(k(120))
             .build_cartesian_2d(x0..x1, 0.0..y1)
             .map_err(err)?;
         chart
@@ -161,8 +173,8 @@ impl Figure for YieldFitChart {
             .y_desc("Annual water yield (mm/yr)")
             .x_label_formatter(&|x| format!("{x:.0}"))
             .y_label_formatter(&|y| format!("{y:.0}"))
-            .label_style((FONT, 26))
-            .axis_desc_style((FONT, 30))
+            .label_style((FONT, super::TICK_PX))
+            .axis_desc_style((FONT, super::AXIS_TITLE_PX))
             .light_line_style(RGBColor(235, 235, 235))
             .draw()
             .map_err(err)?;
@@ -174,7 +186,7 @@ impl Figure for YieldFitChart {
 impl Figure for BudykoChart {
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> Result<(), String> {
         root.fill(&WHITE).map_err(err)?;
-        let body = root.titled(&self.title, (FONT, 40)).map_err(err)?;
+        let body = root.titled(&self.title, (FONT, super::TITLE_PX)).map_err(err)?;
         let (w, _) = body.dim_in_pixel();
         let (plot, panel) = body.split_horizontally(w.saturating_sub(LEGEND_W));
         let (_, xmax) = range_of(self.series.iter().flat_map(|s| s.points.iter().map(|p| p.0))).unwrap_or((0.0, 1.0));
@@ -183,9 +195,9 @@ impl Figure for BudykoChart {
         let y0 = ylo.min(0.0) - if ylo < 0.0 { 0.05 } else { 0.0 };
         let y1 = yhi.max(1.0) + 0.08;
         let mut chart = ChartBuilder::on(&plot)
-            .margin(20)
-            .x_label_area_size(80)
-            .y_label_area_size(120)
+            .margin(k(20))
+            .x_label_area_size(k(80))
+            .y_label_area_size(k(120))
             .build_cartesian_2d(0.0..x1, y0..y1)
             .map_err(err)?;
         chart
@@ -194,13 +206,13 @@ impl Figure for BudykoChart {
             .y_desc("Evaporative ratio ET/P (–)")
             .x_label_formatter(&|x| format!("{x:.1}"))
             .y_label_formatter(&|y| format!("{y:.1}"))
-            .label_style((FONT, 26))
-            .axis_desc_style((FONT, 30))
+            .label_style((FONT, super::TICK_PX))
+            .axis_desc_style((FONT, super::AXIS_TITLE_PX))
             .light_line_style(RGBColor(235, 235, 235))
             .draw()
             .map_err(err)?;
         // Physical limits: energy (ET = E0) and water (ET = P).
-        let limit = ShapeStyle { color: palette::BASELINE.mix(0.7), filled: false, stroke_width: 2 };
+        let limit = ShapeStyle { color: palette::BASELINE.mix(0.7), filled: false, stroke_width: k(2) };
         let corner = x1.min(1.0);
         chart.draw_series(DashedLineSeries::new([(0.0, 0.0), (corner, corner)], 8, 8, limit)).map_err(err)?;
         chart.draw_series(DashedLineSeries::new([(corner, 1.0), (x1, 1.0)], 8, 8, limit)).map_err(err)?;
