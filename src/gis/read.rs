@@ -203,7 +203,6 @@ pub(crate) fn parse_boundaries(path: &Path, bytes: &[u8], id_property: &str, cat
     }
 }
 
-
 /// The `features` array of a FeatureCollection, or why the file is not one.
 fn top_level<'a>(path: &Path, root: &'a Value) -> Result<&'a Vec<Value>, Vec<Problem>> {
     let refuse = |msg: String| vec![Problem::in_file(path, msg)];
