@@ -118,6 +118,12 @@ pub fn read_catchments(path: &Path, contaminants: &[Contaminant]) -> Result<(Vec
             p.push(Problem::in_file(path, "id is empty; every catchment needs a unique id").row(line).column("id"));
         } else if id.contains(char::is_whitespace) || id.contains(',') {
             p.push(Problem::in_file(path, format!("id '{id}' must not contain spaces or commas")).row(line).column("id"));
+        } else if id.eq_ignore_ascii_case(crate::basin_totals::BASIN_ID) {
+            p.push(
+                Problem::in_file(path, format!("id '{id}' is reserved for the whole-basin rows of the outputs; choose another id"))
+                    .row(line)
+                    .column("id"),
+            );
         } else if let Some(first) = seen.get(&id) {
             p.push(Problem::in_file(path, format!("duplicate catchment id '{id}' (first used on row {first})")).row(line).column("id"));
         } else {
