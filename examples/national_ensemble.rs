@@ -12,9 +12,9 @@
 
 use std::fmt::Write as _;
 use std::time::Instant;
-use yieldshift::io::scenario::load_scenario;
-use yieldshift::pipeline::{run, FigureChoice, RunOptions};
+use yieldshift::input::scenario::load_scenario;
 use yieldshift::plot::Formats;
+use yieldshift::run::deterministic::{run, FigureChoice, RunOptions};
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {
     let args: Vec<usize> = std::env::args().skip(1).filter_map(|a| a.parse().ok()).collect();

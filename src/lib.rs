@@ -5,8 +5,20 @@
 //! al. 2001; Fu 1981), water yield, dilution of existing contaminant loads, year by
 //! year as the invader spreads, thickens and closes canopy.
 //!
-//! The crate is a library (the model core in [`model`], file formats in [`io`],
-//! figures in [`plot`]) and the `yieldshift` command-line program.
+//! The crate is a library and the `yieldshift` command-line program. The library's
+//! layers only point down (a test, `tests/layers.rs`, refuses an upward import):
+//!
+//! | layer | modules | may import |
+//! |---|---|---|
+//! | 0 | [`model`]: the pure model core | `std`, `rand`, `rand_chacha`, `statrs` |
+//! | 1 | [`schema`] (run-folder vocabulary), [`error`] | model |
+//! | 2 | [`input`]: readers and validation | below |
+//! | 3 | [`output`]: CSV, GeoJSON, atomic folders | below |
+//! | 4 | [`plot`]: figures and maps | below |
+//! | 5 | [`report`]: the report from a run folder | below |
+//! | 6 | [`run`]: the orchestration of a run | below |
+//!
+//! The command line (`src/cli/`) belongs to the binary only.
 //!
 //! ```
 //! use yieldshift::model::budyko::{WaterBalance, Zhang2001};
@@ -19,17 +31,13 @@
 //! assessment; defer to local regulation and qualified practitioners.
 #![deny(missing_docs)]
 
-pub mod basin_totals;
-pub mod cli;
-pub mod ensemble;
 pub mod error;
-pub mod fit_run;
-pub mod gis;
-pub mod io;
+pub mod input;
 pub mod model;
-pub mod pipeline;
+pub mod output;
 pub mod plot;
 pub mod report;
-pub mod shard;
+pub mod run;
+pub mod schema;
 
 pub use error::{Error, Problem, Result};

@@ -1,5 +1,8 @@
-//! The `yieldshift` binary: a thin entry point over [`yieldshift::cli`].
+//! The `yieldshift` binary: the command line over the `yieldshift` library.
+//! Exit codes are decided once, in [`cli::main`].
+
+mod cli;
 
 fn main() -> std::process::ExitCode {
-    yieldshift::cli::main()
+    cli::main()
 }

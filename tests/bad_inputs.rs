@@ -319,7 +319,7 @@ fn documented_ranges_are_enforced_at_their_bounds() {
         for (v, ok) in values {
             let text = scenario_with(d, v);
             std::fs::write(&path, &text).unwrap();
-            match (yieldshift::io::scenario::load_scenario(&path), ok) {
+            match (yieldshift::input::scenario::load_scenario(&path), ok) {
                 (Ok(_), true) => {}
                 (Err(e), true) => wrong.push(format!("{key_path} = {v} (documented as allowed) was refused: {e}\n{text}")),
                 (Ok(_), false) => wrong.push(format!("{key_path} = {v} (outside the documented range) was accepted\n{text}")),

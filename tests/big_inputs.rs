@@ -3,12 +3,12 @@
 
 use std::io::{BufRead, BufWriter, Write};
 use std::path::Path;
-use yieldshift::io::scenario::load_scenario;
-use yieldshift::io::table::{read_table, MAX_TABLE_BYTES};
-use yieldshift::io::toml_reader::{read_toml_file, MAX_TOML_BYTES};
+use yieldshift::input::scenario::load_scenario;
+use yieldshift::input::table::{read_table, MAX_TABLE_BYTES};
+use yieldshift::input::toml_reader::{read_toml_file, MAX_TOML_BYTES};
 use yieldshift::model::project_catchment;
-use yieldshift::pipeline::{self, FigureChoice, RunOptions};
 use yieldshift::plot::Formats;
+use yieldshift::run::deterministic::{self, FigureChoice, RunOptions};
 
 const ROWS: usize = 100_000;
 /// Catchments drain in groups of this many into the group's first catchment.
@@ -52,7 +52,7 @@ fn a_hundred_thousand_catchments_validate_and_run() {
     let out = tmp.path().join("results");
     let opts =
         RunOptions { figures: FigureChoice::None, formats: Formats { png: false, svg: false }, threads: Some(1), ..RunOptions::new(&out) };
-    let outcome = pipeline::run(&s, &opts).unwrap_or_else(|e| panic!("{e}"));
+    let outcome = deterministic::run(&s, &opts).unwrap_or_else(|e| panic!("{e}"));
     assert_eq!(outcome.catchments, ROWS);
     assert_eq!(outcome.years, 2);
 
@@ -142,7 +142,7 @@ fn junk_below_the_size_limit_is_refused_as_text() {
 fn a_scenario_with_a_hundred_thousand_unknown_keys_is_reported_without_stalling() {
     // Each problem is located by a lookup, not a scan of the file, and only the
     // first MAX_PROBLEMS are listed; before that this took minutes.
-    use yieldshift::io::toml_reader::MAX_PROBLEMS;
+    use yieldshift::input::toml_reader::MAX_PROBLEMS;
     let tmp = tempfile::tempdir().unwrap();
     let mut text = String::from("start_year = 2030\nhorizon_years = 2\ncatchments = \"c.csv\"\n");
     for i in 0..100_000 {

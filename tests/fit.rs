@@ -5,8 +5,8 @@
 use approx::{assert_abs_diff_eq, assert_relative_eq};
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
-use yieldshift::io::observed::{read_observed, LeftOutReason};
-use yieldshift::io::scenario::load_scenario;
+use yieldshift::input::observed::{read_observed, LeftOutReason};
+use yieldshift::input::scenario::load_scenario;
 use yieldshift::model::budyko::CoverCurves;
 use yieldshift::model::fit::{Cover, FitError, GaugeRecord, GaugeYear, SplitMix64, FU_OMEGA_RANGE, ZHANG_W_RANGE};
 use yieldshift::model::skill::{kge, nse, pbias_pct, rmse, Skill};
@@ -335,7 +335,7 @@ fn write_observed(dir: &Path, scenario: &Path) -> PathBuf {
         let f = yieldshift::model::projection::starting_canopy_fraction(c, &sc.params);
         let series = sc.climate.as_ref().unwrap();
         for year in 1990..=2020 {
-            let cl = series.year_for(&c.id, year, c.mean_climate(), yieldshift::io::climate::BeyondRecord::Mean);
+            let cl = series.year_for(&c.id, year, c.mean_climate(), yieldshift::input::climate::BeyondRecord::Mean);
             let et = f * zhang_et_mm(cl.rain_mm, 1.1 * cl.pet_mm, 2.0) + (1.0 - f) * zhang_et_mm(cl.rain_mm, cl.pet_mm, w);
             let q = cl.rain_mm - et;
             match (c.id.as_str(), year) {
@@ -558,7 +558,7 @@ fn impossible_record_exits_2_and_writes_nothing() {
     let mut t = String::from("catchment,year,flow_mm\n");
     for year in 1990..2000 {
         let c = &sc.catchments[0];
-        let rain = cl.year_for(&c.id, year, c.mean_climate(), yieldshift::io::climate::BeyondRecord::Mean).rain_mm;
+        let rain = cl.year_for(&c.id, year, c.mean_climate(), yieldshift::input::climate::BeyondRecord::Mean).rain_mm;
         t.push_str(&format!("gauged,{year},{:.1}\n", rain * 1.3));
     }
     let o = tmp.path().join("obs.csv");

@@ -6,9 +6,9 @@
 use proptest::prelude::*;
 use proptest::sample::Index;
 use std::path::{Path, PathBuf};
-use yieldshift::io::scenario::load_scenario;
-use yieldshift::io::table::{nearest, parse_number, parse_table, suggestion};
-use yieldshift::io::toml_reader::read_toml_file;
+use yieldshift::input::scenario::load_scenario;
+use yieldshift::input::table::{nearest, parse_number, parse_table, suggestion};
+use yieldshift::input::toml_reader::read_toml_file;
 use yieldshift::model::project_catchment;
 
 const CATCHMENTS: &str =

@@ -7,7 +7,9 @@ use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 use std::process::Command;
 use std::sync::OnceLock;
-use yieldshift::gis::{self, area_mismatches, geodesic_area_ha, read_boundaries, write_results_geojson, Boundaries};
+use yieldshift::input::gis::{self, area_mismatches, geodesic_area_ha, read_boundaries, Boundaries};
+use yieldshift::output::geojson::write_results_geojson;
+use yieldshift::plot::maps::draw_maps;
 use yieldshift::{Error, Problem};
 
 /// Relative tolerance against geographiclib: both evaluate Karney's (2013) series
@@ -226,10 +228,9 @@ fn refused(features: &[String]) -> Vec<String> {
     problems.iter().map(|p| p.to_string()).collect()
 }
 
-/// The problems make the command line exit with code 2 (invalid input).
+/// The problems are invalid input (which the command line turns into exit code 2).
 fn check_exit_code_2(problems: &[Problem]) {
-    let e = anyhow::Error::from(Error::Invalid(problems.to_vec()));
-    assert_eq!(yieldshift::cli::exit_code(&e), 2);
+    assert!(Error::Invalid(problems.to_vec()).is_invalid_input());
 }
 
 #[test]
@@ -530,7 +531,7 @@ fn png_size_and_colours(path: &Path) -> ((u32, u32), usize) {
 fn maps_are_drawn_for_no_control_and_every_strategy() {
     let dir = demo_run();
     let b = demo_boundaries();
-    let n = gis::draw_maps(dir, &b, yieldshift::plot::Formats::default()).unwrap();
+    let n = draw_maps(dir, &b, yieldshift::plot::Formats::default()).unwrap();
     // year 20 and horizon (no control) + one per demo strategy
     assert_eq!(n, 5);
     for stem in [
@@ -690,7 +691,7 @@ fn a_run_without_strategies_or_year_20_writes_nulls_and_one_map() {
         assert!(!line.contains("cost_per_m3_"), "no strategy properties without strategies");
         assert!(!line.contains("_p50"), "no percentiles without an ensemble");
     }
-    let n = gis::draw_maps(dir, &b, yieldshift::plot::Formats { png: true, svg: false }).unwrap();
+    let n = draw_maps(dir, &b, yieldshift::plot::Formats { png: true, svg: false }).unwrap();
     assert_eq!(n, 1, "only the horizon map: the horizon does not reach year 20 and there are no strategies");
     assert!(dir.join("figures/map_yield_change_horizon.png").exists());
     assert!(!dir.join("figures/map_yield_change_horizon.svg").exists());

@@ -8,7 +8,7 @@
 
 use approx::assert_abs_diff_eq;
 use std::path::{Path, PathBuf};
-use yieldshift::io::weather::{
+use yieldshift::input::weather::{
     compute_pet_file, compute_pet_file_with, write_annual_csv, write_period_csv, GapRule, Period, PetMethodChoice, PetOutput, SiteMeta,
     GAP_FILLED, STATUS_COMPLETE, STATUS_GAP_FILLED, STATUS_INCOMPLETE,
 };

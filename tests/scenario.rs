@@ -1,7 +1,7 @@
 //! Scenario loading through the library API: calibration entries and donors.
 
 use std::path::Path;
-use yieldshift::io::scenario::load_scenario;
+use yieldshift::input::scenario::load_scenario;
 use yieldshift::model::CoverCurves;
 
 const TABLE: &str = "id,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha\n\

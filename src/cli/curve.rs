@@ -1,8 +1,8 @@
 //! `yieldshift curve`: one-point evaluation of the water-balance curves.
 
-use crate::model::budyko::{mixed_et_mm, CoverCurves};
-use crate::Error;
-use crate::Problem;
+use yieldshift::model::budyko::{mixed_et_mm, CoverCurves};
+use yieldshift::Error;
+use yieldshift::Problem;
 
 /// Arguments of `curve`.
 #[derive(Debug, clap::Args)]
@@ -101,7 +101,7 @@ pub fn run(a: &CurveArgs) -> anyhow::Result<()> {
             "yield_mm": q,
             "evaporative_ratio": ratio,
         });
-        println!("{v}");
+        say!("{v}")?;
     } else {
         let rows: [(&str, String); 10] = [
             ("method", curves.method_name().to_string()),
@@ -116,7 +116,7 @@ pub fn run(a: &CurveArgs) -> anyhow::Result<()> {
             ("ET/P", format!("{:.4}", ratio)),
         ];
         for (k, v) in rows {
-            println!("{k:<18} {v:>10}");
+            say!("{k:<18} {v:>10}")?;
         }
     }
     Ok(())

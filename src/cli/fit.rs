@@ -1,12 +1,12 @@
 //! `yieldshift fit`: fit the curve parameter of gauged catchments to observed flows.
 
-use crate::fit_run::{self, parse_donor, FitOptions};
-use crate::io::observed::read_observed;
-use crate::io::scenario::load_scenario;
-use crate::model::fit::{Cover, FitSettings, MAX_MOVING_AVERAGE_YR};
-use crate::plot::Formats;
-use crate::{Error, Problem};
 use std::path::PathBuf;
+use yieldshift::input::observed::read_observed;
+use yieldshift::input::scenario::load_scenario;
+use yieldshift::model::fit::{Cover, FitSettings, MAX_MOVING_AVERAGE_YR};
+use yieldshift::plot::Formats;
+use yieldshift::run::fit::{self, parse_donor, FitOptions};
+use yieldshift::{Error, Problem};
 
 /// Most bootstrap resamples accepted.
 pub const MAX_BOOTSTRAP: usize = 100_000;
@@ -57,7 +57,7 @@ pub enum ParameterArg {
 }
 
 /// Checks the numeric options and parses `--donor`; every problem together.
-fn options(a: &FitArgs) -> crate::Result<FitOptions> {
+fn options(a: &FitArgs) -> yieldshift::Result<FitOptions> {
     let mut p = Vec::new();
     if a.moving_average_yr == 0 || a.moving_average_yr > MAX_MOVING_AVERAGE_YR {
         p.push(
@@ -104,41 +104,41 @@ pub fn run(a: &FitArgs) -> anyhow::Result<()> {
     let observed = read_observed(&a.observed, &scenario)?;
     if !a.quiet {
         for l in &observed.left_out {
-            println!("note: {}, row {}: {} {} left out: {}", a.observed.display(), l.row, l.catchment, l.year, l.reason);
+            say!("note: {}, row {}: {} {} left out: {}", a.observed.display(), l.row, l.catchment, l.year, l.reason)?;
         }
     }
-    let outcome = fit_run::run(&scenario, &observed, &opts)?;
+    let outcome = fit::run(&scenario, &observed, &opts)?;
     if !a.quiet {
-        println!(
+        say!(
             "{}: fitted {} of {} catchments ({}, method {})",
             scenario.title,
             outcome.fitted.len(),
             scenario.catchments.len(),
             outcome.fitted.first().map(|f| f.fit.key).unwrap_or(""),
             scenario.params.curves.method_name()
-        );
+        )?;
         for f in &outcome.fitted {
             let c = &scenario.catchments[f.index];
             let iv = f.fit.interval.map(|i| format!(", {:.0}% interval {:.3}–{:.3}", i.level * 100.0, i.low, i.high)).unwrap_or_default();
-            println!(
+            say!(
                 "  {:<16} {} {:.3} → {:.4} (series fit {:.4}{iv}); NSE {}, KGE {}, PBIAS {} %, RMSE {} mm; {} years",
                 c.id,
                 f.fit.key,
                 f.fit.scenario_value,
                 f.fit.mean.value,
                 f.fit.series.value,
-                crate::io::output::opt_num(f.skill.nse, 3),
-                crate::io::output::opt_num(f.skill.kge.map(|k| k.kge), 3),
-                crate::io::output::opt_num(f.skill.pbias_pct, 2),
-                crate::io::output::opt_num(f.skill.rmse_mm, 1),
+                yieldshift::schema::numbers::opt_num(f.skill.nse, 3),
+                yieldshift::schema::numbers::opt_num(f.skill.kge.map(|k| k.kge), 3),
+                yieldshift::schema::numbers::opt_num(f.skill.pbias_pct, 2),
+                yieldshift::schema::numbers::opt_num(f.skill.rmse_mm, 1),
                 f.record.years().len()
-            );
+            )?;
         }
         if !outcome.ungauged.is_empty() {
-            println!("  ungauged (keep scenario values unless given a donor): {}", outcome.ungauged.join(", "));
+            say!("  ungauged (keep scenario values unless given a donor): {}", outcome.ungauged.join(", "))?;
         }
-        println!("wrote {} (fit.csv, fit_years.csv, left_out.csv, calibration.toml, {} figures)", outcome.out.display(), outcome.figures);
-        println!("PBIAS > 0 means the simulation overestimates. Screening estimates only; see run_info.json for cautions.");
+        say!("wrote {} (fit.csv, fit_years.csv, left_out.csv, calibration.toml, {} figures)", outcome.out.display(), outcome.figures)?;
+        say!("PBIAS > 0 means the simulation overestimates. Screening estimates only; see run_info.json for cautions.")?;
     }
     Ok(())
 }

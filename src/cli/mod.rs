@@ -1,5 +1,16 @@
 //! The `yieldshift` command line (clap derive). Exit codes are decided in one
 //! place, [`main`]: 0 success, 2 invalid input or usage, 1 any other failure.
+//! A closed output pipe (`yieldshift curve ... | head -0`) ends the program
+//! quietly with 0: everything is written through [`say!`], which returns the
+//! write error instead of panicking.
+
+/// `println!` that returns the write error (so a closed pipe is not a panic).
+macro_rules! say {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        writeln!(std::io::stdout().lock(), $($arg)*)
+    }};
+}
 
 mod curve;
 mod fit;
@@ -40,7 +51,7 @@ pub enum Command {
 }
 
 /// Runs the command line and returns the process exit code.
-pub fn main() -> ExitCode {
+pub(crate) fn main() -> ExitCode {
     let cli = match Cli::try_parse() {
         Ok(c) => c,
         Err(e) => {
@@ -60,6 +71,7 @@ pub fn main() -> ExitCode {
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
+        Err(e) if closed_pipe(&e) => ExitCode::SUCCESS,
         Err(e) => {
             eprintln!("error: {e:#}");
             ExitCode::from(exit_code(&e))
@@ -68,10 +80,15 @@ pub fn main() -> ExitCode {
 }
 
 /// 2 for invalid input, 1 otherwise.
-pub fn exit_code(e: &anyhow::Error) -> u8 {
-    match e.downcast_ref::<crate::Error>() {
-        Some(err) if err.is_invalid_input() => 2,
-        _ if e.chain().any(|c| c.downcast_ref::<crate::Error>().is_some_and(crate::Error::is_invalid_input)) => 2,
-        _ => 1,
+fn exit_code(e: &anyhow::Error) -> u8 {
+    if e.chain().any(|c| c.downcast_ref::<yieldshift::Error>().is_some_and(yieldshift::Error::is_invalid_input)) {
+        2
+    } else {
+        1
     }
+}
+
+/// True when the failure is standard output closed by its reader (`| head`).
+fn closed_pipe(e: &anyhow::Error) -> bool {
+    e.chain().any(|c| c.downcast_ref::<std::io::Error>().is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe))
 }

@@ -6,12 +6,12 @@
 //! scenario's climate table accepts. Prints a short summary: method, rows, years,
 //! gaps and incomplete years.
 
-use crate::io::weather::{
+use std::path::{Path, PathBuf};
+use yieldshift::input::weather::{
     compute_pet_file_with, read_site_file, write_annual_csv, write_period_csv, GapRule, PetMethodChoice, PetOutput, SiteFile, SiteMeta,
     Timestep, STATUS_COMPLETE, STATUS_GAP_FILLED, STATUS_INCOMPLETE,
 };
-use crate::{Error, Problem};
-use std::path::{Path, PathBuf};
+use yieldshift::{Error, Problem};
 
 /// Gaps listed individually in the summary before the rest are counted.
 const GAPS_SHOWN: usize = 10;
@@ -84,7 +84,10 @@ pub fn run(args: &PetArgs) -> anyhow::Result<()> {
     let output = compute_pet_file_with(&args.weather, &site, choice, rule)?;
     write_period_csv(&args.out, &output.periods)?;
     write_annual_csv(&annual_out, &output.annual)?;
-    print!("{}", summary(&output, choice, &args.out, &annual_out));
+    {
+        use std::io::Write as _;
+        write!(std::io::stdout().lock(), "{}", summary(&output, choice, &args.out, &annual_out))?;
+    }
     Ok(())
 }
 

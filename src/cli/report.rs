@@ -13,14 +13,14 @@ pub struct ReportArgs {
 
 /// Runs `yieldshift report`.
 pub fn run(a: &ReportArgs) -> anyhow::Result<()> {
-    let out = crate::report::write_report(&a.dir).with_context(|| format!("writing the report of {}", a.dir.display()))?;
-    println!(
+    let out = yieldshift::report::write_report(&a.dir).with_context(|| format!("writing the report of {}", a.dir.display()))?;
+    say!(
         "wrote {} and {} ({} figures embedded, {} of them drawn from the run's tables)",
         out.html.display(),
         out.markdown.display(),
         out.embedded.len(),
         out.drawn
-    );
-    println!("Screening estimates only; read the report's cautions before use.");
+    )?;
+    say!("Screening estimates only; read the report's cautions before use.")?;
     Ok(())
 }

@@ -1,10 +1,10 @@
 //! `yieldshift run` and `yieldshift check`.
 
-use crate::io::scenario::load_scenario;
-use crate::pipeline::{self, FigureChoice, RunOptions};
-use crate::plot::Formats;
 use anyhow::Context;
 use std::path::PathBuf;
+use yieldshift::input::scenario::load_scenario;
+use yieldshift::plot::Formats;
+use yieldshift::run::deterministic::{self, FigureChoice, RunOptions};
 
 /// Arguments of `run`.
 #[derive(Debug, clap::Args)]
@@ -27,7 +27,7 @@ pub struct RunArgs {
     #[arg(long, value_name = "N", value_parser = clap::value_parser!(u16).range(1..=1024))]
     pub threads: Option<u16>,
     /// Run only the K-th of N deterministic slices of the catchments (e.g. 3/8); combine with `merge`.
-    #[arg(long, value_name = "K/N", value_parser = crate::shard::parse_shard)]
+    #[arg(long, value_name = "K/N", value_parser = yieldshift::run::shard::parse_shard)]
     pub shard: Option<(usize, usize)>,
     /// Print nothing but errors (no progress bar).
     #[arg(long, short)]
@@ -72,8 +72,8 @@ pub struct MergeArgs {
 
 /// Runs `yieldshift merge`.
 pub fn merge(a: &MergeArgs) -> anyhow::Result<()> {
-    let m = crate::shard::merge(&a.shards, &a.out, a.force)?;
-    println!("merged {} shards ({} catchments) into {}", m.shards, m.catchments, m.out.display());
+    let m = yieldshift::run::shard::merge(&a.shards, &a.out, a.force)?;
+    say!("merged {} shards ({} catchments) into {}", m.shards, m.catchments, m.out.display())?;
     Ok(())
 }
 
@@ -107,9 +107,9 @@ pub fn run(a: &RunArgs) -> anyhow::Result<()> {
         progress: !a.quiet,
         shard: a.shard,
     };
-    let outcome = pipeline::run(&scenario, &opts).with_context(|| format!("running {}", a.scenario.display()))?;
+    let outcome = deterministic::run(&scenario, &opts).with_context(|| format!("running {}", a.scenario.display()))?;
     if !a.quiet {
-        println!(
+        say!(
             "{}: {} catchments × {} years ({}–{}), method {}",
             scenario.title,
             outcome.catchments,
@@ -117,12 +117,12 @@ pub fn run(a: &RunArgs) -> anyhow::Result<()> {
             scenario.start_year,
             scenario.start_year + scenario.horizon_years as i32,
             scenario.params.curves.method_name()
-        );
+        )?;
         if outcome.members > 0 {
-            println!("ensemble: {} members, {} uncertain parameters", outcome.members, scenario.uncertain.len());
+            say!("ensemble: {} members, {} uncertain parameters", outcome.members, scenario.uncertain.len())?;
         }
-        println!("wrote {} ({} strategies, {} figures)", outcome.out.display(), outcome.strategies.len(), outcome.figures);
-        println!("Screening estimates only; see run_info.json for cautions.");
+        say!("wrote {} ({} strategies, {} figures)", outcome.out.display(), outcome.strategies.len(), outcome.figures)?;
+        say!("Screening estimates only; see run_info.json for cautions.")?;
     }
     Ok(())
 }
@@ -133,7 +133,7 @@ pub fn check(a: &CheckArgs) -> anyhow::Result<()> {
     for w in &s.warnings {
         eprintln!("warning: {w}");
     }
-    println!(
+    say!(
         "{}: valid — {} catchments, {} contaminants, {}–{}, method {}{}",
         a.scenario.display(),
         s.catchments.len(),
@@ -142,6 +142,6 @@ pub fn check(a: &CheckArgs) -> anyhow::Result<()> {
         s.start_year + s.horizon_years as i32,
         s.params.curves.method_name(),
         if s.climate.is_some() { ", with climate table" } else { "" }
-    );
+    )?;
     Ok(())
 }

@@ -4,8 +4,9 @@
 //! value as a label at its end.
 
 use super::axes::{self, Axes};
+use super::legend::Corner;
 use super::legend::{self, draw_marker, Entry, Occupied, PxRect, Shape};
-use super::series::{split_for_legend, Corner};
+use super::series::split_for_legend;
 use super::{err, number_label, palette, Figure, FONT, LINE_PX, NOTE_PX, TICK_PX};
 use plotters::coord::Shift;
 use plotters::prelude::*;

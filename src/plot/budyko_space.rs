@@ -11,8 +11,9 @@
 //! Fu (1981) with the run's parameters ([`crate::model::budyko`]).
 
 use super::axes::{self, Axes};
+use super::legend::Corner;
 use super::legend::{self, draw_marker, Entry, Occupied, PxRect, Shape, Swatch};
-use super::series::{split_for_legend, Corner};
+use super::series::split_for_legend;
 use super::{err, palette, Figure, LINE_PX, REF_LINE_PX};
 use crate::model::budyko::{CoverCurves, Fu1981, WaterBalance, Zhang2001};
 use plotters::coord::Shift;

@@ -6,12 +6,27 @@
 //! else in the first free corner or free place along a side edge, else in a strip
 //! below the plot ([`Placement::Strip`]) — so a legend is never drawn over data.
 
-use super::series::Corner;
 use super::{err, FONT, LEGEND_PX, LINE_PX};
 use plotters::coord::Shift;
 use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
+
+/// A corner of the plot area: where a figure would like its legend.
+///
+/// The legend goes there only if no data passes under it; otherwise it goes in
+/// another free corner, or below the plot ([`place`]).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Corner {
+    /// Upper left.
+    UpperLeft,
+    /// Upper right.
+    UpperRight,
+    /// Lower left.
+    LowerLeft,
+    /// Lower right.
+    LowerRight,
+}
 
 /// Shape of a point marker.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

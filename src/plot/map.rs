@@ -2,7 +2,7 @@
 //! between areas, a legend of the class breaks, a scale bar and a north arrow.
 //!
 //! The figure works in kilometres of an already projected plane (x east,
-//! y north; see `crate::gis::projection`) and keeps one scale for both axes, so
+//! y north; see `crate::plot::projection`) and keeps one scale for both axes, so
 //! shapes are drawn as projected. Everything but the map itself (legend, scale
 //! bar, notes) sits in a panel to the right of the map, never over the areas.
 //!

@@ -2,7 +2,7 @@
 //! optional uncertainty bands), cover classes.
 
 use super::axes::{self, Axes};
-use super::legend::{self, Entry, Occupied, Placement, PxRect, Swatch};
+use super::legend::{self, Corner, Entry, Occupied, Placement, PxRect, Swatch};
 use super::{err, palette, Figure, LINE_PX, REF_LINE_PX};
 use plotters::coord::Shift;
 use plotters::prelude::*;
@@ -31,22 +31,6 @@ pub struct Band {
     pub colour: RGBColor,
     /// Opacity of the fill, 0–1.
     pub opacity: f64,
-}
-
-/// A corner of the plot area: where a figure would like its legend.
-///
-/// The legend goes there only if no data passes under it; otherwise it goes in
-/// another free corner, or below the plot ([`super::legend`]).
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Corner {
-    /// Upper left.
-    UpperLeft,
-    /// Upper right.
-    UpperRight,
-    /// Lower left.
-    LowerLeft,
-    /// Lower right.
-    LowerRight,
 }
 
 /// A line chart over years with optional horizontal thresholds and bands.

@@ -8,14 +8,9 @@ use super::doc::{Align, Doc, Figure, Source, Table, Text};
 use super::figures::{self as figs, Drawn};
 use super::fmt::{fixed, sig, signed, UNDEFINED};
 use super::folder::{summary_cols as sc, Method, RunData, SummaryRow, BASIN, NO_CONTROL};
-use crate::io::catchments::file_stem;
+use crate::schema::file_stem;
 
 pub use super::folder::MAX_DETAILED;
-/// The catchments given a detailed subsection, in table order: all of them, or
-/// the [`MAX_DETAILED`] with the largest yield loss at the horizon.
-pub fn detailed_catchments(d: &RunData) -> Vec<&(String, String, f64)> {
-    d.catchments.iter().filter(|c| d.detailed.contains(&c.0)).collect()
-}
 
 /// Most rows of an input table shown.
 pub const MAX_INPUT_ROWS: usize = 200;
@@ -999,7 +994,7 @@ fn results_section(d: &RunData, doc: &mut Doc, drawn: &[Drawn]) {
 
     doc.heading(3, "Catchments");
     catchment_overview(d, doc);
-    let order = detailed_catchments(d);
+    let order = d.detailed_catchments();
     if order.len() < d.catchments.len() {
         doc.para(format!(
             "Detailed results follow for the {MAX_DETAILED} catchments with the largest yield loss at the horizon; every catchment is in the table above and in summary.csv."

@@ -9,13 +9,14 @@
 
 use super::folder::{RunData, BASIN, NO_CONTROL};
 use crate::error::Result;
-use crate::io::catchments::file_stem;
 use crate::model::budyko::CoverCurves;
 use crate::plot::basin::{catchment_comparison, CatchmentChange};
 use crate::plot::budyko_space::{BudykoSpace, Trajectory};
+use crate::plot::legend::Corner;
 use crate::plot::sensitivity::{influence_chart, Influence, InfluencePanel};
-use crate::plot::series::{Band, Corner, Line, LineChart};
+use crate::plot::series::{Band, Line, LineChart};
 use crate::plot::{palette, save_figure, Formats};
+use crate::schema::file_stem;
 
 /// Stem of the catchment comparison figure.
 pub const COMPARISON: &str = "basin_yield_change_by_catchment";
@@ -201,8 +202,7 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
     // 4. Ensemble ranges over time.
     if let Some(e) = &d.ensemble {
         // Only for the catchments the report details (all of them in small basins).
-        let mut subjects: Vec<(String, String)> =
-            super::content::detailed_catchments(d).into_iter().map(|c| (c.0.clone(), c.1.clone())).collect();
+        let mut subjects: Vec<(String, String)> = d.detailed_catchments().into_iter().map(|c| (c.0.clone(), c.1.clone())).collect();
         subjects.push((BASIN.to_string(), "Basin (all catchments)".to_string()));
         for (id, name) in subjects {
             let stem = file_stem(&id);

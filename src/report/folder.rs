@@ -107,21 +107,21 @@ impl CsvTable {
     }
 
     /// Reads a copied input table (`inputs/…`) with the reader the run used for it
-    /// ([`crate::io::table::read_table`]: BOM, CRLF, `;` and decimal commas, blank
+    /// ([`crate::input::table::read_table`]: BOM, CRLF, `;` and decimal commas, blank
     /// rows), so any table the run accepted can be shown.
     pub fn read_input(dir: &Path, rel: &str) -> Result<Option<CsvTable>> {
         let path = dir.join(rel);
         if !path.is_file() {
             return Ok(None);
         }
-        let t = crate::io::table::read_table(&path).map_err(Error::Invalid)?;
+        let t = crate::input::table::read_table(&path).map_err(Error::Invalid)?;
         let (lines, rows) = t.rows.into_iter().unzip();
         Ok(Some(CsvTable { path, name: rel.to_string(), headers: t.headers, rows, lines, decimal_comma: t.semicolon }))
     }
 
     /// A number as the input table writes it (decimal comma allowed in `;` tables).
     pub fn input_number(&self, r: usize, c: usize) -> Option<f64> {
-        crate::io::table::parse_number(self.text(r, c), self.decimal_comma).ok().filter(|v| v.is_finite())
+        crate::input::table::parse_number(self.text(r, c), self.decimal_comma).ok().filter(|v| v.is_finite())
     }
 
     /// Index of column `name`.
@@ -676,6 +676,12 @@ pub struct RunData {
 }
 
 impl RunData {
+    /// The catchments given a detailed subsection, in table order: all of them, or
+    /// the [`MAX_DETAILED`] with the largest yield loss at the horizon.
+    pub fn detailed_catchments(&self) -> Vec<&(String, String, f64)> {
+        self.catchments.iter().filter(|c| self.detailed.contains(&c.0)).collect()
+    }
+
     /// Summary row of a catchment (or `basin`) and strategy.
     pub fn summary_row(&self, catchment: &str, strategy: &str) -> Option<&SummaryRow> {
         self.summary_index.get(&(catchment.to_string(), strategy.to_string())).map(|&i| &self.summary[i])
@@ -1028,7 +1034,7 @@ fn read_nodes(t: &CsvTable, contaminants: &[String], problems: &mut Vec<Problem>
 }
 
 fn read_delay(t: &CsvTable, problems: &mut Vec<Problem>) -> Vec<DelayRow> {
-    let c = t.require(&crate::io::output::DELAY_COLUMNS, problems);
+    let c = t.require(&crate::output::tables::DELAY_COLUMNS, problems);
     if !problems.is_empty() {
         return vec![];
     }

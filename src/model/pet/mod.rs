@@ -18,7 +18,7 @@
 //!
 //! Everything here is a pure function of its arguments: no files, no printing.
 //! Inputs are assumed to have been range-checked by the caller (the weather reader
-//! in `crate::io::weather` does this and reports every bad cell); the functions
+//! in `crate::input::weather` does this and reports every bad cell); the functions
 //! still return finite numbers for any finite input within the documented ranges.
 //!
 //! # References

@@ -6,9 +6,10 @@
 //! and id. Every problem in the file is collected before returning.
 
 use super::validate::{check_rings, check_topology, json_kind, parse_geometry, to_multipolygon};
-use super::{area::geodesic_area_ha, json_lines::feature_lines, Boundaries, Boundary, RESULTS_MEMBER};
+use super::{area::geodesic_area_ha, json_lines::feature_lines, Boundaries, Boundary};
 use crate::error::Problem;
-use crate::io::table::{read_limited, suggestion};
+use crate::input::table::{read_limited, suggestion};
+use crate::schema::RESULTS_MEMBER;
 use serde_json::Value;
 use std::collections::{HashMap, HashSet};
 use std::path::Path;
@@ -266,7 +267,7 @@ fn feature_catchment_id(f: &Value, id_property: &str) -> Result<String, String> 
         Some(other) => Err(format!("property '{id_property}' is {}; it must hold the catchment id as text", json_kind(other))),
         None => {
             let keys: Vec<&str> = props.keys().map(String::as_str).collect();
-            let near = match crate::io::table::nearest(id_property, &keys) {
+            let near = match crate::input::table::nearest(id_property, &keys) {
                 Some(k) => format!(" (did you mean '{k}'?)"),
                 None if keys.is_empty() => " (its properties are empty)".to_string(),
                 None if keys.len() <= 24 => format!(" (its properties: {})", keys.join(", ")),

@@ -15,20 +15,22 @@
 //! basin, holding that strategy's basin members × years.
 
 use crate::error::{Error, Result};
-use crate::io::output::{num, opt_num, CsvOut};
-use crate::io::scenario::{ClimateVariability, EnsembleConfig, Scenario};
+use crate::input::scenario::{ClimateVariability, EnsembleConfig, Scenario};
 use crate::model::basin::project_basin;
 use crate::model::catchment::{ClimateYear, ModelParams};
 use crate::model::climate_gen::{block_bootstrap, lognormal_ar1_multipliers};
 use crate::model::closure::ClosureCurve;
 use crate::model::control::Strategy;
 use crate::model::kernel::{concentration, project_lean, LeanYears};
-use crate::model::stats::{mean, percentile_sorted, spearman, src};
+use crate::model::stats::{mean, percentile_sorted};
 use crate::model::uncertainty::{stable_hash, stream, uniforms, UncertainParam};
 use crate::model::CoverCurves;
-use crate::pipeline::{file_stem, NO_CONTROL};
+use crate::output::tables::CsvOut;
 use crate::plot::tornado::Tornado;
 use crate::plot::{save_figure, Formats};
+use crate::run::sensitivity::{rank, sensitivity_rows, Ranking};
+use crate::schema::numbers::{num, opt_num};
+use crate::schema::{file_stem, NO_CONTROL};
 use rayon::prelude::*;
 use std::path::Path;
 
@@ -56,7 +58,7 @@ pub struct EnsembleOutcome {
     /// Figures drawn.
     pub figures: usize,
     /// Basin sums for the basin-level sensitivity (when any parameter is uncertain).
-    pub sensitivity: Option<crate::basin_totals::SensitivitySums>,
+    pub sensitivity: Option<crate::run::basin_totals::SensitivitySums>,
 }
 
 /// Parameters, scales and strategies of one member for one catchment.
@@ -236,8 +238,8 @@ fn member_series(s: &Scenario, mc: &MemberClimate, i: usize, m: usize, rain_scal
             ys[m]
                 .iter()
                 .map(|&y| {
-                    let cl =
-                        table.map_or(c.mean_climate(), |t| t.year_for(&c.id, y, c.mean_climate(), crate::io::climate::BeyondRecord::Cycle));
+                    let cl = table
+                        .map_or(c.mean_climate(), |t| t.year_for(&c.id, y, c.mean_climate(), crate::input::climate::BeyondRecord::Cycle));
                     ClimateYear { rain_mm: cl.rain_mm * rain_scale, pet_mm: cl.pet_mm * pet_scale }
                 })
                 .collect()
@@ -297,7 +299,7 @@ fn percentile_rows(s: &Scenario, id: &str, strategy: &str, mv: &MemberValues, na
 
 fn csv_line(fields: &[String]) -> String {
     let mut s = String::new();
-    crate::io::output::push_csv_line(&mut s, fields.iter().map(String::as_str));
+    crate::output::tables::push_csv_line(&mut s, fields.iter().map(String::as_str));
     s
 }
 
@@ -312,40 +314,6 @@ pub fn ensemble_header() -> Vec<String> {
 /// Header of `sensitivity.csv`.
 pub fn sensitivity_header() -> Vec<String> {
     ["catchment", "strategy", "at", "year", "parameter", "spearman_rho", "src", "rank"].iter().map(|s| s.to_string()).collect()
-}
-
-/// One sensitivity ranking: `(parameter label, ρ, SRC)` sorted by |ρ| descending.
-pub type Ranking = Vec<(String, Option<f64>, Option<f64>)>;
-
-/// Ranks parameters by |Spearman ρ| with `y` (members with a non-finite `y` left out).
-pub fn rank(labels: &[String], xs: &[Vec<f64>], y: &[f64]) -> Ranking {
-    let ok: Vec<usize> = (0..y.len()).filter(|&m| y[m].is_finite()).collect();
-    let yv: Vec<f64> = ok.iter().map(|&m| y[m]).collect();
-    let xv: Vec<Vec<f64>> = xs.iter().map(|x| ok.iter().map(|&m| x[m]).collect()).collect();
-    let srcs = src(&xv, &yv);
-    let mut r: Ranking =
-        labels.iter().enumerate().map(|(j, l)| (l.clone(), spearman(&xv[j], &yv), srcs.as_ref().and_then(|s| s[j]))).collect();
-    r.sort_by(|a, b| b.1.map_or(0.0, f64::abs).total_cmp(&a.1.map_or(0.0, f64::abs)).then(a.0.cmp(&b.0)));
-    r
-}
-
-/// `sensitivity.csv` rows of one ranking.
-pub fn sensitivity_rows(id: &str, strategy: &str, at: &str, year: i32, r: &Ranking) -> String {
-    r.iter()
-        .enumerate()
-        .map(|(k, (label, rho, srcv))| {
-            csv_line(&[
-                id.into(),
-                strategy.into(),
-                at.into(),
-                year.to_string(),
-                label.clone(),
-                opt_num(*rho, 4),
-                opt_num(*srcv, 4),
-                (k + 1).to_string(),
-            ])
-        })
-        .collect()
 }
 
 /// Offsets (years after the start) at which sensitivity is ranked: year 20 (if within the horizon) and the horizon.
@@ -378,7 +346,7 @@ pub fn run_ensemble(
     cfg: &EnsembleConfig,
     dir: &Path,
     opts: &EnsembleOptions,
-    meta: &crate::basin_totals::BasinMeta,
+    meta: &crate::run::basin_totals::BasinMeta,
 ) -> Result<EnsembleOutcome> {
     let m_count = cfg.members;
     let names = variable_names(s);
@@ -398,7 +366,7 @@ pub fn run_ensemble(
     let figdir = dir.join("figures");
 
     // no-control, catchment by catchment, in parallel chunks written in order.
-    let mut basin = crate::basin_totals::SensitivitySums::new(
+    let mut basin = crate::run::basin_totals::SensitivitySums::new(
         labels.clone(),
         points.iter().map(|(at, off)| (at.to_string(), s.start_year + *off as i32)).collect(),
         m_count,
@@ -437,7 +405,14 @@ pub fn run_ensemble(
             }
             if opts.figures {
                 if let Some(rk) = &r.ranking {
-                    n_figures += tornado(&figdir, meta, &s.catchments[i].name, &file_stem(&s.catchments[i].id), rk, opts.formats)?;
+                    n_figures += tornado(
+                        &figdir,
+                        meta.start_year + meta.horizon_years as i32,
+                        &s.catchments[i].name,
+                        &file_stem(&s.catchments[i].id),
+                        rk,
+                        opts.formats,
+                    )?;
                 }
             }
             if keep_reference {
@@ -640,13 +615,13 @@ fn write_str(out: &mut CsvOut, text: &str) -> Result<()> {
 }
 
 /// Draws a tornado figure of a ranking; returns 1 when drawn.
-pub fn tornado(dir: &Path, meta: &crate::basin_totals::BasinMeta, name: &str, stem: &str, r: &Ranking, formats: Formats) -> Result<usize> {
+pub fn tornado(dir: &Path, horizon_year: i32, name: &str, stem: &str, r: &Ranking, formats: Formats) -> Result<usize> {
     let bars: Vec<(String, f64)> = r.iter().filter_map(|(l, rho, _)| rho.map(|v| (l.clone(), v))).collect();
     if bars.is_empty() {
         return Ok(0);
     }
     let t = Tornado {
-        title: format!("{name} — what drives yield change by {}", meta.start_year + meta.horizon_years as i32),
+        title: format!("{name} — what drives yield change by {horizon_year}"),
         x_label: "Spearman ρ with yield change at the horizon (right: higher parameter, less loss)".into(),
         bars,
     };

@@ -40,9 +40,8 @@
 //! filled. Every gap is listed in [`PetOutput::gaps`].
 
 use crate::error::{Error, Problem, Result};
-use crate::io::output::num;
-use crate::io::table::{fmt_value, parse_number, read_table, suggestion, Table};
-use crate::io::toml_reader::TomlDoc;
+use crate::input::table::{fmt_value, parse_number, read_table, suggestion, Table};
+use crate::input::toml_reader::TomlDoc;
 use crate::model::pet::fao56::{
     self, daylight_hours, extraterrestrial_radiation_mj_m2_day, mean_temperature_c, saturation_vapour_pressure_kpa,
     soil_heat_flux_monthly_mj_m2_day, wind_speed_2m_m_per_s, Angstrom, Humidity, PenmanMonteithInput, Solar,
@@ -50,6 +49,7 @@ use crate::model::pet::fao56::{
 use crate::model::pet::hargreaves;
 use crate::model::pet::priestley_taylor::{self, NetRadiation};
 use crate::model::pet::{day_of_year, days_in_month, days_in_year, mid_month_day_of_year, PetMethod, Site};
+use crate::schema::numbers::num;
 use std::collections::{BTreeMap, HashMap};
 use std::fmt;
 use std::path::{Path, PathBuf};

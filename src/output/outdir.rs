@@ -13,10 +13,8 @@
 //! elsewhere nothing is removed.
 
 use crate::error::{Error, Problem, Result};
+use crate::schema::RUN_INFO_FILE;
 use std::path::{Path, PathBuf};
-
-/// Name of the marker file every yieldshift output folder contains.
-pub const MARKER: &str = "run_info.json";
 
 /// A staging folder that becomes the output folder on [`Staging::commit`].
 #[derive(Debug)]
@@ -43,7 +41,7 @@ impl Staging {
                 return Err(Error::invalid(Problem::in_file(target, "exists and is not a folder; choose another --out")));
             }
             let non_empty = std::fs::read_dir(target).map(|mut d| d.next().is_some()).unwrap_or(false);
-            if non_empty && !target.join(MARKER).exists() && !force {
+            if non_empty && !target.join(RUN_INFO_FILE).exists() && !force {
                 return Err(Error::invalid(Problem::in_file(
                     target,
                     "is a non-empty folder that is not a yieldshift output; choose another --out or pass --force to replace it",
@@ -133,9 +131,9 @@ fn tidy_leftovers(parent: &Path, name: &str, target: &Path) {
         }
     }
     for old in stranded {
-        if !target.exists() && old.join(MARKER).exists() {
+        if !target.exists() && old.join(RUN_INFO_FILE).exists() {
             let _ = std::fs::rename(&old, target);
-        } else if target.join(MARKER).exists() {
+        } else if target.join(RUN_INFO_FILE).exists() {
             // Newer results are in place: the stranded copy is superseded.
             let _ = std::fs::remove_dir_all(&old);
         }
@@ -166,9 +164,9 @@ mod tests {
         let target = tmp.path().join("res");
         for round in 0..2 {
             let s = Staging::new(&target, false).unwrap();
-            std::fs::write(s.dir().join(MARKER), format!("{round}")).unwrap();
+            std::fs::write(s.dir().join(RUN_INFO_FILE), format!("{round}")).unwrap();
             s.commit().unwrap();
-            assert_eq!(std::fs::read_to_string(target.join(MARKER)).unwrap(), format!("{round}"));
+            assert_eq!(std::fs::read_to_string(target.join(RUN_INFO_FILE)).unwrap(), format!("{round}"));
         }
         let names: Vec<String> =
             std::fs::read_dir(tmp.path()).unwrap().map(|e| e.unwrap().file_name().to_string_lossy().into_owned()).collect();
@@ -180,12 +178,12 @@ mod tests {
         let tmp = tempfile::tempdir().unwrap();
         let target = tmp.path().join("res");
         std::fs::create_dir(&target).unwrap();
-        std::fs::write(target.join(MARKER), "earlier").unwrap();
+        std::fs::write(target.join(RUN_INFO_FILE), "earlier").unwrap();
         {
             let s = Staging::new(&target, false).unwrap();
-            std::fs::write(s.dir().join(MARKER), "half-written").unwrap();
+            std::fs::write(s.dir().join(RUN_INFO_FILE), "half-written").unwrap();
         }
-        assert_eq!(std::fs::read_to_string(target.join(MARKER)).unwrap(), "earlier");
+        assert_eq!(std::fs::read_to_string(target.join(RUN_INFO_FILE)).unwrap(), "earlier");
         assert_eq!(std::fs::read_dir(tmp.path()).unwrap().count(), 1);
     }
 
@@ -199,14 +197,14 @@ mod tests {
         // Killed mid-swap: the earlier results sit in .previous-, DIR is missing.
         let stranded = tmp.path().join(format!(".res{PREVIOUS}{DEAD_PID}"));
         std::fs::create_dir(&stranded).unwrap();
-        std::fs::write(stranded.join(MARKER), "earlier").unwrap();
+        std::fs::write(stranded.join(RUN_INFO_FILE), "earlier").unwrap();
         let partial = tmp.path().join(format!(".res{PARTIAL}{DEAD_PID}"));
         std::fs::create_dir(&partial).unwrap();
         let s = Staging::new(&target, false).unwrap();
-        assert_eq!(std::fs::read_to_string(target.join(MARKER)).unwrap(), "earlier", "earlier results restored");
+        assert_eq!(std::fs::read_to_string(target.join(RUN_INFO_FILE)).unwrap(), "earlier", "earlier results restored");
         assert!(!stranded.exists() && !partial.exists());
         drop(s);
-        assert_eq!(std::fs::read_to_string(target.join(MARKER)).unwrap(), "earlier");
+        assert_eq!(std::fs::read_to_string(target.join(RUN_INFO_FILE)).unwrap(), "earlier");
     }
 
     #[test]

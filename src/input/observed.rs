@@ -23,9 +23,9 @@
 //! file is reported together.
 
 use crate::error::{Error, Problem, Result};
-use crate::io::climate::BeyondRecord;
-use crate::io::scenario::Scenario;
-use crate::io::table::{fmt_value, read_table, suggestion};
+use crate::input::climate::BeyondRecord;
+use crate::input::scenario::Scenario;
+use crate::input::table::{fmt_value, read_table, suggestion};
 use crate::model::catchment::ClimateYear;
 use std::collections::HashMap;
 use std::fmt;

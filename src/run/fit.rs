@@ -6,19 +6,20 @@
 //! written; if any catchment cannot be fitted, every such problem is returned
 //! together and no output is left behind. Results are staged in a temporary
 //! folder and moved into place only when everything succeeded
-//! ([`crate::io::outdir`]).
+//! ([`crate::output::outdir`]).
 
 use crate::error::{Error, Problem, Result};
-use crate::io::observed::{LeftOut, ObservedFlows, ObservedSeries};
-use crate::io::outdir::Staging;
-use crate::io::output::{self, num, opt_num, CsvOut};
-use crate::io::scenario::Scenario;
+use crate::input::observed::{LeftOut, ObservedFlows, ObservedSeries};
+use crate::input::scenario::Scenario;
 use crate::model::budyko::CoverCurves;
 use crate::model::fit::{Bound, CatchmentFit, Cover, FitError, FitSettings, GaugeRecord};
 use crate::model::skill::Skill;
-use crate::pipeline::file_stem;
+use crate::output::outdir::Staging;
+use crate::output::tables::{self, CsvOut};
 use crate::plot::fit::{BudykoChart, FitSeries, Mark, YieldFitChart};
 use crate::plot::{palette, save_figure, Formats};
+use crate::schema::file_stem;
+use crate::schema::numbers::{num, opt_num};
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
@@ -198,7 +199,7 @@ pub fn check_donors(scenario: &Scenario, fitted: &[FittedCatchment], donors: &[D
             problems.push(at(format!(
                 "'{}' is not a catchment of the scenario{}",
                 d.ungauged,
-                crate::io::table::suggestion(&d.ungauged, &ids)
+                crate::input::table::suggestion(&d.ungauged, &ids)
             )));
         } else if fitted_ids.contains(&d.ungauged.as_str()) {
             problems.push(at(format!("'{}' is gauged and has its own fitted value; a donor is only for ungauged catchments", d.ungauged)));
@@ -210,7 +211,7 @@ pub fn check_donors(scenario: &Scenario, fitted: &[FittedCatchment], donors: &[D
             let hint = if fitted_ids.is_empty() {
                 " (no catchment was fitted)".to_string()
             } else {
-                crate::io::table::suggestion(&d.gauged, &fitted_ids)
+                crate::input::table::suggestion(&d.gauged, &fitted_ids)
             };
             problems.push(at(format!("donor '{}' is not a fitted (gauged) catchment{hint}", d.gauged)));
         }
@@ -245,7 +246,7 @@ pub fn run(scenario: &Scenario, observed: &ObservedFlows, opts: &FitOptions) -> 
     for f in &fitted {
         figures += draw_figures(&fig_dir, scenario, f, opts.formats)?;
     }
-    output::write_run_info(&dir, &run_info(scenario, observed, opts, &fitted, &ungauged))?;
+    tables::write_run_info(&dir, &run_info(scenario, observed, opts, &fitted, &ungauged))?;
     let out = staging.commit()?;
     Ok(FitOutcome { out, fitted, ungauged, left_out: observed.left_out.len(), figures })
 }
@@ -568,7 +569,7 @@ fn run_info(
         "observations_left_out": observed.left_out.len(),
         "pbias_convention": PBIAS_CONVENTION,
         "statistics": "nse, kge, pbias_pct, rmse_mm compare annual yields simulated with value_mean_fit to the observed; *_scenario columns use the value before fitting",
-        "cautions": format!("{} {}", output::CAUTIONS, FIT_CAUTIONS),
+        "cautions": format!("{} {}", crate::schema::CAUTIONS, FIT_CAUTIONS),
     })
 }
 

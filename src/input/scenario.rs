@@ -7,9 +7,9 @@
 //! `docs/scenario.md`.
 
 use crate::error::{Error, Problem, Result};
-use crate::io::catchments::read_catchments;
-use crate::io::climate::{read_climate, BeyondRecord, ClimateTable};
-use crate::io::toml_reader::{Section, TomlDoc};
+use crate::input::catchments::read_catchments;
+use crate::input::climate::{read_climate, BeyondRecord, ClimateTable};
+use crate::input::toml_reader::{Section, TomlDoc};
 use crate::model::budyko::CoverCurves;
 use crate::model::catchment::{Catchment, ClimateYear, Contaminant, ModelParams};
 use crate::model::closure::ClosureCurve;
@@ -74,7 +74,7 @@ pub struct Scenario {
 #[derive(Debug, Clone)]
 pub struct GisInputs {
     /// The boundaries.
-    pub boundaries: crate::gis::Boundaries,
+    pub boundaries: crate::input::gis::Boundaries,
     /// Relative area difference above which a warning is given.
     pub area_tolerance: f64,
     /// Catchment areas were taken from the geometry.
@@ -151,7 +151,7 @@ impl Scenario {
 
 /// Reads and validates a scenario and all the tables it names.
 pub fn load_scenario(path: &Path) -> Result<Scenario> {
-    let text = crate::io::toml_reader::read_toml_file(path).map_err(Error::invalid)?;
+    let text = crate::input::toml_reader::read_toml_file(path).map_err(Error::invalid)?;
     let (doc, table) = TomlDoc::parse(path, text).map_err(Error::invalid)?;
     let base = path.parent().map(Path::to_path_buf).unwrap_or_default();
     let mut raw = read_keys(&doc, &table, &base);
@@ -177,7 +177,7 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
     let mut gis = None;
     if let (Some(g), false) = (&raw.gis, catchments.is_empty()) {
         let ids: Vec<&str> = catchments.iter().map(|c| c.id.as_str()).collect();
-        match crate::gis::read_boundaries(&g.path, &g.id_property, &ids) {
+        match crate::input::gis::read_boundaries(&g.path, &g.id_property, &ids) {
             Err(p) => problems.extend(p),
             Ok(b) => {
                 let table: Vec<(String, f64)> = catchments.iter().map(|c| (c.id.clone(), c.area_ha)).collect();
@@ -208,7 +208,7 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
                         }
                     }
                 } else {
-                    warnings.extend(crate::gis::area_mismatches(&b, &table, g.area_tolerance).iter().map(|m| m.message()));
+                    warnings.extend(crate::input::gis::area_mismatches(&b, &table, g.area_tolerance).iter().map(|m| m.message()));
                 }
                 gis = Some(GisInputs { boundaries: b, area_tolerance: g.area_tolerance, area_from_geometry: g.area_from_geometry });
             }
@@ -242,13 +242,13 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
     let mut pet_source = None;
     let mut climate = climate;
     if let (Some(w), false) = (&raw.weather, catchments.is_empty()) {
-        match crate::io::weather::compute_pet_file(&w.path, &w.site, w.choice) {
+        match crate::input::weather::compute_pet_file(&w.path, &w.site, w.choice) {
             Err(e) => problems.extend(e.problems().iter().cloned().map(|p| p.or_file(&w.path))),
             Ok(out) => {
                 let ids: Vec<&str> = catchments.iter().map(|c| c.id.as_str()).collect();
                 let mut records = Vec::new();
                 for a in &out.annual {
-                    if a.status == crate::io::weather::STATUS_INCOMPLETE {
+                    if a.status == crate::input::weather::STATUS_INCOMPLETE {
                         problems.push(Problem::in_file(
                             &w.path,
                             format!(
@@ -265,7 +265,7 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
                         Some(id) => problems.push(
                             Problem::in_file(
                                 &w.path,
-                                format!("'{id}' is not a catchment of the scenario{}", crate::io::table::suggestion(id, &ids)),
+                                format!("'{id}' is not a catchment of the scenario{}", crate::input::table::suggestion(id, &ids)),
                             )
                             .column("catchment"),
                         ),
@@ -367,8 +367,8 @@ struct GisSpec {
 /// `[climate] weather`: PET computed from a weather table.
 struct WeatherSpec {
     path: PathBuf,
-    site: crate::io::weather::SiteMeta,
-    choice: crate::io::weather::PetMethodChoice,
+    site: crate::input::weather::SiteMeta,
+    choice: crate::input::weather::PetMethodChoice,
 }
 
 /// A `[[calibration]]` entry: fitted curve parameters for one catchment, or a donor.
@@ -430,7 +430,7 @@ fn apply_calibration(
         let Some(i) = index(&r.catchment) else {
             problems.push(with_msg(
                 &r.at_catchment,
-                format!("'{}' is not a catchment of the scenario{}", r.catchment, crate::io::table::suggestion(&r.catchment, &ids)),
+                format!("'{}' is not a catchment of the scenario{}", r.catchment, crate::input::table::suggestion(&r.catchment, &ids)),
             ));
             continue;
         };
@@ -461,14 +461,14 @@ fn apply_calibration(
         let Some(i) = index(&r.catchment) else {
             problems.push(with_msg(
                 &r.at_catchment,
-                format!("'{}' is not a catchment of the scenario{}", r.catchment, crate::io::table::suggestion(&r.catchment, &ids)),
+                format!("'{}' is not a catchment of the scenario{}", r.catchment, crate::input::table::suggestion(&r.catchment, &ids)),
             ));
             continue;
         };
         match index(donor) {
             None => problems.push(with_msg(
                 &r.at_donor,
-                format!("donor '{donor}' is not a catchment of the scenario{}", crate::io::table::suggestion(donor, &ids)),
+                format!("donor '{donor}' is not a catchment of the scenario{}", crate::input::table::suggestion(donor, &ids)),
             )),
             Some(j) => match fitted[j] {
                 Some(c) => {
@@ -508,7 +508,7 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
             let weather = s.opt_string("weather").map(|w| {
                 let lat = s.f64_in("latitude_deg", None, -90.0, 90.0, "degrees (south negative)");
                 let elev = s.f64_in("elevation_m", None, -500.0, 9000.0, "m");
-                let mut site = crate::io::weather::SiteMeta::new(lat, elev);
+                let mut site = crate::input::weather::SiteMeta::new(lat, elev);
                 site.wind_height_m = s.f64_in("wind_height_m", Some(2.0), 0.5, 100.0, "m");
                 let method = s.choice("pet_method", "auto", &["auto", "penman-monteith", "hargreaves", "priestley-taylor"]);
                 let choice = method.parse().unwrap_or_default();
@@ -525,8 +525,8 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
     let gis = root.section("gis").map(|s| {
         let g = GisSpec {
             path: base.join(s.string("boundaries", None).unwrap_or_default()),
-            id_property: s.string("id_property", Some(crate::gis::DEFAULT_ID_PROPERTY)).unwrap_or_default(),
-            area_tolerance: s.f64_in("area_tolerance", Some(crate::gis::DEFAULT_AREA_TOLERANCE), 0.0, 1.0, "fraction"),
+            id_property: s.string("id_property", Some(crate::input::gis::DEFAULT_ID_PROPERTY)).unwrap_or_default(),
+            area_tolerance: s.f64_in("area_tolerance", Some(crate::input::gis::DEFAULT_AREA_TOLERANCE), 0.0, 1.0, "fraction"),
             area_from_geometry: match s.get("area_from_geometry") {
                 None => false,
                 Some(toml::Value::Boolean(b)) => *b,
@@ -727,9 +727,12 @@ fn build_network(path: &Path, catchments: &[Catchment], rows: &[usize]) -> std::
                 None => {
                     let ids: Vec<&str> = catchments.iter().map(|c| c.id.as_str()).collect();
                     problems.push(
-                        Problem::in_file(path, format!("'{to}' is not the id of any catchment{}", crate::io::table::suggestion(to, &ids)))
-                            .row(rows[i])
-                            .column("flows_to"),
+                        Problem::in_file(
+                            path,
+                            format!("'{to}' is not the id of any catchment{}", crate::input::table::suggestion(to, &ids)),
+                        )
+                        .row(rows[i])
+                        .column("flows_to"),
                     );
                     downstream.push(None);
                 }
@@ -796,7 +799,7 @@ fn read_strategies(root: &Section<'_>, base: &Path, treatments: &[TreatmentMetho
     let mut out: Vec<RawStrategy> = Vec::new();
     for s in root.array_of_tables("strategy") {
         let name = s.string("name", None).unwrap_or_default();
-        if name == crate::pipeline::NO_CONTROL {
+        if name == crate::schema::NO_CONTROL {
             s.push("name", "'no-control' is the reference strategy every run keeps; choose another name");
         } else if name.is_empty() || !name.chars().all(|c| c.is_ascii_alphanumeric() || c == '-' || c == '_') {
             s.push("name", format!("'{name}' must be non-empty and use only letters, digits, '-' and '_'"));
@@ -917,7 +920,7 @@ fn resolve_strategies(raw: &RawScenario, catchments: &[Catchment]) -> std::resul
             RawBudget::Constant(b, true) => Effort::CatchmentBudget(vec![vec![*b; n_years]; catchments.len()]),
             RawBudget::Area(a) => Effort::FixedArea(vec![*a; n_years]),
             RawBudget::Table(path, per_catchment) => {
-                match crate::io::budget::read_budget_table(path, catchments, raw.start_year, n_years, *per_catchment) {
+                match crate::input::budget::read_budget_table(path, catchments, raw.start_year, n_years, *per_catchment) {
                     Ok(e) => e,
                     Err(p) => {
                         problems.extend(p);

@@ -28,7 +28,7 @@
 //!
 //! * Rings are smaller than half the earth (true of any catchment).
 //! * Holes lie inside their exterior ring and parts do not overlap; the reader
-//!   ([`crate::gis::read_boundaries`]) refuses files where they do not.
+//!   ([`crate::input::gis::read_boundaries`]) refuses files where they do not.
 //! * Edges are geodesics. A GIS that treats edges as straight lines in
 //!   longitude/latitude differs by far less than 0.01% at the vertex spacing of
 //!   digitised catchment boundaries.
@@ -102,7 +102,7 @@ impl std::fmt::Display for AreaMismatch {
 /// table's area, e.g. 0.05), in the order of `table_area_ha`. Catchments
 /// without a boundary are skipped; a table area of zero or less always counts
 /// as a mismatch when the boundary has an area.
-pub fn area_mismatches(b: &crate::gis::Boundaries, table_area_ha: &[(String, f64)], tolerance: f64) -> Vec<AreaMismatch> {
+pub fn area_mismatches(b: &crate::input::gis::Boundaries, table_area_ha: &[(String, f64)], tolerance: f64) -> Vec<AreaMismatch> {
     let mut out = Vec::new();
     for (id, table) in table_area_ha {
         let Some(boundary) = b.get(id) else { continue };

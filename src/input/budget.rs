@@ -5,7 +5,7 @@
 //! have no budget (0). Each (catchment, year) may appear once.
 
 use crate::error::Problem;
-use crate::io::table::{read_table, suggestion};
+use crate::input::table::{read_table, suggestion};
 use crate::model::catchment::Catchment;
 use crate::model::control::Effort;
 use std::path::Path;

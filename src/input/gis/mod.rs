@@ -23,22 +23,17 @@
 //! use geo::{polygon, MultiPolygon};
 //! // A 1/100° square at the equator is about 1.11 km × 1.11 km ≈ 123 ha.
 //! let cell = MultiPolygon(vec![polygon![(x: 0.0, y: 0.0), (x: 0.01, y: 0.0), (x: 0.01, y: 0.01), (x: 0.0, y: 0.01)]]);
-//! let ha = yieldshift::gis::geodesic_area_ha(&cell);
+//! let ha = yieldshift::input::gis::geodesic_area_ha(&cell);
 //! assert!((ha - 123.09).abs() < 0.01, "{ha}");
 //! ```
 
 pub mod area;
-mod json_lines;
-mod maps;
-pub mod projection;
+pub(crate) mod json_lines;
 mod read;
-mod results;
 mod validate;
 
 pub use area::{area_mismatches, geodesic_area_ha, AreaMismatch};
-pub use maps::draw_maps;
 pub use read::{read_boundaries, MAX_GEOJSON_BYTES};
-pub use results::{property_suffix, write_results_geojson, RESULTS_FILE, RESULTS_MEMBER};
 
 use geo::MultiPolygon;
 use std::collections::HashMap;
@@ -81,7 +76,7 @@ impl Boundary {
     }
 
     /// The feature's properties as read, kept for the round trip (results
-    /// written by an earlier run are dropped, see [`RESULTS_MEMBER`]).
+    /// written by an earlier run are dropped, see [`crate::schema::RESULTS_MEMBER`]).
     pub fn properties(&self) -> &serde_json::Map<String, serde_json::Value> {
         &self.properties
     }

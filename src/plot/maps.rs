@@ -13,11 +13,12 @@
 //! network (`flows_to`) from the copy of the catchment table in `inputs/`.
 
 use super::projection::LocalProjection;
-use super::results::{RunInfo, Summary};
-use super::Boundaries;
 use crate::error::{Error, Result};
+use crate::input::gis::Boundaries;
+use crate::output::geojson::{RunInfo, Summary};
 use crate::plot::map::{signed, ChoroplethMap, Classes, MapArea, MapPolygon};
 use crate::plot::{save_figure, Formats};
+use crate::schema::NO_CONTROL;
 use geo::{Area, Centroid, Contains, InteriorPoint, LineString, Point, Polygon};
 use std::path::Path;
 
@@ -27,17 +28,15 @@ pub const LABEL_LIMIT: usize = 60;
 /// Target number of classes on the maps.
 const TARGET_CLASSES: usize = 6;
 
-const NO_CONTROL: &str = crate::pipeline::NO_CONTROL;
-
 /// `(from, to)` catchment ids of the drainage network, from the run's copy of
 /// the catchment table.
 fn read_flows(run_dir: &Path, info: &RunInfo) -> Result<Vec<(String, String)>> {
     let Some(table) = &info.catchment_table else {
-        return Err(Error::Other(format!("{} does not name the catchment table", run_dir.join(crate::io::outdir::MARKER).display())));
+        return Err(Error::Other(format!("{} does not name the catchment table", run_dir.join(crate::schema::RUN_INFO_FILE).display())));
     };
     let name = Path::new(table).file_name().ok_or_else(|| Error::Other(format!("catchment table '{table}' has no file name")))?;
     let path = run_dir.join("inputs").join(name);
-    let t = crate::io::table::read_table(&path).map_err(Error::Invalid)?;
+    let t = crate::input::table::read_table(&path).map_err(Error::Invalid)?;
     let (Some(_), Some(_)) = (t.col("id"), t.col("flows_to")) else { return Ok(Vec::new()) };
     Ok(t.rows
         .iter()
@@ -138,7 +137,7 @@ pub fn draw_maps(run_dir: &Path, b: &Boundaries, formats: Formats) -> Result<usi
     });
     for s in summary.strategies.iter().filter(|s| s.as_str() != NO_CONTROL) {
         specs.push(MapSpec {
-            stem: format!("map_yield_change_horizon_{}", crate::pipeline::file_stem(s)),
+            stem: format!("map_yield_change_horizon_{}", crate::schema::file_stem(s)),
             title: format!("Water-yield change by {horizon} (year {}) under {s}", info.horizon_years),
             strategy: s.clone(),
             column: "yield_change_horizon_pct",

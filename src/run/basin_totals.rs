@@ -9,7 +9,6 @@
 //! calls the same finishing code.
 
 use crate::error::{Error, Result};
-use crate::io::output::{self, num, ControlCells, CsvOut};
 use crate::model::catchment::{Catchment, Contaminant};
 use crate::model::cover::ClassAreas;
 use crate::model::dilution;
@@ -17,13 +16,16 @@ use crate::model::economics::ProgrammeTotals;
 use crate::model::exact::ExactSum;
 use crate::model::summary::summarise;
 use crate::model::YearResult;
-use crate::plot::series::{Corner, CoverChart, Line, LineChart, Panels};
+use crate::output::tables::{self, ControlCells, CsvOut};
+use crate::plot::legend::Corner;
+use crate::plot::series::{CoverChart, Line, LineChart, Panels};
 use crate::plot::{palette, save_figure, Formats};
+use crate::schema::numbers::num;
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
 use std::path::Path;
 
 /// Id used for basin-wide rows.
-pub const BASIN_ID: &str = "basin";
+use crate::schema::BASIN_ID;
 
 /// An [`ExactSum`] that serialises as a decimal string.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -365,12 +367,12 @@ impl Partials {
         let st = &self.strategies[k];
         let (c, years) = st.pooled(&self.meta);
         let sm = summarise(&c, &years, &self.contaminants());
-        output::summary_fields(&c, &st.name, &sm, &st.totals(&self.meta), self.meta.water_value_per_m3)
+        tables::summary_fields(&c, &st.name, &sm, &st.totals(&self.meta), self.meta.water_value_per_m3)
     }
 
     /// Writes `delay.csv`.
     pub fn write_delay(&self, dir: &Path) -> Result<()> {
-        let mut out = CsvOut::create(&dir.join("delay.csv"), &output::delay_header())?;
+        let mut out = CsvOut::create(&dir.join("delay.csv"), &tables::delay_header())?;
         for d in &self.delays {
             let t = d.totals(&self.meta);
             let f = [
@@ -389,7 +391,7 @@ impl Partials {
     }
 
     /// Basin sensitivity rankings `(at, year, ranking)`.
-    pub fn basin_rankings(&self) -> Vec<(String, i32, crate::ensemble::Ranking)> {
+    pub fn basin_rankings(&self) -> Vec<(String, i32, crate::run::sensitivity::Ranking)> {
         let Some(s) = &self.sensitivity else { return Vec::new() };
         let area = s.area_ha.value();
         let xs: Vec<Vec<f64>> = s.weighted_draws.iter().map(|v| v.iter().map(|x| x.value() / area).collect()).collect();
@@ -409,7 +411,7 @@ impl Partials {
                         }
                     })
                     .collect();
-                (at.clone(), *year, crate::ensemble::rank(&s.labels, &xs, &y))
+                (at.clone(), *year, crate::run::sensitivity::rank(&s.labels, &xs, &y))
             })
             .collect()
     }
@@ -431,7 +433,7 @@ impl Partials {
             }
         };
         for st in &self.strategies {
-            save_figure(&cover(st), &figdir.join(format!("basin_{}_cover", crate::pipeline::file_stem(&st.name))), formats)?;
+            save_figure(&cover(st), &figdir.join(format!("basin_{}_cover", crate::schema::file_stem(&st.name))), formats)?;
             n += 1;
         }
         if self.strategies.len() > 1 {
@@ -492,7 +494,7 @@ impl Partials {
             water.x_label = "Delay of the start (years)".into();
             water.legend_at = Corner::UpperLeft;
             water.y_from_zero = false;
-            save_figure(&Panels(vec![cost, water]), &figdir.join(format!("delay_{}", crate::pipeline::file_stem(name))), formats)?;
+            save_figure(&Panels(vec![cost, water]), &figdir.join(format!("delay_{}", crate::schema::file_stem(name))), formats)?;
             n += 1;
         }
         Ok(n)
@@ -505,7 +507,7 @@ impl Partials {
         }
         let mut text = String::new();
         for (at, year, r) in self.basin_rankings() {
-            text.push_str(&crate::ensemble::sensitivity_rows(BASIN_ID, crate::pipeline::NO_CONTROL, &at, year, &r));
+            text.push_str(&crate::run::sensitivity::sensitivity_rows(BASIN_ID, crate::schema::NO_CONTROL, &at, year, &r));
         }
         use std::io::Write;
         let path = dir.join("sensitivity.csv");

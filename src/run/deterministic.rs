@@ -6,27 +6,25 @@
 //! to disk; each control programme is projected for the whole basin at once
 //! ([`crate::model::basin`]) because a shared budget couples the catchments.
 //! Results are staged in a temporary folder and moved into place only when
-//! everything succeeded ([`crate::io::outdir`]).
+//! everything succeeded ([`crate::output::outdir`]).
 
-use crate::basin_totals::{BasinMeta, DelaySums, Partials, StrategySums};
 use crate::error::{Error, Result};
-use crate::io::outdir::Staging;
-use crate::io::output::{self, ControlCells, CsvOut};
-use crate::io::scenario::Scenario;
+use crate::input::scenario::Scenario;
 use crate::model::basin::project_basin;
 use crate::model::control::ControlYear;
 use crate::model::dilution;
 use crate::model::economics::ProgrammeTotals;
 use crate::model::summary::{node_totals, summarise, CatchmentSummary};
 use crate::model::{project_catchment, Catchment, YearResult};
+use crate::output::outdir::Staging;
+use crate::output::tables::{self, ControlCells, CsvOut};
 use crate::plot::series::{CoverChart, Line, LineChart};
 use crate::plot::{palette, save_figure, Formats};
+use crate::run::basin_totals::{BasinMeta, DelaySums, Partials, StrategySums};
+use crate::schema::file_stem;
 use std::path::{Path, PathBuf};
 
-/// Name of the reference strategy (no control).
-pub const NO_CONTROL: &str = "no-control";
-
-pub use crate::basin_totals::BASIN_ID;
+use crate::schema::{BASIN_ID, NO_CONTROL};
 
 /// When to draw per-catchment figures.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -112,7 +110,7 @@ fn write_catchment_rows(
         cum_cost += ctl.cost();
         cum_saved += saved;
         let cell = ControlCells { control: ctl, water_saved_m3: saved, cumulative_cost: cum_cost, cumulative_water_saved_m3: cum_saved };
-        let f = output::yearly_fields(c, strategy, y, &cell, contaminants);
+        let f = tables::yearly_fields(c, strategy, y, &cell, contaminants);
         yearly.row(f.iter().map(String::as_str))?;
         cells.push(cell);
     }
@@ -130,7 +128,7 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
     let sub;
     let s = match opts.shard {
         Some((k, n)) => {
-            sub = crate::shard::shard_scenario(full, k, n)?;
+            sub = crate::run::shard::shard_scenario(full, k, n)?;
             &sub
         }
         None => full,
@@ -161,9 +159,9 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
         sensitivity: None,
     };
 
-    let mut yearly = CsvOut::create(&dir.join("yearly.csv"), &output::yearly_header(contaminants))?;
-    let mut nodes = CsvOut::create(&dir.join("nodes.csv"), &output::nodes_header(contaminants))?;
-    let mut budget = CsvOut::create(&dir.join("budget.csv"), &output::budget_header())?;
+    let mut yearly = CsvOut::create(&dir.join("yearly.csv"), &tables::yearly_header(contaminants))?;
+    let mut nodes = CsvOut::create(&dir.join("nodes.csv"), &tables::nodes_header(contaminants))?;
+    let mut budget = CsvOut::create(&dir.join("budget.csv"), &tables::budget_header())?;
     let mut n_figures = 0;
     // summary.csv rows of each catchment, per strategy (basin rows are added at the end).
     let mut summary_rows: Vec<Vec<Vec<String>>> = Vec::new();
@@ -177,7 +175,7 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
         let years = project_catchment(c, &s.climate_series(i), &s.params, s.start_year);
         let (sum, totals, cells) = write_catchment_rows(&mut yearly, s, c, NO_CONTROL, &years, None, None)?;
         sums.add(c, &years, &cells);
-        rows.push(output::summary_fields(c, NO_CONTROL, &sum, &totals, s.economics.water_value_per_m3));
+        rows.push(tables::summary_fields(c, NO_CONTROL, &sum, &totals, s.economics.water_value_per_m3));
         if draw {
             n_figures += catchment_figures(&figdir, s, i, &years, opts.formats)?;
         }
@@ -198,11 +196,11 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
             let (sum, totals, cells) =
                 write_catchment_rows(&mut yearly, s, c, &st.name, &run.years[i], Some(&run.control[i]), Some(&reference[i]))?;
             sums.add(c, &run.years[i], &cells);
-            rows.push(output::summary_fields(c, &st.name, &sum, &totals, s.economics.water_value_per_m3));
+            rows.push(tables::summary_fields(c, &st.name, &sum, &totals, s.economics.water_value_per_m3));
         }
         for b in &run.budget {
             let pool = b.pool.map_or(BASIN_ID, |i| s.catchments[i].id.as_str());
-            budget.row(output::budget_fields(&st.name, pool, b).iter().map(String::as_str))?;
+            budget.row(tables::budget_fields(&st.name, pool, b).iter().map(String::as_str))?;
         }
         let kept = run.years.into_iter().enumerate().map(|(i, y)| in_network[i].then_some(y)).collect();
         write_nodes(&mut nodes, s, &st.name, kept)?;
@@ -216,31 +214,31 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
 
     let mut members = 0;
     if let Some(cfg) = &s.ensemble {
-        let eopts = crate::ensemble::EnsembleOptions { progress: opts.progress, figures: draw, formats: opts.formats };
-        let pool = crate::ensemble::pool(opts.threads)?;
-        let e = pool.install(|| crate::ensemble::run_ensemble(s, cfg, &dir, &eopts, &partials.meta))?;
+        let eopts = crate::run::ensemble::EnsembleOptions { progress: opts.progress, figures: draw, formats: opts.formats };
+        let pool = crate::run::ensemble::pool(opts.threads)?;
+        let e = pool.install(|| crate::run::ensemble::run_ensemble(s, cfg, &dir, &eopts, &partials.meta))?;
         n_figures += e.figures;
         members = e.members;
         partials.sensitivity = e.sensitivity;
     }
     copy_inputs(&dir, full)?;
-    output::write_run_info(&dir, &run_info(full))?;
+    tables::write_run_info(&dir, &run_info(full))?;
     match opts.shard {
         Some((k, n)) => {
             // A shard writes its catchments' rows and its partial basin sums; `merge` finishes.
-            let mut summary = CsvOut::create(&dir.join("summary.csv"), &output::summary_header(contaminants))?;
+            let mut summary = CsvOut::create(&dir.join("summary.csv"), &tables::summary_header(contaminants))?;
             for rows in &summary_rows {
                 for r in rows {
                     summary.row(r.iter().map(String::as_str))?;
                 }
             }
             summary.finish()?;
-            crate::shard::write_shard_info(&dir, full, s, k, n, &partials, opts.figures != FigureChoice::None)?;
+            crate::run::shard::write_shard_info(&dir, full, s, k, n, &partials, opts.figures != FigureChoice::None)?;
         }
         None => {
-            n_figures += finish_basin(&dir, &partials, &summary_rows, opts.formats)?;
+            n_figures += crate::run::finish::finish_basin(&dir, &partials, &summary_rows, opts.formats)?;
             if let Some(g) = &full.gis {
-                n_figures += gis_outputs(&dir, &g.boundaries, opts.figures != FigureChoice::None, opts.formats)?;
+                n_figures += crate::run::finish::gis_outputs(&dir, &g.boundaries, opts.figures != FigureChoice::None, opts.formats)?;
             }
             let report = crate::report::ReportOptions { figures: opts.figures != FigureChoice::None, formats: opts.formats };
             n_figures += crate::report::write_report_with(&dir, &report)?.drawn;
@@ -255,44 +253,6 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
         figures: n_figures,
         members,
     })
-}
-
-/// Writes everything basin-wide from the (possibly merged) partial sums:
-/// `summary.csv` (catchment rows per strategy, each followed by its basin row),
-/// `delay.csv`, the basin rows of `sensitivity.csv` and the basin figures.
-/// Returns the number of figures drawn.
-pub fn finish_basin(dir: &Path, partials: &Partials, summary_rows: &[Vec<Vec<String>>], formats: Formats) -> Result<usize> {
-    let names: Vec<(String, Option<f64>)> = partials.meta.contaminants.clone();
-    let contaminants: Vec<crate::model::Contaminant> = names
-        .iter()
-        .map(|(n, g)| crate::model::Contaminant {
-            name: n.clone(),
-            open_export_kg_per_ha_yr: 0.0,
-            forest_export_kg_per_ha_yr: 0.0,
-            guideline_mg_per_l: *g,
-        })
-        .collect();
-    let mut summary = CsvOut::create(&dir.join("summary.csv"), &output::summary_header(&contaminants))?;
-    for (k, rows) in summary_rows.iter().enumerate() {
-        for r in rows {
-            summary.row(r.iter().map(String::as_str))?;
-        }
-        summary.row(partials.summary_row(k).iter().map(String::as_str))?;
-    }
-    summary.finish()?;
-    partials.write_delay(dir)?;
-    partials.append_sensitivity(dir)?;
-    partials.draw_figures(dir, formats)
-}
-
-/// Writes `catchments.geojson` (results on the boundaries) and, when `maps`, the map figures.
-pub fn gis_outputs(dir: &Path, b: &crate::gis::Boundaries, maps: bool, formats: Formats) -> Result<usize> {
-    crate::gis::write_results_geojson(dir, b)?;
-    if maps {
-        crate::gis::draw_maps(dir, b, formats)
-    } else {
-        Ok(0)
-    }
 }
 
 fn basin_meta(s: &Scenario, figures: bool) -> BasinMeta {
@@ -323,7 +283,7 @@ fn write_nodes(nodes: &mut CsvOut, s: &Scenario, strategy: &str, kept: Vec<Optio
     let counts = s.network.upstream_counts();
     for (n, rows) in node_totals(&s.network, &s.catchments, &projections, contaminants.len(), s.params.min_runoff_mm) {
         for y in &rows {
-            let f = output::node_fields(&s.catchments[n].id, strategy, counts[n], y, contaminants);
+            let f = tables::node_fields(&s.catchments[n].id, strategy, counts[n], y, contaminants);
             nodes.row(f.iter().map(String::as_str))?;
         }
     }
@@ -434,9 +394,9 @@ fn run_info(s: &Scenario) -> serde_json::Value {
             "sampling": match e.sampling { crate::model::uncertainty::Sampling::MonteCarlo => "monte-carlo", crate::model::uncertainty::Sampling::LatinHypercube => "latin-hypercube" },
             "seed": e.seed,
             "climate": match e.climate {
-                crate::io::scenario::ClimateVariability::None => "none",
-                crate::io::scenario::ClimateVariability::Bootstrap { .. } => "bootstrap",
-                crate::io::scenario::ClimateVariability::Stochastic { .. } => "stochastic",
+                crate::input::scenario::ClimateVariability::None => "none",
+                crate::input::scenario::ClimateVariability::Bootstrap { .. } => "bootstrap",
+                crate::input::scenario::ClimateVariability::Stochastic { .. } => "stochastic",
             },
         })),
         "strategies": strategies,
@@ -448,7 +408,7 @@ fn run_info(s: &Scenario) -> serde_json::Value {
             "forest_export_kg_per_ha_yr": c.forest_export_kg_per_ha_yr,
             "guideline_mg_per_l": c.guideline_mg_per_l,
         })).collect::<Vec<_>>(),
-        "cautions": output::CAUTIONS,
+        "cautions": crate::schema::CAUTIONS,
     })
 }
 
@@ -472,11 +432,6 @@ fn copy_inputs(dir: &Path, s: &Scenario) -> Result<()> {
         std::fs::copy(f, inputs.join(&name)).map_err(|e| Error::io(format!("copying {} into inputs/", f.display()), e))?;
     }
     Ok(())
-}
-
-/// Safe file-name stem for a catchment or strategy name.
-pub fn file_stem(id: &str) -> String {
-    crate::io::catchments::file_stem(id)
 }
 
 fn catchment_figures(dir: &Path, s: &Scenario, i: usize, years: &[YearResult], formats: Formats) -> Result<usize> {

@@ -8,7 +8,7 @@
 //! Catchments with no rows use their long-term means in every year.
 
 use crate::error::Problem;
-use crate::io::table::{fmt_value, read_table, suggestion, MAX_SUGGESTIONS};
+use crate::input::table::{fmt_value, read_table, suggestion, MAX_SUGGESTIONS};
 use crate::model::catchment::{Catchment, ClimateYear};
 use std::collections::{HashMap, HashSet};
 use std::path::Path;

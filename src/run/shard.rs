@@ -4,23 +4,21 @@
 //!
 //! Slices keep every drainage network whole (a catchment and everything that
 //! flows into or out of it are in one shard) and follow table order. Basin-wide
-//! results are merged from exact partial sums ([`crate::basin_totals`]). A control
+//! results are merged from exact partial sums ([`crate::run::basin_totals`]). A control
 //! strategy whose budget is shared across the basin couples every catchment and
 //! cannot be sharded: such scenarios are refused.
 
-use crate::basin_totals::Partials;
 use crate::error::{Error, Problem, Result};
-use crate::io::outdir::Staging;
-use crate::io::output::CsvOut;
-use crate::io::scenario::Scenario;
+use crate::input::scenario::Scenario;
 use crate::model::control::Effort;
 use crate::model::network::Network;
+use crate::output::outdir::Staging;
+use crate::output::tables::CsvOut;
+use crate::run::basin_totals::Partials;
+use crate::schema::SHARD_FILE;
 use serde::{Deserialize, Serialize};
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
-
-/// Name of the file describing a shard.
-pub const SHARD_FILE: &str = "shard.json";
 
 /// Parses `K/N` (1 ≤ K ≤ N).
 pub fn parse_shard(text: &str) -> std::result::Result<(usize, usize), String> {
@@ -204,11 +202,11 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
             _ => problems.push(Problem::new(format!("shard {k}/{n} is given more than once"))),
         }
     }
-    let run_info = std::fs::read(infos[0].0.join(crate::io::outdir::MARKER)).unwrap_or_default();
+    let run_info = std::fs::read(infos[0].0.join(crate::schema::RUN_INFO_FILE)).unwrap_or_default();
     for (d, _) in &infos[1..] {
-        if std::fs::read(d.join(crate::io::outdir::MARKER)).unwrap_or_default() != run_info {
+        if std::fs::read(d.join(crate::schema::RUN_INFO_FILE)).unwrap_or_default() != run_info {
             problems.push(Problem::in_file(
-                &d.join(crate::io::outdir::MARKER),
+                &d.join(crate::schema::RUN_INFO_FILE),
                 "differs from the first shard's: shards must come from the same scenario",
             ));
         }
@@ -274,15 +272,15 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
         copy_dir(&d.join("figures"), &dir.join("figures"))?;
     }
     copy_dir(&infos[0].0.join("inputs"), &dir.join("inputs"))?;
-    std::fs::write(dir.join(crate::io::outdir::MARKER), &run_info).map_err(|e| Error::io("writing run_info.json", e))?;
+    std::fs::write(dir.join(crate::schema::RUN_INFO_FILE), &run_info).map_err(|e| Error::io("writing run_info.json", e))?;
     let formats = crate::plot::Formats::default_from(&infos[0].0);
-    crate::pipeline::finish_basin(&dir, &partials, &grouped, formats)?;
+    crate::run::finish::finish_basin(&dir, &partials, &grouped, formats)?;
     // Boundaries, when the run had them: re-read from inputs/ and write the GIS outputs.
     let info: serde_json::Value = serde_json::from_slice(&run_info).unwrap_or_default();
     if let (Some(file), Some(idp)) = (info["gis"]["boundaries"].as_str(), info["gis"]["id_property"].as_str()) {
         let ids: Vec<&str> = infos[0].1.table_order.iter().map(String::as_str).collect();
-        let b = crate::gis::read_boundaries(&dir.join("inputs").join(file), idp, &ids).map_err(Error::Invalid)?;
-        crate::pipeline::gis_outputs(&dir, &b, infos[0].1.figures, formats)?;
+        let b = crate::input::gis::read_boundaries(&dir.join("inputs").join(file), idp, &ids).map_err(Error::Invalid)?;
+        crate::run::finish::gis_outputs(&dir, &b, infos[0].1.figures, formats)?;
     }
     crate::report::write_report_with(&dir, &crate::report::ReportOptions { figures: infos[0].1.figures, formats })?;
     let catchments = infos.iter().map(|(_, i)| i.catchments.len()).sum();

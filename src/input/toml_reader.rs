@@ -7,7 +7,7 @@
 //! [`TomlDoc::take_problems`] returns them in file order.
 
 use crate::error::Problem;
-use crate::io::table::{fmt_value, nearest, parse_number, percent_hint, range_text, read_limited, suggestion};
+use crate::input::table::{fmt_value, nearest, parse_number, percent_hint, range_text, read_limited, suggestion};
 use crate::model::uncertainty::{Distribution, UncertainParam};
 use std::cell::{OnceCell, RefCell};
 use std::collections::{BTreeSet, HashMap};

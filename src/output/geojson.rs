@@ -8,28 +8,19 @@
 //!
 //! The file is RFC 7946 GeoJSON: a FeatureCollection in WGS84
 //! longitude/latitude with no `crs` member, exterior rings counter-clockwise
-//! and holes clockwise. The foreign member [`RESULTS_MEMBER`] records what the
+//! and holes clockwise. The foreign member [`RESULTS_MEMBER`](crate::schema::RESULTS_MEMBER) records what the
 //! run wrote, so that the file can be read back as boundaries without carrying
 //! old results into a new run.
 
-use super::Boundaries;
 use crate::error::{Error, Problem, Result};
+use crate::input::gis::Boundaries;
+use crate::schema::{NO_CONTROL, RESULTS_FILE, RESULTS_MEMBER};
 use geo::orient::{Direction, Orient};
 use serde::ser::{Serialize, SerializeMap, Serializer};
 use serde_json::Value;
 use std::collections::HashMap;
 use std::io::Write;
 use std::path::{Path, PathBuf};
-
-/// File name of the results GeoJSON in a run folder.
-pub const RESULTS_FILE: &str = "catchments.geojson";
-
-/// Foreign member of the FeatureCollection describing the run and listing the
-/// properties it wrote (RFC 7946 §6.1).
-pub const RESULTS_MEMBER: &str = "yieldshift_run";
-
-/// Reference strategy name in `summary.csv`.
-const NO_CONTROL: &str = crate::pipeline::NO_CONTROL;
 
 /// Property-name suffix for a strategy: lower case, `-` replaced by `_`
 /// (`contain-early` → `contain_early`).
@@ -155,7 +146,7 @@ pub(crate) struct RunInfo {
 
 impl RunInfo {
     pub(crate) fn read(run_dir: &Path) -> Result<RunInfo> {
-        let path = run_dir.join(crate::io::outdir::MARKER);
+        let path = run_dir.join(crate::schema::RUN_INFO_FILE);
         let text = std::fs::read_to_string(&path).map_err(|e| Error::io(format!("reading {}", path.display()), e))?;
         let v: Value = serde_json::from_str(&text).map_err(|e| Error::Other(format!("reading {}: {e}", path.display())))?;
         let int =

@@ -11,35 +11,10 @@ use crate::model::dilution::ConcentrationFlag;
 use crate::model::economics::ProgrammeTotals;
 use crate::model::summary::{CatchmentSummary, NodeYear, REPORT_OFFSETS_YR};
 use crate::model::{Catchment, Contaminant, YearResult};
+use crate::schema::numbers::{num, opt_num};
 use std::fmt::Write as _;
 use std::io::Write;
 use std::path::Path;
-
-/// The cautions every output carries.
-pub const CAUTIONS: &str = "Screening estimates only: mean-annual water-balance curves applied year by year ignore \
-storage carry-over and local factors. Not a substitute for a site hydrological assessment. Defer to local \
-regulations and to qualified hydrologists and water-quality practitioners before making water-supply or \
-environmental decisions.";
-
-/// Formats a finite number with `decimals` places (−0 written as 0).
-#[inline]
-pub fn num(v: f64, decimals: usize) -> String {
-    if !v.is_finite() {
-        return String::new();
-    }
-    let s = format!("{v:.decimals$}");
-    if s.starts_with('-') && s[1..].chars().all(|c| c == '0' || c == '.') {
-        s[1..].to_string()
-    } else {
-        s
-    }
-}
-
-/// Formats an optional number (empty when `None`).
-#[inline]
-pub fn opt_num(v: Option<f64>, decimals: usize) -> String {
-    v.map(|x| num(x, decimals)).unwrap_or_default()
-}
 
 /// Appends one CSV line (with its newline) to `out`; fields containing a comma,
 /// quote or line break are quoted. Every CSV this crate writes goes through here.
@@ -329,7 +304,7 @@ pub fn node_fields(node_id: &str, strategy: &str, upstream: usize, y: &NodeYear,
 
 /// Writes `run_info.json`: what was run, with which method, and the cautions.
 pub fn write_run_info(dir: &Path, info: &serde_json::Value) -> Result<()> {
-    let path = dir.join(crate::io::outdir::MARKER);
+    let path = dir.join(crate::schema::RUN_INFO_FILE);
     let text = serde_json::to_string_pretty(info).map_err(|e| Error::Other(e.to_string()))?;
     std::fs::write(&path, text + "\n").map_err(|e| Error::io(format!("writing {}", path.display()), e))
 }

@@ -22,7 +22,7 @@
 //! everything wrong with the file.
 
 use crate::error::Problem;
-use crate::io::table::{fmt_value, nearest, read_table, Table, MAX_SUGGESTIONS};
+use crate::input::table::{fmt_value, nearest, read_table, Table, MAX_SUGGESTIONS};
 use crate::model::catchment::{Catchment, Contaminant};
 use crate::model::cover::ClassAreas;
 use std::collections::HashMap;
@@ -118,7 +118,7 @@ pub fn read_catchments(path: &Path, contaminants: &[Contaminant]) -> Result<(Vec
             p.push(Problem::in_file(path, "id is empty; every catchment needs a unique id").row(line).column("id"));
         } else if id.contains(char::is_whitespace) || id.contains(',') {
             p.push(Problem::in_file(path, format!("id '{id}' must not contain spaces or commas")).row(line).column("id"));
-        } else if id.eq_ignore_ascii_case(crate::basin_totals::BASIN_ID) {
+        } else if id.eq_ignore_ascii_case(crate::schema::BASIN_ID) {
             p.push(
                 Problem::in_file(path, format!("id '{id}' is reserved for the whole-basin rows of the outputs; choose another id"))
                     .row(line)
@@ -130,7 +130,7 @@ pub fn read_catchments(path: &Path, contaminants: &[Contaminant]) -> Result<(Vec
             seen.insert(id.clone(), line);
             usable_id = true;
             // Outputs name files after ids; two ids must not map to one file name.
-            let stem = file_stem(&id).to_lowercase();
+            let stem = crate::schema::file_stem(&id).to_lowercase();
             if let Some((other, other_row)) = stems.get(&stem) {
                 p.push(
                     Problem::in_file(
@@ -299,13 +299,6 @@ fn required(
 ) -> Option<f64> {
     table.col(col)?;
     table.required_in(line, rec, col, lo, hi, unit, p)
-}
-
-/// File-name form of an id: the same mapping as `pipeline::file_stem` (letters,
-/// digits, `-` and `_` kept, anything else `_`).
-/// File-name stem written for an id (figures are named after it).
-pub fn file_stem(id: &str) -> String {
-    id.chars().map(|c| if c.is_ascii_alphanumeric() || c == '-' || c == '_' { c } else { '_' }).collect()
 }
 
 /// One catchment's place in the drainage network, as read from its row.

@@ -1,0 +1,1 @@
+//! Column lists (filled below).

@@ -1,0 +1,1 @@
+//! run_info.json (filled below).
