@@ -177,6 +177,54 @@ fn read_rows(path: &Path) -> Result<(Vec<String>, Vec<Vec<String>>)> {
     Ok((header, rows))
 }
 
+/// Most missing shards listed one by one; beyond that they are counted.
+const MAX_MISSING_LISTED: usize = 10;
+
+/// Problems with the set of shard numbers `have` (sorted) for a run of `n`
+/// shards: each missing or repeated shard. The stated `n` is not trusted: the
+/// work done and the problems listed are bounded by the number of shards given.
+fn shard_count_problems(have: &[usize], n: usize) -> Vec<Problem> {
+    let mut problems = Vec::new();
+    let mut last_repeated = None;
+    for w in have.windows(2) {
+        if w[0] == w[1] && last_repeated != Some(w[0]) {
+            problems.push(Problem::new(format!("shard {}/{n} is given more than once", w[0])));
+            last_repeated = Some(w[0]);
+        }
+    }
+    let mut distinct: Vec<usize> = have.iter().copied().filter(|&k| (1..=n).contains(&k)).collect();
+    distinct.dedup();
+    let missing_count = n - distinct.len();
+    if missing_count == 0 {
+        return problems;
+    }
+    // The first missing shards, found by walking the given ones (never all of 1..=n).
+    let mut missing = Vec::new();
+    let mut next = 1;
+    for &k in distinct.iter().chain(std::iter::once(&(n + 1))) {
+        while next < k && missing.len() < MAX_MISSING_LISTED {
+            missing.push(next);
+            next += 1;
+        }
+        next = k + 1;
+        if missing.len() == MAX_MISSING_LISTED {
+            break;
+        }
+    }
+    if missing_count <= MAX_MISSING_LISTED {
+        problems.extend(missing.iter().map(|k| Problem::new(format!("shard {k}/{n} is missing"))));
+    } else {
+        let listed: Vec<String> = missing.iter().map(|k| k.to_string()).collect();
+        problems.push(Problem::new(format!(
+            "the shards say N = {n} but {} were given: shards {} and {} more are missing",
+            have.len(),
+            listed.join(", "),
+            missing_count - missing.len()
+        )));
+    }
+    problems
+}
+
 /// Merges shard folders into `out`.
 pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> {
     if dirs.is_empty() {
@@ -194,14 +242,12 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
             problems.push(Problem::in_file(&d.join(SHARD_FILE), "belongs to a different sharded run (scenario or N differ)"));
         }
     }
-    let have: Vec<usize> = infos.iter().map(|(_, i)| i.shard).collect();
-    for k in 1..=n {
-        match have.iter().filter(|&&h| h == k).count() {
-            0 => problems.push(Problem::new(format!("shard {k}/{n} is missing"))),
-            1 => {}
-            _ => problems.push(Problem::new(format!("shard {k}/{n} is given more than once"))),
+    for (d, i) in &infos {
+        if i.shard == 0 || i.shard > i.of {
+            problems.push(Problem::in_file(&d.join(SHARD_FILE), format!("names shard {}/{}: need 1 ≤ K ≤ N", i.shard, i.of)));
         }
     }
+    problems.extend(shard_count_problems(&infos.iter().map(|(_, i)| i.shard).collect::<Vec<_>>(), n));
     let run_info = std::fs::read(infos[0].0.join(crate::schema::RUN_INFO_FILE)).unwrap_or_default();
     for (d, _) in &infos[1..] {
         if std::fs::read(d.join(crate::schema::RUN_INFO_FILE)).unwrap_or_default() != run_info {
@@ -301,4 +347,29 @@ fn copy_dir(from: &Path, to: &Path) -> Result<()> {
         }
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_huge_stated_shard_count_is_not_trusted() {
+        // Regression: `"of": 2000000` in shard.json listed two million problems.
+        let p = shard_count_problems(&[1, 2], 2_000_000);
+        assert_eq!(p.len(), 1, "{p:?}");
+        assert!(
+            p[0].message.contains("N = 2000000 but 2 were given: shards 3, 4, 5, 6, 7, 8, 9, 10, 11, 12 and 1999988 more"),
+            "{}",
+            p[0].message
+        );
+    }
+
+    #[test]
+    fn missing_and_repeated_shards_are_named() {
+        let msgs = |v: Vec<Problem>| v.into_iter().map(|p| p.message).collect::<Vec<_>>();
+        assert_eq!(msgs(shard_count_problems(&[1, 3], 3)), vec!["shard 2/3 is missing"]);
+        assert_eq!(msgs(shard_count_problems(&[1, 1, 2], 3)), vec!["shard 1/3 is given more than once", "shard 3/3 is missing"]);
+        assert!(shard_count_problems(&[1, 2, 3], 3).is_empty());
+    }
 }
