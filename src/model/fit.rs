@@ -32,7 +32,8 @@
 //!    `B` times and the long-term mean fit repeated on each resample; the
 //!    interval is the percentile interval (Efron & Tibshirani 1993) at level
 //!    `1 − α`: the `α/2` and `1 − α/2` quantiles of the `B` fitted values
-//!    (linear interpolation between order statistics, `h = (B − 1)·p`). A
+//!    ([`super::stats::percentile_sorted`]: Hyndman & Fan 1996 definition 7, linear
+//!    interpolation between order statistics at `h = (B − 1)·p`). A
 //!    resample whose mean is impossible for the curve counts at the bound it
 //!    points to (reported as `at_bound`).
 //! 4. **Random numbers.** SplitMix64 (Steele, Lea & Flood 2014):
@@ -84,6 +85,7 @@ use super::budyko::{mixed_et_mm, CoverCurves};
 use super::catchment::{Catchment, ClimateYear, ModelParams};
 use super::projection::starting_canopy_fraction;
 use super::roots::{brent_minimum, brent_root, RootError};
+use super::stats::percentile_sorted;
 use std::fmt;
 
 /// Allowed range of Zhang's `w` for fitting (the scenario file's range, `docs/scenario.md`).
@@ -684,9 +686,9 @@ impl GaugeRecord {
         fitted.sort_by(f64::total_cmp);
         Ok(BootstrapInterval {
             level,
-            low: quantile_sorted(&fitted, (1.0 - level) / 2.0),
-            high: quantile_sorted(&fitted, (1.0 + level) / 2.0),
-            median: quantile_sorted(&fitted, 0.5),
+            low: percentile_sorted(&fitted, (1.0 - level) / 2.0),
+            high: percentile_sorted(&fitted, (1.0 + level) / 2.0),
+            median: percentile_sorted(&fitted, 0.5),
             samples,
             at_bound,
             seed,
@@ -700,19 +702,6 @@ impl GaugeRecord {
         let interval = if s.bootstrap_samples > 0 { Some(self.bootstrap_mean(s.bootstrap_samples, s.seed, s.level)?) } else { None };
         Ok(CatchmentFit { key: self.key(), scenario_value: self.scenario_value(), mean, series, interval })
     }
-}
-
-/// Quantile `p` of sorted values, linear interpolation between order statistics
-/// at `h = (n − 1)·p` (Hyndman & Fan 1996, definition 7). `sorted` must be non-empty.
-pub fn quantile_sorted(sorted: &[f64], p: f64) -> f64 {
-    let n = sorted.len();
-    if n == 1 {
-        return sorted[0];
-    }
-    let h = (n - 1) as f64 * p.clamp(0.0, 1.0);
-    let i = h.floor() as usize;
-    let j = (i + 1).min(n - 1);
-    sorted[i] + (h - i as f64) * (sorted[j] - sorted[i])
 }
 
 /// SplitMix64 pseudo-random numbers (Steele, Lea & Flood 2014): small, fast,
@@ -797,15 +786,6 @@ mod tests {
         let w3 = r.windows(3);
         assert!(w3.iter().all(|w| r.years[w[2]].year - r.years[w[0]].year == 2));
         assert_eq!(w3.len(), 3 + 4);
-    }
-
-    #[test]
-    fn quantiles_interpolate() {
-        // Source: Hyndman & Fan (1996), definition 7 (numpy's default "linear").
-        let v = [1.0, 2.0, 3.0, 4.0];
-        assert_abs_diff_eq!(quantile_sorted(&v, 0.5), 2.5, epsilon = 1e-15);
-        assert_abs_diff_eq!(quantile_sorted(&v, 0.25), 1.75, epsilon = 1e-15);
-        assert_eq!(quantile_sorted(&v, 1.0), 4.0);
     }
 
     #[test]
