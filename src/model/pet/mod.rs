@@ -72,16 +72,13 @@ impl fmt::Display for PetMethod {
 }
 
 /// Why a [`Site`] could not be built. Each message states the rule.
-#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[derive(Debug, Clone, PartialEq)]
 pub enum SiteError {
     /// Latitude outside −90..=90 degrees or not finite.
-    #[error("latitude {0} is not allowed: it must be a finite number of degrees in -90..=90 (south negative)")]
     Latitude(f64),
     /// Elevation outside −500..=9000 m or not finite.
-    #[error("elevation {0} m is not allowed: it must be a finite number of metres above sea level in -500..=9000")]
     Elevation(f64),
     /// Ångström coefficients outside their physical range.
-    #[error("Angstrom coefficients a_s = {a_s}, b_s = {b_s} are not allowed: each must be in 0..1 and a_s + b_s must be in 0..=1")]
     Angstrom {
         /// The rejected `a_s`.
         a_s: f64,
@@ -89,6 +86,25 @@ pub enum SiteError {
         b_s: f64,
     },
 }
+
+impl fmt::Display for SiteError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            SiteError::Latitude(v) => {
+                write!(f, "latitude {v} is not allowed: it must be a finite number of degrees in -90..=90 (south negative)")
+            }
+            SiteError::Elevation(v) => {
+                write!(f, "elevation {v} m is not allowed: it must be a finite number of metres above sea level in -500..=9000")
+            }
+            SiteError::Angstrom { a_s, b_s } => write!(
+                f,
+                "Angstrom coefficients a_s = {a_s}, b_s = {b_s} are not allowed: each must be in 0..1 and a_s + b_s must be in 0..=1"
+            ),
+        }
+    }
+}
+
+impl std::error::Error for SiteError {}
 
 /// Where the weather was observed: what the radiation and pressure equations need.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -207,6 +223,13 @@ mod tests {
         assert!(Site::new(0.0, 10_000.0, a).is_err());
         assert!(Site::new(0.0, 0.0, Angstrom { a_s: 0.6, b_s: 0.5 }).is_err());
         assert!(Site::new(0.0, 0.0, Angstrom { a_s: 0.0, b_s: 0.5 }).is_err());
+        // The messages state the rule broken.
+        assert_eq!(
+            SiteError::Latitude(91.0).to_string(),
+            "latitude 91 is not allowed: it must be a finite number of degrees in -90..=90 (south negative)"
+        );
+        assert!(SiteError::Elevation(1e4).to_string().contains("in -500..=9000"));
+        assert!(SiteError::Angstrom { a_s: 0.6, b_s: 0.5 }.to_string().contains("a_s + b_s must be in 0..=1"));
     }
 
     #[test]
