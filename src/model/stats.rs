@@ -10,10 +10,28 @@
 //!   output on the inputs, each standardised to zero mean and unit variance
 //!   (Saltelli et al. 2008, §1.2.5); for independent inputs `Σ SRC² ≈ R²`.
 //!
+//! # Symbols
+//! * `x₁ ≤ … ≤ xₙ` — a sorted sample of any unit; `n` — sample size; `p` — probability, 0–1.
+//! * `ρ` — Spearman rank correlation, −1–1.
+//! * SRC — standardised regression coefficient of an input, dimensionless (−1–1 for
+//!   independent inputs); `R²` — coefficient of determination, 0–1.
+//!
+//! # Assumptions
+//! * Standard deviations use the `n − 1` divisor; a constant sample has no
+//!   correlation or SRC (`None`), never NaN.
+//! * SRC describe a linear fit; for a non-linear model with independent inputs,
+//!   `1 − Σ SRC²` is about the share of output variance the linear fit leaves unexplained.
+//!
 //! # References
 //! Hyndman, R. J., & Fan, Y. (1996). Sample quantiles in statistical packages.
 //! *The American Statistician*, 50(4), 361–365.
-//! Saltelli, A., et al. (2008). *Global Sensitivity Analysis: The Primer*. Wiley.
+//!
+//! Spearman, C. (1904). The proof and measurement of association between two
+//! things. *The American Journal of Psychology*, 15(1), 72–101.
+//!
+//! Saltelli, A., Ratto, M., Andres, T., Campolongo, F., Cariboni, J., Gatelli, D.,
+//! Saisana, M., & Tarantola, S. (2008). *Global Sensitivity Analysis: The Primer*.
+//! John Wiley & Sons, Chichester.
 
 /// Quantile `p` (0–1) of an already sorted (ascending) sample: Hyndman & Fan (1996)
 /// definition 7, linear interpolation between order statistics.

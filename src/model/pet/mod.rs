@@ -21,6 +21,27 @@
 //! in `crate::io::weather` does this and reports every bad cell); the functions
 //! still return finite numbers for any finite input within the documented ranges.
 //!
+//! # Formula
+//! The methods' equations are in their files. Defined here:
+//! * Gregorian leap year: divisible by 4 and not by 100, or divisible by 400.
+//! * Day of the year `J` as FAO-56 uses it: the days of the months before `month`
+//!   plus `day` (1 on 1 January, 365 or 366 on 31 December).
+//! * Day of a monthly record: `J` of the 15th of the month (FAO-56 Example 17
+//!   evaluates April's radiation on 15 April, `J = 105`).
+//!
+//! # Symbols
+//! | symbol | meaning | unit | valid range here |
+//! |---|---|---|---|
+//! | `ET0` | grass reference evapotranspiration | mm/day | usually ≥ 0; Penman–Monteith and Priestley–Taylor return net condensation as negative, Hargreaves returns 0 |
+//! | latitude `φ` | site latitude, south negative | decimal degrees | −90..=90 |
+//! | `z` | site elevation above sea level | m | −500..=9000 |
+//! | `a_s`, `b_s` | Ångström coefficients (FAO-56 eq. 35) | – | each in (0, 1), `a_s + b_s ≤ 1`; FAO-56 default 0.25, 0.50 |
+//! | `J` | day of the year | – | 1..=366 |
+//!
+//! # Assumptions
+//! * Dates are Gregorian; the caller checks that a date exists.
+//! * A monthly record's radiation terms are those of the middle of the month.
+//!
 //! # References
 //! Allen, R. G., Pereira, L. S., Raes, D., & Smith, M. (1998). *Crop
 //! evapotranspiration — Guidelines for computing crop water requirements.* FAO
