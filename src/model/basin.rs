@@ -6,6 +6,51 @@
 //! treats cohorts ([`super::control`]); (3) regrowth, ageing and spread
 //! ([`super::cover`]). With no programme (or a zero budget) the results are exactly
 //! those of [`super::projection::project_catchment`].
+//!
+//! # Formula
+//! This file sequences equations defined and documented elsewhere: canopy fraction,
+//! evapotranspiration, yield, loads and concentrations in [`super::projection`];
+//! follow-up, treatment, regrowth and the priority rules in [`super::control`];
+//! ageing and spread in [`super::cover`]. What it computes itself:
+//! * Budget of pool `k` in year `t`: `B_avail = B_k,t + carry_k,t−1` ($), and
+//!   `carry_k,t = max(0, B_avail − spent_k,t)` when the programme carries over
+//!   (else 0). A fixed-area pool holds `A_fix,t` ha of treatment and carries nothing.
+//! * Yield lost per unit canopy fraction (for best-value), at the catchment's
+//!   long-term mean climate: `ΔQ = max(0, Q(f = 0) − Q(f = 1))`, mm/yr (ET is linear
+//!   in `f`, [`super::budyko::mixed_et_mm`]).
+//! * Best-value key of a cohort of age `a` with `L = n − 1 − t` projected years left:
+//!   `e·ΔQ·10·Σ_{k=1..L} closure(a + k) / c(a)` (m³ per $; the largest possible key
+//!   when `c(a) = 0`), the closure sum taken from prefix sums of the whole-year
+//!   closure table ([`super::closure::ClosureCurve::table_by_whole_year`]).
+//! * Area treated from a cohort of `A_a` ha with `left` still to spend:
+//!   `T = min(A_a, left/c(a))` ha (`min(A_a, left)` for a fixed area); cleared `e·T` ha.
+//! * Regrowth of catchment `i` in year `t`: `Σ ρ·A_cleared/N·(1 − φ_i,t)` ha over the
+//!   clearings of the last `N` years, added to the new age-0 cohort with spread and
+//!   capped with it at the free vulnerable area.
+//!
+//! # Symbols
+//! * `t` — projected year, 0 = start year; `n` — years projected.
+//! * `k` — budget pool: the basin, or one catchment; `B_k,t` — its budget, $, ≥ 0;
+//!   `A_fix,t` — fixed treatment area, ha, ≥ 0.
+//! * `c(a)` — treatment cost of the density class of age `a`, $/ha, ≥ 0; `e` —
+//!   efficacy, 0–1; `ρ` — regrowth fraction, 0–1; `N` — regrowth years, ≥ 1;
+//!   `φ_i,t` — fraction of catchment `i`'s follow-up paid, 0–1.
+//! * `Q(f)` — yield at canopy fraction `f` (0–1), mm/yr; `closure(a)` — 0–1.
+//!
+//! # Assumptions
+//! * Catchments interact only through a shared budget: spread never crosses a
+//!   catchment boundary (seed rain from outside is each catchment's own input).
+//! * A year's results use the cover at the start of the year; treatment, regrowth
+//!   and spread change the following year's cover.
+//! * The budget is spent greedily in priority order; a cohort that cannot be paid in
+//!   full is treated in part; ties are broken by catchment order, then age, so runs
+//!   are deterministic.
+//! * A fixed-area programme buys hectares, not dollars: its follow-up is always paid
+//!   in full (so it always suppresses regrowth) and does not use up the area.
+//!
+//! # References
+//! Common practice, no published source: greedy allocation of a budget in priority
+//! order. The sources of the control equations are given in [`super::control`].
 
 use super::catchment::{Catchment, ClimateYear, ModelParams};
 use super::control::{BudgetYear, ControlYear, Effort, PriorityRule, Strategy};

@@ -2,6 +2,36 @@
 //!
 //! These are plain data. Reading them from files (and checking units and ranges)
 //! is the job of [`crate::io`]; the model trusts what it is given here.
+//!
+//! # Formula
+//! Two small relations are defined here:
+//! * Forest PET in a year with grass PET `E0_t`: `E0f_t = E0_t · E0f̄ / E0̄` when the
+//!   catchment gives its own long-term forest PET `E0f̄` (its ratio is kept every
+//!   year), else `E0f_t = k_f · E0_t`.
+//! * Canopy fraction with no invader at all: `f_u = clamp(F / A, 0, 1)`.
+//!
+//! # Symbols
+//! Ranges are those the input readers accept (`crate::io`).
+//! * `A` — catchment area, ha, > 0 (up to 10⁹).
+//! * `P̄` — long-term mean rainfall, mm/yr, 1–20 000.
+//! * `E0̄`, `E0f̄` — long-term mean PET over grass/tussock and (optional) over
+//!   forest, mm/yr, 1–5 000.
+//! * `k_f` — forest PET factor, dimensionless, 0.5–2.
+//! * `F` — existing non-spreading forest, ha, 0–`A`; the vulnerable area is at most
+//!   the open area `A − F`, and the infested area by density class lies within it.
+//! * Export coefficients `e_open`, `e_forest`, kg/ha/yr, 0–10⁴; point loads, kg/yr,
+//!   0–10¹²; guideline, mg/L, 0–10⁶.
+//! * Minimum runoff for a concentration, mm/yr, 0–1 000.
+//! * `ClimateYear` — one year's rainfall and grass PET, mm/yr.
+//!
+//! # Assumptions
+//! * A catchment's forest and grass PET keep the same ratio in every year.
+//! * Curve parameters fitted for a catchment replace the scenario's for that
+//!   catchment only.
+//!
+//! # References
+//! Common practice, no published source: scaling forest PET from grass PET by a
+//! fixed factor.
 
 use super::budyko::CoverCurves;
 use super::cover::{ClassAreas, InvasionParams};

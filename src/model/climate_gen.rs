@@ -10,9 +10,26 @@
 //!   `E[P_t] = P̄` and `CV[P_t] = CV` (log-normal moments; Aitchison & Brown 1957).
 //!   PET likewise with its own CV (ρ = 0) when given.
 //!
+//! # Symbols
+//! * `N` — record years; `n` — years in a member's sequence; `L` — block length,
+//!   years (scenario: 1–100; clamped here to 1–`N`).
+//! * `P̄` — a catchment's mean rainfall, mm/yr; `P_t` — the member's rainfall in year
+//!   `t`, mm/yr (the series returned is the multiplier `P_t / P̄`, mean 1).
+//! * `CV` — coefficient of variation of annual rainfall (scenario 0–2) or PET
+//!   (scenario 0–1); `CV ≤ 0` gives a constant series of 1.
+//! * `ρ` — lag-1 autocorrelation of `z` (= of `ln P`), scenario −0.95–0.95, clamped
+//!   here to ±0.99; `z_t` — standard normal state; `ε_t` — standard normal innovation.
+//! * `σ` — standard deviation of `ln P_t`.
+//!
 //! # Assumptions
-//! One sequence per member is shared by every catchment (fully correlated climate
-//! across the basin).
+//! * One sequence per member is shared by every catchment (fully correlated climate
+//!   across the basin).
+//! * The bootstrap treats the record as stationary and keeps persistence only within
+//!   blocks; an empty record gives index 0 for every year.
+//! * The AR(1) process starts in its stationary state (`z_0 ~ N(0, 1)`), so every year
+//!   has the same distribution. `ρ` is the lag-1 correlation of `ln P`; that of `P`
+//!   itself is `(exp(ρσ²) − 1)/(exp(σ²) − 1)`, slightly smaller (a property of the
+//!   bivariate log-normal). Rainfall and PET multipliers are independent.
 //!
 //! # References
 //! Künsch, H. R. (1989). The jackknife and the bootstrap for general stationary

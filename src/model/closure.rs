@@ -16,10 +16,17 @@
 //!
 //! # Symbols
 //! * `a` — stand age, years since establishment, ≥ 0.
-//! * `a½` — half-closure age, years (> 0, ≤ 200). Half of `c_max` is reached slightly
-//!   after `a½` because of the rescaling (negligible when `k·a½ > 4`).
-//! * `k` — steepness, 1/yr (> 0, ≤ 10).
+//! * `a½` — half-closure age, years (scenario 0.5–200). Half of `c_max` is reached
+//!   slightly after `a½` because of the rescaling (negligible when `k·a½ > 4`).
+//! * `k` — steepness, 1/yr (scenario 0.01–10).
 //! * `c_max` — fraction of closed-forest evapotranspiration the mature stand reaches, 0–1.
+//! * Table: ages, years, strictly increasing; fractions 0–1.
+//!
+//! # Assumptions
+//! * Closure depends on stand age only, not on site, climate or stocking; the
+//!   logistic's parameters are scenario inputs, not published values.
+//! * A stand acts on evapotranspiration as the fraction `closure(a)` of closed forest
+//!   (the forest curve) and `1 − closure(a)` of grass; results are clamped to 0–1.
 //!
 //! # References
 //! Scott, D. F., & Smith, R. E. (1997). Preliminary empirical models to predict

@@ -32,8 +32,8 @@
 //! anyway, through their cheapness and future closure). Costs are in constant dollars.
 //!
 //! # References
-//! Cost per hectare rising steeply with density and cheap early control are common
-//! practice in invasive-conifer management; no single published source is relied on.
+//! Common practice, no published source: cost per hectare rising steeply with
+//! density, and cheap early control, as assumed in invasive-conifer management.
 
 use super::cover::DensityClass;
 

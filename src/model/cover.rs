@@ -18,7 +18,8 @@
 //! `a_medium..a_dense`, dense over `a_dense..a_dense + s_dense`.
 //!
 //! # Symbols
-//! * `r` — spread rate, 1/yr (0–1; unchecked infestations spread about 0.05–0.06/yr).
+//! * `r` — spread rate, 1/yr (0–1; From memory: unchecked infestations spread about
+//!   0.05–0.06/yr).
 //! * `S` — seed-bearing area: cohorts with age ≥ `a_seed`, ha.
 //! * `R` — seed rain from outside the catchment, ha/yr, ≥ 0.
 //! * `I` — infested area, ha; `V` — vulnerable area (can carry the invader), ha, `I ≤ V`.
@@ -30,8 +31,9 @@
 //! invaded. Removal by control stops seed production at once.
 //!
 //! # References
-//! Compounding spread at ~5–6 %/yr: common practice in invasive-conifer management
-//! (national strategy figures); no single published source is relied on.
+//! Common practice, no published source: compounding spread at about 5–6 %/yr is
+//! the figure used in invasive-conifer management; no published source is relied on
+//! here.
 
 use super::closure::ClosureCurve;
 

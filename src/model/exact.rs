@@ -9,6 +9,19 @@
 //! # Formula
 //! `S = Σ_i round(x_i · 2³²)` in 128-bit integers; value `S / 2³²`.
 //! Each term's rounding error is at most 2⁻³³ units; totals up to about 10²⁷ units fit.
+//!
+//! # Symbols
+//! * `x_i` — a value added, in the unit of the total (m³, kg, ha, $, ...), finite.
+//! * `S` — the fixed-point total, a signed 128-bit integer of 2⁻³² units.
+//!
+//! # Assumptions
+//! * Non-finite values are ignored (left out of the total), not propagated.
+//! * Values below 2⁻³³ units are lost; each term's magnitude must stay below about
+//!   4·10²⁸ units (the `i128` range over 2³²; larger values saturate).
+//!
+//! # References
+//! Common practice, no published source: fixed-point integer accumulation for sums
+//! that do not depend on order or grouping.
 
 const SCALE: f64 = 4_294_967_296.0; // 2^32
 

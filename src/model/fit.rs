@@ -32,13 +32,18 @@
 //!    `B` times and the long-term mean fit repeated on each resample; the
 //!    interval is the percentile interval (Efron & Tibshirani 1993) at level
 //!    `1 − α`: the `α/2` and `1 − α/2` quantiles of the `B` fitted values
-//!    (linear interpolation between order statistics, `h = (B − 1)·p`). A
+//!    ([`super::stats::percentile_sorted`]: Hyndman & Fan 1996 definition 7, linear
+//!    interpolation between order statistics at `h = (B − 1)·p`). A
 //!    resample whose mean is impossible for the curve counts at the bound it
 //!    points to (reported as `at_bound`).
-//! 4. **Random numbers.** SplitMix64 (Steele, Lea & Flood 2014):
-//!    `s ← s + 0x9E3779B97F4A7C15`; `z = (s ⊕ s≫30)·0xBF58476D1CE4E5B9`;
-//!    `z = (z ⊕ z≫27)·0x94D049BB133111EB`; output `z ⊕ z≫31` (all mod 2⁶⁴). An
-//!    index below `n` is the high 64 bits of `output · n` (bias below `n/2⁶⁴`).
+//! 4. **Random numbers.** The model's one seeded stream,
+//!    [`super::uncertainty::stream`]`(seed, d, b)`: resample `b` (0-based) draws its
+//!    `n` year indices, each uniform on `0..n` (`rand`'s unbiased integer
+//!    sampling), from its own stream, in sampling dimension
+//!    `d = stable_hash("fit.bootstrap@<catchment id>")` ([`BOOTSTRAP_DIMENSION`]
+//!    without `@<id>` for a record built without a catchment id;
+//!    [`super::uncertainty::stable_hash`]). Resample `b` therefore depends only on
+//!    the seed, the catchment and `b` — not on `B` or on other catchments.
 //!
 //! # Symbols
 //! * `θ` — the fitted parameter: Zhang's `w` (dimensionless, allowed
@@ -75,15 +80,14 @@
 //!
 //! Hyndman, R. J., & Fan, Y. (1996). Sample quantiles in statistical packages.
 //! *The American Statistician*, 50(4), 361–365.
-//!
-//! Steele, G. L., Lea, D., & Flood, C. H. (2014). Fast splittable pseudorandom
-//! number generators. *OOPSLA 2014, ACM SIGPLAN Notices*, 49(10), 453–472.
-//! doi:10.1145/2660193.2660195
 
 use super::budyko::{mixed_et_mm, CoverCurves};
 use super::catchment::{Catchment, ClimateYear, ModelParams};
 use super::projection::starting_canopy_fraction;
 use super::roots::{brent_minimum, brent_root, RootError};
+use super::stats::percentile_sorted;
+use super::uncertainty::{stable_hash, stream};
+use rand::RngExt;
 use std::fmt;
 
 /// Allowed range of Zhang's `w` for fitting (the scenario file's range, `docs/scenario.md`).
@@ -101,6 +105,9 @@ pub const ROOT_TOL: f64 = 1e-12;
 pub const SERIES_TOL: f64 = 1e-10;
 /// Grid values scanned before the series fit's minimiser refines the best one.
 pub const GRID_POINTS: usize = 121;
+/// Key of the bootstrap's sampling dimension; a record with a catchment id uses
+/// `"fit.bootstrap@<id>"` ([`GaugeRecord::bootstrap_dimension`]).
+pub const BOOTSTRAP_DIMENSION: &str = "fit.bootstrap";
 
 /// Which cover's curve parameter is fitted.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -301,6 +308,7 @@ pub struct GaugeYear {
 /// from and which cover's parameter is fitted.
 #[derive(Debug, Clone, PartialEq)]
 pub struct GaugeRecord {
+    id: Option<String>,
     curves: CoverCurves,
     cover: Cover,
     canopy_fraction: f64,
@@ -426,7 +434,7 @@ impl GaugeRecord {
         if years.len() < MIN_YEARS {
             return Err(FitError::TooFewYears { available: years.len(), needed: MIN_YEARS, window_yr: 1 });
         }
-        Ok(GaugeRecord { curves, cover, canopy_fraction, years })
+        Ok(GaugeRecord { id: None, curves, cover, canopy_fraction, years })
     }
 
     /// The record of catchment `c` under `params`: its curves (with any earlier
@@ -448,7 +456,27 @@ impl GaugeRecord {
                 observed_yield_mm: q,
             })
             .collect();
-        GaugeRecord::new(*c.curves(params), cover, starting_canopy_fraction(c, params), years)
+        Ok(GaugeRecord::new(*c.curves(params), cover, starting_canopy_fraction(c, params), years)?.with_id(&c.id))
+    }
+
+    /// The same record labelled with catchment id `id`, which names the bootstrap's
+    /// sampling dimension (so catchments fitted with one seed get independent resamples).
+    pub fn with_id(self, id: &str) -> GaugeRecord {
+        GaugeRecord { id: Some(id.to_string()), ..self }
+    }
+
+    /// The catchment id, when the record has one ([`Self::for_catchment`], [`Self::with_id`]).
+    pub fn id(&self) -> Option<&str> {
+        self.id.as_deref()
+    }
+
+    /// Sampling dimension of the bootstrap for [`super::uncertainty::stream`]:
+    /// `stable_hash("fit.bootstrap@<id>")`, or `stable_hash("fit.bootstrap")` without an id.
+    pub fn bootstrap_dimension(&self) -> u64 {
+        match &self.id {
+            Some(id) => stable_hash(&format!("{BOOTSTRAP_DIMENSION}@{id}")),
+            None => stable_hash(BOOTSTRAP_DIMENSION),
+        }
     }
 
     /// The record years.
@@ -648,7 +676,8 @@ impl GaugeRecord {
     }
 
     /// Bootstrap percentile interval of the long-term mean fit: `samples`
-    /// resamples of the record years with replacement, seeded by `seed`.
+    /// resamples of the record years with replacement, seeded by `seed` (resample
+    /// `b` from `uncertainty::stream(seed, self.bootstrap_dimension(), b)`).
     pub fn bootstrap_mean(&self, samples: usize, seed: u64, level: f64) -> Result<BootstrapInterval, FitError> {
         if samples < 2 || !(level > 0.0 && level < 1.0) {
             return Err(FitError::InvalidBootstrap { samples, level });
@@ -656,15 +685,16 @@ impl GaugeRecord {
         self.check_sensitivity()?;
         let n = self.years.len();
         let (lo, hi) = self.bounds();
-        let mut rng = SplitMix64::new(seed);
+        let dimension = self.bootstrap_dimension();
         let mut fitted = Vec::with_capacity(samples);
         let mut at_bound = 0;
         let mut counts = vec![0usize; n];
         let mut pairs = Vec::with_capacity(n);
-        for _ in 0..samples {
+        for b in 0..samples {
+            let mut rng = stream(seed, dimension, b as u64);
             counts.iter_mut().for_each(|c| *c = 0);
             for _ in 0..n {
-                counts[rng.below(n)] += 1;
+                counts[rng.random_range(0..n)] += 1;
             }
             pairs.clear();
             pairs.extend(counts.iter().enumerate().filter(|(_, &c)| c > 0).map(|(i, &c)| (i, c)));
@@ -684,9 +714,9 @@ impl GaugeRecord {
         fitted.sort_by(f64::total_cmp);
         Ok(BootstrapInterval {
             level,
-            low: quantile_sorted(&fitted, (1.0 - level) / 2.0),
-            high: quantile_sorted(&fitted, (1.0 + level) / 2.0),
-            median: quantile_sorted(&fitted, 0.5),
+            low: percentile_sorted(&fitted, (1.0 - level) / 2.0),
+            high: percentile_sorted(&fitted, (1.0 + level) / 2.0),
+            median: percentile_sorted(&fitted, 0.5),
             samples,
             at_bound,
             seed,
@@ -699,52 +729,6 @@ impl GaugeRecord {
         let series = self.fit_series(s.moving_average_yr)?;
         let interval = if s.bootstrap_samples > 0 { Some(self.bootstrap_mean(s.bootstrap_samples, s.seed, s.level)?) } else { None };
         Ok(CatchmentFit { key: self.key(), scenario_value: self.scenario_value(), mean, series, interval })
-    }
-}
-
-/// Quantile `p` of sorted values, linear interpolation between order statistics
-/// at `h = (n − 1)·p` (Hyndman & Fan 1996, definition 7). `sorted` must be non-empty.
-pub fn quantile_sorted(sorted: &[f64], p: f64) -> f64 {
-    let n = sorted.len();
-    if n == 1 {
-        return sorted[0];
-    }
-    let h = (n - 1) as f64 * p.clamp(0.0, 1.0);
-    let i = h.floor() as usize;
-    let j = (i + 1).min(n - 1);
-    sorted[i] + (h - i as f64) * (sorted[j] - sorted[i])
-}
-
-/// SplitMix64 pseudo-random numbers (Steele, Lea & Flood 2014): small, fast,
-/// fully reproducible from a 64-bit seed. Not for cryptography.
-#[derive(Debug, Clone)]
-pub struct SplitMix64 {
-    state: u64,
-}
-
-impl SplitMix64 {
-    /// A generator seeded with `seed`.
-    pub fn new(seed: u64) -> SplitMix64 {
-        SplitMix64 { state: seed }
-    }
-
-    /// The next 64 random bits.
-    pub fn next_u64(&mut self) -> u64 {
-        self.state = self.state.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.state;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-
-    /// A uniform index in `0..n` (`n > 0`): the high 64 bits of `next_u64() · n`.
-    pub fn below(&mut self, n: usize) -> usize {
-        ((self.next_u64() as u128 * n as u128) >> 64) as usize
-    }
-
-    /// A uniform number in `[0, 1)` with 53 random bits.
-    pub fn next_f64(&mut self) -> f64 {
-        (self.next_u64() >> 11) as f64 * (1.0 / (1u64 << 53) as f64)
     }
 }
 
@@ -768,28 +752,6 @@ mod tests {
     }
 
     #[test]
-    fn splitmix64_matches_published_sequence() {
-        // Source: SplitMix64 reference sequence for seed 1234567 (Rosetta Code task
-        // "Pseudo-random numbers/Splitmix64", generated with Vigna's splitmix64.c).
-        let mut r = SplitMix64::new(1234567);
-        let expected = [6457827717110365317u64, 3203168211198807973, 9817491932198370423, 4593380528125082431, 16408922859458223821];
-        for e in expected {
-            assert_eq!(r.next_u64(), e);
-        }
-    }
-
-    #[test]
-    fn indices_are_uniform() {
-        // Common practice, no published source: a chi-square-style sanity bound on 60 000 draws.
-        let mut r = SplitMix64::new(7);
-        let mut c = [0usize; 6];
-        for _ in 0..60_000 {
-            c[r.below(6)] += 1;
-        }
-        assert!(c.iter().all(|&k| (9_500..=10_500).contains(&k)), "{c:?}");
-    }
-
-    #[test]
     fn windows_join_only_consecutive_years() {
         let mut r = record(0.7, 0.1);
         r.years.remove(5); // 2005 left out: runs 2000–2004 and 2006–2011
@@ -800,20 +762,44 @@ mod tests {
     }
 
     #[test]
-    fn quantiles_interpolate() {
-        // Source: Hyndman & Fan (1996), definition 7 (numpy's default "linear").
-        let v = [1.0, 2.0, 3.0, 4.0];
-        assert_abs_diff_eq!(quantile_sorted(&v, 0.5), 2.5, epsilon = 1e-15);
-        assert_abs_diff_eq!(quantile_sorted(&v, 0.25), 1.75, epsilon = 1e-15);
-        assert_eq!(quantile_sorted(&v, 1.0), 4.0);
-    }
-
-    #[test]
     fn mean_and_series_fits_recover_the_generating_value() {
         let r = record(0.83, 0.2);
         assert_abs_diff_eq!(r.fit_mean().unwrap().value, 0.83, epsilon = 1e-9);
         assert_abs_diff_eq!(r.fit_series(1).unwrap().value, 0.83, epsilon = 1e-6);
         assert_abs_diff_eq!(r.fit_series(3).unwrap().value, 0.83, epsilon = 1e-6);
+    }
+
+    #[test]
+    fn bootstrap_stream_is_named_by_the_catchment() {
+        let r = GaugeRecord::new(CoverCurves::ZHANG_DEFAULT, Cover::Grass, 0.2, noisy_years()).unwrap();
+        assert_eq!(r.id(), None);
+        assert_eq!(r.bootstrap_dimension(), stable_hash("fit.bootstrap"));
+        let a = r.clone().with_id("upper");
+        assert_eq!(a.id(), Some("upper"));
+        assert_eq!(a.bootstrap_dimension(), stable_hash("fit.bootstrap@upper"));
+        // Same seed, same catchment: the same interval; another catchment id (or
+        // seed) draws other resamples.
+        let ia = a.bootstrap_mean(200, 5, 0.9).unwrap();
+        assert_eq!(ia, a.bootstrap_mean(200, 5, 0.9).unwrap());
+        let ib = r.clone().with_id("lower").bootstrap_mean(200, 5, 0.9).unwrap();
+        assert_ne!((ia.low, ia.high), (ib.low, ib.high));
+        let ic = a.bootstrap_mean(200, 6, 0.9).unwrap();
+        assert_ne!((ia.low, ia.high), (ic.low, ic.high));
+        assert!(ia.low < ia.high && ia.low <= ia.median && ia.median <= ia.high, "{ia:?}");
+    }
+
+    /// Twelve years whose yields do not lie on one curve, so resamples differ.
+    fn noisy_years() -> Vec<GaugeYear> {
+        let truth = CoverCurves::Zhang { w_forest: 2.0, w_grass: 0.8 };
+        (0..12)
+            .map(|t| {
+                let rain_mm = 900.0 + 90.0 * ((t * 7) % 11) as f64;
+                let pet_mm = 850.0 - 4.0 * t as f64;
+                let et = mixed_et_mm(&truth, rain_mm, pet_mm * 1.1, pet_mm, 0.2);
+                let wiggle_mm = 40.0 * (((t * 5) % 7) as f64 - 3.0) / 3.0;
+                GaugeYear { year: 2000 + t, rain_mm, pet_mm, pet_forest_mm: pet_mm * 1.1, observed_yield_mm: rain_mm - et + wiggle_mm }
+            })
+            .collect()
     }
 
     #[test]

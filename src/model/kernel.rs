@@ -1,8 +1,41 @@
 //! A lean no-control projection for ensembles: the same equations as
-//! [`super::projection::project_catchment`] (and tested to give the same numbers),
-//! computing only what ensemble statistics need, into reusable buffers, with two
-//! curve evaluations per year (ET of a mixed cover is linear in the canopy
-//! fraction, so the baseline needs no extra evaluation).
+//! [`super::projection::project_catchment`] (and tested to give the same numbers,
+//! `tests/ensemble.rs`), computing only what ensemble statistics need, into
+//! reusable buffers, with two curve evaluations per year (ET of a mixed cover is
+//! linear in the canopy fraction, so the baseline needs no extra evaluation).
+//!
+//! # Formula
+//! The equations are those documented in [`super::projection`], [`super::cover`],
+//! [`super::closure`] and [`super::dilution`], evaluated inline here for speed. For
+//! year `t`:
+//! * `f_t = clamp((F + Σ_a A_a·closure(a)) / A, 0, 1)`; `f_0` is the start year's.
+//! * `ET_t = f_t·ET_forest(P_t, E0f_t) + (1 − f_t)·ET_grass(P_t, E0_t)` and the
+//!   baseline `ET⁰_t` with `f_0`; `Q_t = max(0, P_t − ET_t)` (Zhang et al. 2001 mixing).
+//! * Load of contaminant `j`: `L_t = A·[f_t·e_forest + (1 − f_t)·e_open] + L_point`, kg/yr.
+//! * New infestation `ΔI_t` by [`super::cover::new_infestation_ha`]; the infested
+//!   area `I` and seed-bearing area `S` are running sums:
+//!   `I ← I + ΔI_t`, `S ← S + (area of the cohort that has just reached a_seed)`.
+//! * [`concentration`]: `C = 1000·L / (10·Q·A)` mg/L (as
+//!   [`super::dilution::concentration_mg_per_l`]), not stated when `Q < Q_min`.
+//!
+//! # Symbols
+//! * `A` — catchment area, ha, > 0; `F` — existing forest, ha, 0–`A`; `A_a` — infested
+//!   area of age `a`, ha, ≥ 0.
+//! * `P_t`, `E0_t`, `E0f_t` — rainfall, grass PET and forest PET, mm/yr, ≥ 0.
+//! * `e_open`, `e_forest` — export coefficients, kg/ha/yr, ≥ 0; `L_point` — point
+//!   load, kg/yr, ≥ 0.
+//! * `Q_min` — minimum runoff for a concentration, mm/yr, ≥ 0; `a_seed` — seed-bearing
+//!   age, years.
+//!
+//! # Assumptions
+//! No control: the cover only ages and spreads. Closure is read at whole years of
+//! age. Everything else as in [`super::projection`].
+//!
+//! # References
+//! Zhang, L., Dawes, W. R., & Walker, G. R. (2001). Response of mean annual
+//! evapotranspiration to vegetation changes at catchment scale. *Water Resources
+//! Research*, 37(3), 701–708. doi:10.1029/2000WR900325 (the cover mixing; the other
+//! equations' sources are given in the files named above).
 
 use super::budyko::CoverCurves;
 use super::catchment::{Catchment, ClimateYear, ModelParams};

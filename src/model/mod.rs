@@ -4,6 +4,24 @@
 //! Data flows `catchment + climate + parameters → cover → canopy fraction →
 //! evapotranspiration → yield → loads and concentrations → summaries`.
 //! Each formulation lives in its own file with its formula, units and reference.
+//!
+//! # Formula
+//! None here: every equation is stated, with its source, in the file that
+//! computes it ([`budyko`] for the water-balance curves, [`pet`] for evaporative
+//! demand, [`cover`] and [`closure`] for the invading stand, [`dilution`] for loads
+//! and concentrations, [`projection`] for the year-by-year chain).
+//!
+//! # Symbols
+//! Units are part of every quantity's name: `_mm` (mm or mm/yr of water depth),
+//! `_ha` (hectares), `_m3` (m³), `_kg_per_yr`, `_mg_per_l`, `_yr` (years), `_pct`
+//! (%); fractions are 0–1. Each file lists its own symbols and ranges.
+//!
+//! # Assumptions
+//! The model trusts its inputs: [`crate::io`] reads and range-checks them. The model
+//! imports only `std`, `rand`, `rand_chacha` and `statrs`.
+//!
+//! # References
+//! Given in each file.
 
 pub mod basin;
 pub mod budyko;

@@ -6,8 +6,21 @@
 //! `V_n = Σ_{i∈U(n)} V_i`, `L_n = Σ_{i∈U(n)} L_i`, `C_n = 1000·L_n/V_n`.
 //! Mass is conserved: loads and volumes are only summed, never lost.
 //!
+//! Downstream order by Kahn's (1962) topological sort: catchments with nothing
+//! draining into them first; a catchment is ordered once everything upstream of it is.
+//! Catchments left unordered lie on a cycle.
+//!
+//! # Symbols
+//! * `n`, `i` — catchment indices `0..N`; `U(n)` — upstream set of `n`, itself included.
+//! * `V_i` — runoff volume, m³/yr, ≥ 0; `L_i` — load, kg/yr, ≥ 0; `C_n` — concentration, mg/L.
+//!
 //! # Assumptions
-//! No in-stream losses, abstractions or travel time; annual totals only.
+//! No in-stream losses, abstractions or travel time; annual totals only. Each
+//! catchment drains into at most one other, never into itself (a forest of trees).
+//!
+//! # References
+//! Kahn, A. B. (1962). Topological sorting of large networks. *Communications of
+//! the ACM*, 5(11), 558–562.
 
 /// A validated drainage network over catchments `0..n`.
 #[derive(Debug, Clone)]

@@ -3,17 +3,34 @@
 //! # Formula
 //! For each year `t` (0 = start year, the current cover):
 //! 1. Cover: cohorts age and spread ([`super::cover`]).
-//! 2. Canopy fraction `f_t = (F + Σ_a A_a·closure(a)) / A` ([`super::closure`]).
+//! 2. Canopy fraction `f_t = clamp((F + Σ_a A_a·closure(a)) / A, 0, 1)` ([`super::closure`]).
 //! 3. `ET_t = f_t·ET_forest(P_t, E0f_t) + (1 − f_t)·ET_grass(P_t, E0_t)` ([`super::budyko`]).
-//! 4. Yield `Q_t = P_t − ET_t` (mm), volume `V_t = 10·Q_t·A` (m³).
+//! 4. Yield `Q_t = max(0, P_t − ET_t)` (mm), volume `V_t = 10·Q_t·A` (m³).
 //! 5. Baseline: the same climate with the starting cover `f_0` held fixed;
 //!    change `100·(Q_t − Q_base,t)/Q_base,t` %. Uninvaded: `f = F/A`.
 //! 6. Loads and concentrations ([`super::dilution`]).
 //!
 //! # Symbols
-//! `A` catchment area (ha), `F` existing non-spreading forest (ha), `A_a` infested
-//! area of age `a` (ha), `P_t`, `E0_t` the year's rainfall and grass PET (mm/yr),
-//! `E0f_t` forest PET (mm/yr).
+//! * `A` — catchment area, ha, > 0; `F` — existing non-spreading forest, ha, 0–`A`.
+//! * `A_a` — infested area of age `a` (years), ha, ≥ 0; `closure(a)` — 0–1.
+//! * `P_t`, `E0_t` — the year's rainfall and grass PET, mm/yr, ≥ 0; `E0f_t` — forest
+//!   PET, mm/yr ([`super::catchment::Catchment::forest_pet_mm`]).
+//! * `f_t` — ET-equivalent canopy fraction, 0–1; `Q_t`, `ET_t` — mm/yr.
+//!
+//! # Assumptions
+//! * A mean-annual curve applied year by year ignores storage carry-over between
+//!   years; annual values are indicative, long-term changes are the result.
+//! * The baseline holds the starting cover, so the change measures the effect of
+//!   spread (and control) from the start year on; the uninvaded comparison measures
+//!   the total effect of the invader, including what is already there.
+//! * Cover acts on evapotranspiration only through the canopy fraction; the year's
+//!   results use the cover at the start of the year.
+//!
+//! # References
+//! Zhang, L., Dawes, W. R., & Walker, G. R. (2001). Response of mean annual
+//! evapotranspiration to vegetation changes at catchment scale. *Water Resources
+//! Research*, 37(3), 701–708. doi:10.1029/2000WR900325 (cover mixing, step 3).
+//! The sources of the other steps are given in the files they link to.
 
 use super::budyko::mixed_et_mm;
 use super::catchment::{Catchment, ClimateYear, ModelParams};

@@ -20,7 +20,8 @@
 //!   `t = √ε·|x| + tol/3`.
 //!
 //! # Symbols
-//! * `a`, `b` — ends of the bracket (any order for the root; `a < b` for the minimum).
+//! * `a`, `b` — ends of the bracket, finite (any order but `a ≠ b` for the root;
+//!   `a < b` for the minimum); an empty bracket is [`RootError::EmptyBracket`].
 //! * `tol` — absolute tolerance in `x`, > 0.
 //!
 //! # Assumptions
@@ -59,8 +60,17 @@ pub enum RootError {
         /// `f(b)`.
         fb: f64,
     },
-    /// A bracket end, the tolerance or a function value is not a finite number.
+    /// A bracket end, the tolerance or a function value is not a finite number
+    /// (or the tolerance is not positive).
     NotFinite,
+    /// The bracket is empty or degenerate: `a == b` for the root finder, `a ≥ b`
+    /// for the minimiser (which needs `a < b`).
+    EmptyBracket {
+        /// The first bracket end given.
+        a: f64,
+        /// The second bracket end given.
+        b: f64,
+    },
     /// [`MAX_ITERATIONS`] evaluations were made without meeting the tolerance.
     NoConvergence {
         /// Best point so far.
@@ -74,7 +84,12 @@ impl fmt::Display for RootError {
             RootError::NotBracketed { fa, fb } => {
                 write!(f, "the bracket holds no sign change (f(a) = {fa}, f(b) = {fb})")
             }
-            RootError::NotFinite => write!(f, "a bracket end, the tolerance or a function value is not finite"),
+            RootError::NotFinite => {
+                write!(f, "a bracket end, the tolerance or a function value is not finite (or the tolerance is not positive)")
+            }
+            RootError::EmptyBracket { a, b } => {
+                write!(f, "the bracket [{a}, {b}] is empty: its ends must differ (and, for a minimum, the first must be below the second)")
+            }
             RootError::NoConvergence { x } => {
                 write!(f, "no convergence after {MAX_ITERATIONS} evaluations (best point {x})")
             }
@@ -86,11 +101,14 @@ impl std::error::Error for RootError {}
 
 /// A root of `f` in the bracket `[a, b]` (Brent 1973, ch. 4), to absolute tolerance `tol`.
 ///
-/// Requires `f(a)·f(b) ≤ 0`. The result lies in the bracket and within
-/// `4·ε·|x| + tol` of a sign change of `f`.
+/// Requires `a ≠ b` (either order) and `f(a)·f(b) ≤ 0`. The result lies in the
+/// bracket and within `4·ε·|x| + tol` of a sign change of `f`.
 pub fn brent_root(mut f: impl FnMut(f64) -> f64, a: f64, b: f64, tol: f64) -> Result<Solution, RootError> {
     if !(a.is_finite() && b.is_finite() && tol.is_finite() && tol > 0.0) {
         return Err(RootError::NotFinite);
+    }
+    if a == b {
+        return Err(RootError::EmptyBracket { a, b });
     }
     let (mut a, mut b) = (a, b);
     let mut fa = f(a);
@@ -187,8 +205,11 @@ pub fn brent_root(mut f: impl FnMut(f64) -> f64, a: f64, b: f64, tol: f64) -> Re
 /// Requires `a < b`. The minimum found lies inside the interval; when the function
 /// decreases towards an end, the result is within about `tol` of that end.
 pub fn brent_minimum(mut f: impl FnMut(f64) -> f64, a: f64, b: f64, tol: f64) -> Result<Solution, RootError> {
-    if !(a.is_finite() && b.is_finite() && tol.is_finite() && tol > 0.0 && a < b) {
+    if !(a.is_finite() && b.is_finite() && tol.is_finite() && tol > 0.0) {
         return Err(RootError::NotFinite);
+    }
+    if a >= b {
+        return Err(RootError::EmptyBracket { a, b });
     }
     // Golden-section ratio (3 − √5)/2 and the square root of machine epsilon.
     let golden = 0.5 * (3.0 - 5f64.sqrt());
@@ -310,6 +331,21 @@ mod tests {
     fn no_sign_change_is_an_error() {
         assert!(matches!(brent_root(|x| x * x + 1.0, -1.0, 1.0, 1e-9), Err(RootError::NotBracketed { .. })));
         assert!(matches!(brent_root(|x| x, f64::NAN, 1.0, 1e-9), Err(RootError::NotFinite)));
+    }
+
+    #[test]
+    fn empty_brackets_are_their_own_error() {
+        // A zero-width bracket holds no interval to search, even where f is zero.
+        assert_eq!(brent_root(|x| x, 0.0, 0.0, 1e-9), Err(RootError::EmptyBracket { a: 0.0, b: 0.0 }));
+        assert_eq!(brent_root(|x| x - 1.0, 2.0, 2.0, 1e-9), Err(RootError::EmptyBracket { a: 2.0, b: 2.0 }));
+        // The minimiser needs a < b: equal or reversed ends are empty brackets.
+        assert_eq!(brent_minimum(|x| x * x, 1.0, 1.0, 1e-9), Err(RootError::EmptyBracket { a: 1.0, b: 1.0 }));
+        assert_eq!(brent_minimum(|x| x * x, 1.0, -1.0, 1e-9), Err(RootError::EmptyBracket { a: 1.0, b: -1.0 }));
+        let msg = RootError::EmptyBracket { a: 1.0, b: -1.0 }.to_string();
+        assert!(msg.contains("[1, -1] is empty") && !msg.contains("not finite"), "{msg}");
+        // Non-finite ends are still reported as such, before the bracket is checked.
+        assert_eq!(brent_minimum(|x| x, f64::NAN, f64::NAN, 1e-9), Err(RootError::NotFinite));
+        assert_eq!(brent_minimum(|x| x, 0.0, 1.0, 0.0), Err(RootError::NotFinite));
     }
 
     #[test]

@@ -10,13 +10,40 @@
 //!   output on the inputs, each standardised to zero mean and unit variance
 //!   (Saltelli et al. 2008, §1.2.5); for independent inputs `Σ SRC² ≈ R²`.
 //!
+//! # Symbols
+//! * `x₁ ≤ … ≤ xₙ` — a sorted sample of any unit; `n` — sample size; `p` — probability, 0–1.
+//! * `ρ` — Spearman rank correlation, −1–1.
+//! * SRC — standardised regression coefficient of an input, dimensionless (−1–1 for
+//!   independent inputs); `R²` — coefficient of determination, 0–1.
+//!
+//! # Assumptions
+//! * Standard deviations use the `n − 1` divisor; a constant sample has no
+//!   correlation or SRC (`None`), never NaN.
+//! * SRC describe a linear fit; for a non-linear model with independent inputs,
+//!   `1 − Σ SRC²` is about the share of output variance the linear fit leaves unexplained.
+//!
 //! # References
 //! Hyndman, R. J., & Fan, Y. (1996). Sample quantiles in statistical packages.
 //! *The American Statistician*, 50(4), 361–365.
-//! Saltelli, A., et al. (2008). *Global Sensitivity Analysis: The Primer*. Wiley.
+//!
+//! Spearman, C. (1904). The proof and measurement of association between two
+//! things. *The American Journal of Psychology*, 15(1), 72–101.
+//!
+//! Saltelli, A., Ratto, M., Andres, T., Campolongo, F., Cariboni, J., Gatelli, D.,
+//! Saisana, M., & Tarantola, S. (2008). *Global Sensitivity Analysis: The Primer*.
+//! John Wiley & Sons, Chichester.
 
-/// Percentile `p` (0–1) of an already sorted sample (Hyndman & Fan type 7).
-/// Returns NaN for an empty sample.
+/// Quantile `p` (0–1) of an already sorted (ascending) sample: Hyndman & Fan (1996)
+/// definition 7, linear interpolation between order statistics.
+///
+/// With `n` values `x₁ ≤ … ≤ xₙ`: `h = (n − 1)·p`, `j = ⌊h⌋`,
+/// `Q(p) = x_{j+1} + (h − j)·(x_{j+2} − x_{j+1})` (1-based; `x_{n+1} := xₙ`). So
+/// `Q(0) = x₁`, `Q(1) = xₙ`, and `Q` is continuous and non-decreasing in `p`.
+/// `p` outside 0–1 is clamped into it; a NaN `p` gives NaN. A single value is
+/// returned for every `p`; an empty sample gives NaN (never a panic).
+///
+/// This is the one sample-quantile function of the model: ensemble percentiles and
+/// the fit's bootstrap interval ([`super::fit`]) both use it.
 pub fn percentile_sorted(sorted: &[f64], p: f64) -> f64 {
     match sorted.len() {
         0 => f64::NAN,
@@ -143,6 +170,19 @@ mod tests {
         assert_abs_diff_eq!(percentile_sorted(&x, 0.25), 3.25, epsilon = 1e-12);
         assert_abs_diff_eq!(percentile_sorted(&x, 0.95), 9.55, epsilon = 1e-12);
         assert_abs_diff_eq!(percentile_sorted(&x, 0.5), 5.5, epsilon = 1e-12);
+        // Source: Hyndman & Fan (1996) definition 7 by hand: for 1, 2, 3, 4,
+        // h = 3p, so p = 0.25 → 1.75 and p = 0.5 → 2.5; the ends are the extremes.
+        let v = [1.0, 2.0, 3.0, 4.0];
+        assert_abs_diff_eq!(percentile_sorted(&v, 0.5), 2.5, epsilon = 1e-15);
+        assert_abs_diff_eq!(percentile_sorted(&v, 0.25), 1.75, epsilon = 1e-15);
+        assert_eq!(percentile_sorted(&v, 0.0), 1.0);
+        assert_eq!(percentile_sorted(&v, 1.0), 4.0);
+        // Out-of-range p is clamped; one value answers every p; empty is NaN, not a panic.
+        assert_eq!(percentile_sorted(&v, -0.5), 1.0);
+        assert_eq!(percentile_sorted(&v, 1.5), 4.0);
+        assert_eq!(percentile_sorted(&[7.0], 0.3), 7.0);
+        assert!(percentile_sorted(&[], 0.5).is_nan());
+        assert!(percentile_sorted(&v, f64::NAN).is_nan());
     }
 
     #[test]

@@ -1,5 +1,40 @@
 //! Summaries of a projection: change at fixed horizons, first guideline exceedance,
 //! and downstream sums at receiving nodes.
+//!
+//! # Formula
+//! For one catchment's projection, years `t = 0..n−1`:
+//! * Yield change at offset `t ∈ {10, 20, 50}` ([`REPORT_OFFSETS_YR`]) and at the
+//!   last year: `100·(Q_t − Q_base,t) / Q_base,t` %, and against the uninvaded
+//!   catchment `100·(Q_t − Q_u,t) / Q_u,t` % ([`super::projection::percent_change`]).
+//! * Water lost in the last year: `W = 10·(Q_base − Q)·A`, m³/yr (positive = less water).
+//! * First exceedance of contaminant `j`: the first year with a stated concentration
+//!   `C_j,t > G_j`.
+//!
+//! At a receiving node `m` with upstream set `U(m)` (itself included,
+//! [`super::network::Network::accumulate`]):
+//! * `A_m = Σ_{i∈U(m)} A_i` (ha), `V_m = Σ V_i` and `V_base,m = Σ 10·Q_base,i·A_i`
+//!   (m³/yr), `L_m = Σ L_i` (kg/yr);
+//! * flow-weighted concentration `C_m = 1000·L_m / V_m` mg/L, not stated when the
+//!   depth `V_m / (10·A_m)` is below the minimum runoff
+//!   ([`super::dilution::concentration_mg_per_l`]).
+//!
+//! # Symbols
+//! * `Q_t`, `Q_base,t`, `Q_u,t` — yield, baseline yield (starting cover held) and
+//!   uninvaded yield, mm/yr, ≥ 0.
+//! * `A` — catchment area, ha, > 0; `V` — runoff volume, m³/yr, ≥ 0; `L` — load, kg/yr, ≥ 0.
+//! * `C` — concentration, mg/L, ≥ 0; `G` — guideline, mg/L (optional).
+//!
+//! # Assumptions
+//! * A change against a zero reference is not stated (`None`), not infinite.
+//! * Years whose concentration could not be stated (low runoff) never count as an
+//!   exceedance; they are counted separately.
+//! * Node sums are annual and conservative: no in-stream loss, abstraction or travel
+//!   time (as in [`super::network`]); flows are fully mixed at the node.
+//!
+//! # References
+//! Common practice, no published source: these summaries are sums and ratios of
+//! the projection's own results; the dilution relation is referenced in
+//! [`super::dilution`].
 
 use super::catchment::{Catchment, Contaminant};
 use super::dilution::{self, ConcentrationFlag};

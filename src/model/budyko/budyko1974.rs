@@ -3,6 +3,14 @@
 //! # Formula
 //! `ET/P = [φ · tanh(1/φ) · (1 − exp(−φ))]^(1/2)`, `φ = E0/P`.
 //!
+//! # Symbols
+//! * `φ = E0/P` — aridity index, dimensionless, ≥ 0 (`+∞` allowed: ratio 1).
+//! * `ET/P` — evaporative ratio, 0–`min(1, φ)`.
+//!
+//! # Assumptions
+//! Long-term means; no parameter, so no vegetation effect. The result is clamped to
+//! the physical limits `0 ≤ ET/P ≤ min(1, φ)`.
+//!
 //! # References
 //! Budyko, M. I. (1974). *Climate and Life*. Academic Press, New York, 508 pp.
 

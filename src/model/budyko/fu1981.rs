@@ -11,7 +11,13 @@
 //!
 //! # Symbols
 //! * `ω` — shape parameter, dimensionless, > 1 (larger ω: more evaporation; ω ≈ 2.6
-//!   follows Budyko's 1974 curve closely). Sensible range 1.1–10.
+//!   follows Budyko's 1974 curve closely, Zhang et al. 2004). The scenario accepts
+//!   1.01–20; 1.1–10 covers most catchments.
+//! * `φ = E0/P` — aridity index, dimensionless, ≥ 0 (`+∞` allowed: ratio 1).
+//!
+//! # Assumptions
+//! Long-term means; applied to single years it ignores storage carry-over. The
+//! result is clamped to the physical limits `0 ≤ ET/P ≤ min(1, φ)`.
 //!
 //! # References
 //! Fu, B. P. (1981). On the calculation of the evaporation from land surface.

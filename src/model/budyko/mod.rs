@@ -9,11 +9,22 @@
 //! * [`Fu1981`] — Fu (1981), one parameter `ω`.
 //! * [`Budyko1974`] — Budyko's original parameter-free curve (used as a reference).
 //!
+//! # Formula
+//! Each curve gives the evaporative ratio `r(φ) = ET/P` (its own file, with its
+//! equation). From it, for every curve ([`WaterBalance`]):
+//! * `ET = clamp(P·r(E0/P), 0, min(P, E0))`, and `ET = 0` when `P` or `E0` is 0;
+//! * `Q = max(0, P − ET)`.
+//!
+//! For a catchment with forest fraction `f` ([`mixed_et_mm`]):
+//! `ET = f·ET_forest(P, E0_forest) + (1 − f)·ET_grass(P, E0_grass)` (Zhang, Dawes &
+//! Walker 2001).
+//!
 //! # Symbols
 //! * `P` — precipitation, mm/yr, ≥ 0.
 //! * `E0` — potential evapotranspiration (evaporative demand), mm/yr, ≥ 0.
 //! * `φ = E0/P` — aridity index, dimensionless.
 //! * `ET` — actual evapotranspiration, mm/yr; `Q = P − ET` is water yield, mm/yr.
+//! * `f` — ET-equivalent forest (canopy) fraction, 0–1.
 //!
 //! # Invariants (tested for every curve)
 //! `0 ≤ ET ≤ min(P, E0)`; `ET/P → 1` as `φ → ∞`; `ET → E0` as `φ → 0`;
@@ -22,7 +33,18 @@
 //! # Assumptions
 //! The curves describe long-term means. Applying them year by year ignores
 //! storage carry-over between years (soil moisture, groundwater); annual values
-//! are indicative only.
+//! are indicative only. Forest and grass parts of a catchment share its rainfall
+//! and do not exchange water.
+//!
+//! # References
+//! Zhang, L., Dawes, W. R., & Walker, G. R. (2001). Response of mean annual
+//! evapotranspiration to vegetation changes at catchment scale. *Water Resources
+//! Research*, 37(3), 701–708. doi:10.1029/2000WR900325
+//!
+//! Fu, B. P. (1981). On the calculation of the evaporation from land surface.
+//! *Scientia Atmospherica Sinica*, 5(1), 23–31 (in Chinese).
+//!
+//! Budyko, M. I. (1974). *Climate and Life*. Academic Press, New York, 508 pp.
 
 mod budyko1974;
 mod fu1981;

@@ -21,6 +21,27 @@
 //! in `crate::input::weather` does this and reports every bad cell); the functions
 //! still return finite numbers for any finite input within the documented ranges.
 //!
+//! # Formula
+//! The methods' equations are in their files. Defined here:
+//! * Gregorian leap year: divisible by 4 and not by 100, or divisible by 400.
+//! * Day of the year `J` as FAO-56 uses it: the days of the months before `month`
+//!   plus `day` (1 on 1 January, 365 or 366 on 31 December).
+//! * Day of a monthly record: `J` of the 15th of the month (FAO-56 Example 17
+//!   evaluates April's radiation on 15 April, `J = 105`).
+//!
+//! # Symbols
+//! | symbol | meaning | unit | valid range here |
+//! |---|---|---|---|
+//! | `ET0` | grass reference evapotranspiration | mm/day | usually ≥ 0; Penman–Monteith and Priestley–Taylor return net condensation as negative, Hargreaves returns 0 |
+//! | latitude `φ` | site latitude, south negative | decimal degrees | −90..=90 |
+//! | `z` | site elevation above sea level | m | −500..=9000 |
+//! | `a_s`, `b_s` | Ångström coefficients (FAO-56 eq. 35) | – | each in (0, 1), `a_s + b_s ≤ 1`; FAO-56 default 0.25, 0.50 |
+//! | `J` | day of the year | – | 1..=366 |
+//!
+//! # Assumptions
+//! * Dates are Gregorian; the caller checks that a date exists.
+//! * A monthly record's radiation terms are those of the middle of the month.
+//!
 //! # References
 //! Allen, R. G., Pereira, L. S., Raes, D., & Smith, M. (1998). *Crop
 //! evapotranspiration — Guidelines for computing crop water requirements.* FAO
@@ -72,16 +93,13 @@ impl fmt::Display for PetMethod {
 }
 
 /// Why a [`Site`] could not be built. Each message states the rule.
-#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[derive(Debug, Clone, PartialEq)]
 pub enum SiteError {
     /// Latitude outside −90..=90 degrees or not finite.
-    #[error("latitude {0} is not allowed: it must be a finite number of degrees in -90..=90 (south negative)")]
     Latitude(f64),
     /// Elevation outside −500..=9000 m or not finite.
-    #[error("elevation {0} m is not allowed: it must be a finite number of metres above sea level in -500..=9000")]
     Elevation(f64),
     /// Ångström coefficients outside their physical range.
-    #[error("Angstrom coefficients a_s = {a_s}, b_s = {b_s} are not allowed: each must be in 0..1 and a_s + b_s must be in 0..=1")]
     Angstrom {
         /// The rejected `a_s`.
         a_s: f64,
@@ -89,6 +107,25 @@ pub enum SiteError {
         b_s: f64,
     },
 }
+
+impl fmt::Display for SiteError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            SiteError::Latitude(v) => {
+                write!(f, "latitude {v} is not allowed: it must be a finite number of degrees in -90..=90 (south negative)")
+            }
+            SiteError::Elevation(v) => {
+                write!(f, "elevation {v} m is not allowed: it must be a finite number of metres above sea level in -500..=9000")
+            }
+            SiteError::Angstrom { a_s, b_s } => write!(
+                f,
+                "Angstrom coefficients a_s = {a_s}, b_s = {b_s} are not allowed: each must be in 0..1 and a_s + b_s must be in 0..=1"
+            ),
+        }
+    }
+}
+
+impl std::error::Error for SiteError {}
 
 /// Where the weather was observed: what the radiation and pressure equations need.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -207,6 +244,13 @@ mod tests {
         assert!(Site::new(0.0, 10_000.0, a).is_err());
         assert!(Site::new(0.0, 0.0, Angstrom { a_s: 0.6, b_s: 0.5 }).is_err());
         assert!(Site::new(0.0, 0.0, Angstrom { a_s: 0.0, b_s: 0.5 }).is_err());
+        // The messages state the rule broken.
+        assert_eq!(
+            SiteError::Latitude(91.0).to_string(),
+            "latitude 91 is not allowed: it must be a finite number of degrees in -90..=90 (south negative)"
+        );
+        assert!(SiteError::Elevation(1e4).to_string().contains("in -500..=9000"));
+        assert!(SiteError::Angstrom { a_s: 0.6, b_s: 0.5 }.to_string().contains("a_s + b_s must be in 0..=1"));
     }
 
     #[test]
