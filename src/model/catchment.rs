@@ -1,7 +1,7 @@
 //! Validated model inputs: catchments, contaminants, climate and model parameters.
 //!
 //! These are plain data. Reading them from files (and checking units and ranges)
-//! is the job of [`crate::io`]; the model trusts what it is given here.
+//! is the job of [`crate::input`]; the model trusts what it is given here.
 //!
 //! # Formula
 //! Two small relations are defined here:
@@ -11,7 +11,7 @@
 //! * Canopy fraction with no invader at all: `f_u = clamp(F / A, 0, 1)`.
 //!
 //! # Symbols
-//! Ranges are those the input readers accept (`crate::io`).
+//! Ranges are those the input readers accept (`crate::input`).
 //! * `A` — catchment area, ha, > 0 (up to 10⁹).
 //! * `P̄` — long-term mean rainfall, mm/yr, 1–20 000.
 //! * `E0̄`, `E0f̄` — long-term mean PET over grass/tussock and (optional) over

@@ -17,7 +17,7 @@
 //! (%); fractions are 0–1. Each file lists its own symbols and ranges.
 //!
 //! # Assumptions
-//! The model trusts its inputs: [`crate::io`] reads and range-checks them. The model
+//! The model trusts its inputs: [`crate::input`] reads and range-checks them. The model
 //! imports only `std`, `rand`, `rand_chacha` and `statrs`.
 //!
 //! # References
