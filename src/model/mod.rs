@@ -34,6 +34,7 @@ pub mod dilution;
 pub mod economics;
 pub mod exact;
 pub mod fit;
+pub mod interception;
 pub mod kernel;
 pub mod network;
 pub mod pet;
