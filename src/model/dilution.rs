@@ -162,20 +162,27 @@ pub fn concentration_from_depth_mg_per_l(load_kg_per_ha_yr: f64, yield_mm: f64) 
 }
 
 /// Why a concentration–discharge exponent or a ceiling was refused.
-#[derive(Debug, Clone, Copy, PartialEq, thiserror::Error)]
+#[derive(Debug, Clone, Copy, PartialEq)]
 pub enum DilutionParamError {
     /// `b` outside −1..=2 or not finite.
-    #[error(
-        "concentration-discharge exponent b = {0} is not allowed: it must be a finite number in -1..=2 (-1 pure dilution, 0 chemostatic)"
-    )]
     Exponent(f64),
     /// Ratio ceiling not above 1 or not finite.
-    #[error("concentration ceiling of {0} times the long-term mean is not allowed: it must be a finite number above 1")]
     Ratio(f64),
     /// Absolute ceiling not above 0 or not finite.
-    #[error("concentration ceiling of {0} mg/L is not allowed: it must be a finite number above 0")]
     Absolute(f64),
 }
+
+impl std::fmt::Display for DilutionParamError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            DilutionParamError::Exponent(v) => write!(f, "concentration-discharge exponent b = {v} is not allowed: it must be a finite number in -1..=2 (-1 pure dilution, 0 chemostatic)"),
+            DilutionParamError::Ratio(v) => write!(f, "concentration ceiling of {v} times the long-term mean is not allowed: it must be a finite number above 1"),
+            DilutionParamError::Absolute(v) => write!(f, "concentration ceiling of {v} mg/L is not allowed: it must be a finite number above 0"),
+        }
+    }
+}
+
+impl std::error::Error for DilutionParamError {}
 
 /// Concentration–discharge behaviour of a diffuse load: `C ∝ Q^b` (module header).
 #[derive(Debug, Clone, Copy, PartialEq)]

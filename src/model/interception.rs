@@ -150,27 +150,36 @@
 use super::budyko::{CoverCurves, WaterBalance};
 
 /// Why interception parameters were refused. Each message states the rule.
-#[derive(Debug, Clone, Copy, PartialEq, thiserror::Error)]
+#[derive(Debug, Clone, Copy, PartialEq)]
 pub enum InterceptionError {
     /// Interception fraction outside 0..=0.6 or not finite.
-    #[error("interception fraction {0} is not allowed: it must be a finite number in 0..=0.6 (closed conifer canopies in humid climates: about 0.22-0.29)")]
     Fraction(f64),
     /// Demand share outside 0..=1 or not finite.
-    #[error("interception demand share {0} is not allowed: it must be a finite number in 0..=1")]
     DemandShare(f64),
     /// Canopy cover outside (0, 1] or not finite.
-    #[error("canopy cover {0} is not allowed: it must be a finite number above 0 and at most 1")]
     Cover(f64),
     /// Canopy storage negative or not finite.
-    #[error("canopy storage {0} mm is not allowed: it must be a finite number at or above 0")]
     Storage(f64),
     /// Evaporation-to-rainfall-rate ratio outside (0, 1) or not finite.
-    #[error("ratio of wet-canopy evaporation rate to rainfall rate {0} is not allowed: it must be a finite number above 0 and below 1")]
     EvaporationRatio(f64),
     /// Rain days below 1 or not finite.
-    #[error("{0} rain days per year is not allowed: it must be a finite number at or above 1")]
     RainDays(f64),
 }
+
+impl std::fmt::Display for InterceptionError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            InterceptionError::Fraction(v) => write!(f, "interception fraction {v} is not allowed: it must be a finite number in 0..=0.6 (closed conifer canopies in humid climates: about 0.22-0.29)"),
+            InterceptionError::DemandShare(v) => write!(f, "interception demand share {v} is not allowed: it must be a finite number in 0..=1"),
+            InterceptionError::Cover(v) => write!(f, "canopy cover {v} is not allowed: it must be a finite number above 0 and at most 1"),
+            InterceptionError::Storage(v) => write!(f, "canopy storage {v} mm is not allowed: it must be a finite number at or above 0"),
+            InterceptionError::EvaporationRatio(v) => write!(f, "ratio of wet-canopy evaporation rate to rainfall rate {v} is not allowed: it must be a finite number above 0 and below 1"),
+            InterceptionError::RainDays(v) => write!(f, "{v} rain days per year is not allowed: it must be a finite number at or above 1"),
+        }
+    }
+}
+
+impl std::error::Error for InterceptionError {}
 
 /// Interception loss of a closed canopy and how it shares the evaporative demand.
 #[derive(Debug, Clone, Copy, PartialEq)]
