@@ -44,6 +44,7 @@ fn catchment(i: usize) -> Catchment {
         pet_mm: 850.0,
         pet_forest_mm: None,
         vulnerable_ha: 800.0,
+        stand_ages_ha: None,
         infested: ClassAreas { scattered_ha: 40.0 + k, medium_ha: 10.0, dense_ha: 5.0 },
         forest_ha: 50.0,
         flows_to: None,

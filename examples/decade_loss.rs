@@ -29,6 +29,7 @@ fn main() {
         pet_mm: 850.0,
         pet_forest_mm: None,
         vulnerable_ha: 2600.0,
+        stand_ages_ha: None,
         infested: ClassAreas { scattered_ha: 300.0, medium_ha: 120.0, dense_ha: 60.0 },
         forest_ha: 0.0,
         flows_to: None,

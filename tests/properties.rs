@@ -123,6 +123,7 @@ fn catchment() -> impl Strategy<Value = Catchment> {
                 pet_forest_mm: None,
                 vulnerable_ha,
                 infested,
+                stand_ages_ha: None,
                 forest_ha,
                 flows_to: None,
                 point_kg_per_yr: points,

@@ -258,6 +258,7 @@ pub fn read_catchments(path: &Path, contaminants: &[Contaminant]) -> Result<(Vec
                 pet_mm: pet.unwrap_or(0.0),
                 pet_forest_mm: pet_forest,
                 vulnerable_ha: vulnerable.unwrap_or(0.0),
+                stand_ages_ha: None,
                 infested: ClassAreas {
                     scattered_ha: scattered.unwrap_or(0.0),
                     medium_ha: medium.unwrap_or(0.0),

@@ -113,7 +113,7 @@ pub fn project_basin(
         .enumerate()
         .map(|(i, c)| {
             let p = par(i);
-            let cohorts = Cohorts::from_classes(&p.invasion, c.infested);
+            let cohorts = c.starting_cohorts(&p.invasion);
             let (_, q_open) = et_and_yield_mm(c, p, c.mean_climate(), 0.0);
             let (_, q_forest) = et_and_yield_mm(c, p, c.mean_climate(), 1.0);
             State {

@@ -34,7 +34,7 @@
 //! fixed factor.
 
 use super::budyko::CoverCurves;
-use super::cover::{ClassAreas, InvasionParams};
+use super::cover::{ClassAreas, Cohorts, InvasionParams};
 
 /// One catchment, with its starting cover.
 #[derive(Debug, Clone, PartialEq)]
@@ -54,8 +54,14 @@ pub struct Catchment {
     pub pet_forest_mm: Option<f64>,
     /// Area that can carry the invader, including what is infested now, ha.
     pub vulnerable_ha: f64,
-    /// Currently infested area by density class, ha.
+    /// Currently infested area by density class, ha. With `stand_ages_ha` this is
+    /// the class split of those cohorts (for reporting); the cohorts are what is projected.
     pub infested: ClassAreas,
+    /// Starting infestation by stand age, when known (a planting or a dated invasion):
+    /// `stand_ages_ha[a]` is the area established `a` years before the start, ha.
+    /// `None`: the cohorts are placed evenly over the ages of each density class
+    /// ([`Cohorts::from_classes`]).
+    pub stand_ages_ha: Option<Vec<f64>>,
     /// Area under forest that does not spread (native forest, plantations), ha.
     pub forest_ha: f64,
     /// Identifier of the catchment this one drains into, if any.
@@ -104,6 +110,15 @@ pub struct ModelParams {
 }
 
 impl Catchment {
+    /// The starting cohorts: from the dated stands when given, otherwise from the
+    /// areas by density class.
+    pub fn starting_cohorts(&self, invasion: &InvasionParams) -> Cohorts {
+        match &self.stand_ages_ha {
+            Some(by_age) => Cohorts::from_ages(by_age),
+            None => Cohorts::from_classes(invasion, self.infested),
+        }
+    }
+
     /// The water-balance curves that apply to this catchment.
     #[inline]
     pub fn curves<'a>(&'a self, params: &'a ModelParams) -> &'a CoverCurves {

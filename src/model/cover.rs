@@ -24,12 +24,15 @@
 //!
 //! So a cohort established in year `t` first seeds in year `t + a_seed + 1`.
 //!
-//! ## Starting cover ([`Cohorts::from_classes`])
+//! ## Starting cover ([`Cohorts::from_classes`], [`Cohorts::from_ages`])
 //! Starting areas are spread in equal shares over whole ages (inclusive ranges):
 //! scattered over ages `0 … m − 1`, medium over `m … d − 1`, dense over
 //! `d … d + s − 1`, with `m = max(a_medium, 1)`, `d = max(a_dense, m + 1)` and
 //! `s = max(s_dense, 1)`. Starting scattered cohorts already at or past `a_seed`
 //! (e.g. ages 8 and 9 with `a_seed = 8`, `a_medium = 10`) seed from the first step.
+//! A dated stand (a planting, or an invasion whose establishment years are known)
+//! gives its areas by age directly: a cohort established in year `y` has age
+//! `start_year − y` at the start.
 //!
 //! ## Spread rate from the areal growth users observe
 //! Far from the cap (`I ≪ V`) and without seed rain, the new area `n_t` of year `t`
@@ -190,6 +193,17 @@ impl Cohorts {
         }
         by_age.reverse();
         Cohorts { areas_ha: by_age }
+    }
+
+    /// Cohorts from areas by age: `by_age_ha[a]` is the area of age `a` years, ha
+    /// (negative or non-finite areas count as 0). An empty slice gives [`Cohorts::empty`].
+    pub fn from_ages(by_age_ha: &[f64]) -> Cohorts {
+        if by_age_ha.is_empty() {
+            return Cohorts::empty();
+        }
+        let mut areas_ha: Vec<f64> = by_age_ha.iter().map(|&a| if a.is_finite() { a.max(0.0) } else { 0.0 }).collect();
+        areas_ha.reverse();
+        Cohorts { areas_ha }
     }
 
     /// A stand with no cohorts (only an empty age-0 cohort).
@@ -437,6 +451,20 @@ mod tests {
             initial_dense_span_yr: 10,
             closure: ClosureCurve::Logistic { half_closure_age_yr: 12.0, steepness_per_yr: 0.4, max_fraction: 1.0 },
         }
+    }
+
+    #[test]
+    fn dated_stands_keep_their_ages() {
+        let p = params();
+        let c = Cohorts::from_ages(&[0.0, 0.0, 5.0, 0.0, 7.0]);
+        assert_eq!(c.oldest_age_yr(), 4);
+        assert_eq!(c.area_at_age(2), 5.0);
+        assert_eq!(c.area_at_age(4), 7.0);
+        assert_eq!(c.infested_ha(), 12.0);
+        // Ages 2 and 4 are scattered with medium_age_yr = 10.
+        assert_eq!(c.class_areas(&p).scattered_ha, 12.0);
+        assert_eq!(Cohorts::from_ages(&[]), Cohorts::empty());
+        assert_eq!(Cohorts::from_ages(&[f64::NAN, -3.0]).infested_ha(), 0.0);
     }
 
     #[test]

@@ -81,7 +81,7 @@ pub fn project_lean(c: &Catchment, climate: &[ClimateYear], p: &ModelParams, out
     let k = p.contaminants.len();
     let curves = c.curves(p);
     let inv = &p.invasion;
-    let mut cohorts = Cohorts::from_classes(inv, c.infested);
+    let mut cohorts = c.starting_cohorts(inv);
     let max_age = cohorts.oldest_age_yr() + n;
     // closure read backwards: rev[j] = closure(max_age − j)
     out.closure.clear();

@@ -102,7 +102,7 @@ pub fn canopy_fraction(c: &Catchment, cohorts: &Cohorts, closure_by_age: &[f64])
 
 /// Canopy fraction of the catchment's starting cover (year 0).
 pub fn starting_canopy_fraction(c: &Catchment, p: &ModelParams) -> f64 {
-    let cohorts = Cohorts::from_classes(&p.invasion, c.infested);
+    let cohorts = c.starting_cohorts(&p.invasion);
     let closure = p.invasion.closure.table_by_whole_year(cohorts.oldest_age_yr());
     canopy_fraction(c, &cohorts, &closure)
 }
@@ -111,7 +111,7 @@ pub fn starting_canopy_fraction(c: &Catchment, p: &ModelParams) -> f64 {
 ///
 /// `climate[t]` is the climate of year `start_year + t`.
 pub fn project_catchment(c: &Catchment, climate: &[ClimateYear], p: &ModelParams, start_year: i32) -> Vec<YearResult> {
-    let mut cohorts = Cohorts::from_classes(&p.invasion, c.infested);
+    let mut cohorts = c.starting_cohorts(&p.invasion);
     let closure = p.invasion.closure.table_by_whole_year(cohorts.oldest_age_yr() + climate.len());
     let f0 = canopy_fraction(c, &cohorts, &closure);
     let f_uninvaded = c.uninvaded_canopy_fraction();

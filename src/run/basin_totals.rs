@@ -218,6 +218,7 @@ impl StrategySums {
             pet_mm: 0.0,
             pet_forest_mm: None,
             vulnerable_ha: self.vulnerable_ha.value(),
+            stand_ages_ha: None,
             infested: ClassAreas::default(),
             forest_ha: 0.0,
             flows_to: None,

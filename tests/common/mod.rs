@@ -43,6 +43,7 @@ pub fn tussock(area_ha: f64, rain_mm: f64, pet_mm: f64, vulnerable_ha: f64, infe
         pet_forest_mm: None,
         vulnerable_ha,
         infested,
+        stand_ages_ha: None,
         forest_ha: 0.0,
         flows_to: None,
         point_kg_per_yr: vec![0.0],
