@@ -9,6 +9,7 @@ pub mod climate;
 pub mod gis;
 pub mod observed;
 pub mod scenario;
+pub mod stands;
 pub mod table;
 pub mod toml_reader;
 pub mod weather;
