@@ -89,8 +89,11 @@
 //!   analogous to eq. 44). With neither neighbour known, `G = 0`.
 //! * Eq. 47 is applied only when the wind was measured at a height other than 2 m
 //!   (at exactly 2 m the eq. 47 factor is 1.0002, and the measured value is used as is).
-//! * No lower limit is imposed on u2 and negative ET0 (net condensation) is returned
-//!   as computed, so that annual sums are not biased.
+//! * No lower limit is imposed on u2. Negative ET0 (net radiation below G, net
+//!   condensation) is returned as computed, with every term, so that a result can be
+//!   checked line by line; values to be used or summed go through the crate's single
+//!   non-negativity rule, [`super::non_negative_et0`] / [`super::Et0Total`], which sets
+//!   them to zero and counts them.
 //!
 //! # References
 //! Allen, R. G., Pereira, L. S., Raes, D., & Smith, M. (1998). *Crop

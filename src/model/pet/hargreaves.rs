@@ -26,7 +26,9 @@
 //! # Assumptions
 //! * The formula becomes negative when `T < −17.8 °C`; yieldshift returns 0 there
 //!   (no evaporative demand), since a negative value has no physical meaning in an
-//!   empirical temperature formula.
+//!   empirical temperature formula. The rule is the crate's single non-negativity rule,
+//!   [`super::non_negative_et0`]; [`et0_hargreaves_raw_mm_per_day`] gives the raw value
+//!   for callers that count clamped periods.
 //! * `Tmax ≥ Tmin` is required (the caller checks); a negative range is treated as 0.
 //!
 //! # References
@@ -39,7 +41,7 @@
 //! Irrigation and Drainage Paper 56. FAO, Rome. ISBN 92-5-104219-5. Chapter 3, eq. 52.
 
 use super::fao56::{extraterrestrial_radiation_mj_m2_day, mean_temperature_c, MM_PER_DAY_PER_MJ_M2_DAY};
-use super::Site;
+use super::{non_negative_et0, Site};
 
 /// Empirical coefficient of the Hargreaves equation (FAO-56 eq. 52), dimensionless.
 pub const HARGREAVES_COEFFICIENT: f64 = 0.0023;
@@ -47,13 +49,19 @@ pub const HARGREAVES_COEFFICIENT: f64 = 0.0023;
 /// Temperature offset of the Hargreaves equation (FAO-56 eq. 52), °C.
 pub const HARGREAVES_OFFSET_C: f64 = 17.8;
 
-/// Hargreaves reference evapotranspiration, mm/day (FAO-56 eq. 52), from the
-/// temperature extremes (°C) and extraterrestrial radiation `Ra` (MJ m⁻² day⁻¹).
-pub fn et0_hargreaves_mm_per_day(tmax_c: f64, tmin_c: f64, ra_mj_m2_day: f64) -> f64 {
+/// Hargreaves reference evapotranspiration as the formula gives it, mm/day (FAO-56
+/// eq. 52), negative when `T < −17.8 °C`.
+pub fn et0_hargreaves_raw_mm_per_day(tmax_c: f64, tmin_c: f64, ra_mj_m2_day: f64) -> f64 {
     let t_mean = mean_temperature_c(tmax_c, tmin_c);
     let range = (tmax_c - tmin_c).max(0.0);
-    let et0 = HARGREAVES_COEFFICIENT * (t_mean + HARGREAVES_OFFSET_C) * range.sqrt() * MM_PER_DAY_PER_MJ_M2_DAY * ra_mj_m2_day;
-    et0.max(0.0)
+    HARGREAVES_COEFFICIENT * (t_mean + HARGREAVES_OFFSET_C) * range.sqrt() * MM_PER_DAY_PER_MJ_M2_DAY * ra_mj_m2_day
+}
+
+/// Hargreaves reference evapotranspiration, mm/day (FAO-56 eq. 52), from the
+/// temperature extremes (°C) and extraterrestrial radiation `Ra` (MJ m⁻² day⁻¹),
+/// after the non-negativity rule ([`super::non_negative_et0`]).
+pub fn et0_hargreaves_mm_per_day(tmax_c: f64, tmin_c: f64, ra_mj_m2_day: f64) -> f64 {
+    non_negative_et0(et0_hargreaves_raw_mm_per_day(tmax_c, tmin_c, ra_mj_m2_day)).mm_per_day
 }
 
 /// The terms of one Hargreaves evaluation.
@@ -91,6 +99,8 @@ mod tests {
 
     #[test]
     fn never_negative() {
+        // Raw: 0.0023 × (−35 + 17.8) × √10 × 0.408 × 5 = −0.25520 mm/day (hand computation).
+        assert_abs_diff_eq!(et0_hargreaves_raw_mm_per_day(-30.0, -40.0, 5.0), -0.25520, epsilon = 5e-5);
         assert_eq!(et0_hargreaves_mm_per_day(-30.0, -40.0, 5.0), 0.0);
         assert_eq!(et0_hargreaves_mm_per_day(10.0, 10.0, 30.0), 0.0);
         assert_eq!(et0_hargreaves_mm_per_day(10.0, 12.0, 30.0), 0.0);

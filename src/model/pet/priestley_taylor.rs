@@ -30,7 +30,9 @@
 //!   so that the three methods share one energy-to-water conversion.
 //! * When net radiation is estimated, the FAO-56 grass albedo (0.23) and eq. 39 for
 //!   longwave loss are used, and `T = (Tmax + Tmin)/2`.
-//! * Negative results (net radiation below G: condensation) are returned as computed.
+//! * Negative results (net radiation below G: condensation) are returned as computed;
+//!   values to be used or summed go through [`super::non_negative_et0`] /
+//!   [`super::Et0Total`], which set them to zero and count them.
 //!
 //! # References
 //! Priestley, C. H. B., & Taylor, R. J. (1972). On the assessment of surface heat
