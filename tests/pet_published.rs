@@ -9,13 +9,14 @@
 use approx::assert_abs_diff_eq;
 use std::path::{Path, PathBuf};
 use yieldshift::input::weather::{
-    compute_pet_file, compute_pet_file_with, write_annual_csv, write_period_csv, GapRule, Period, PetMethodChoice, PetOutput, SiteMeta,
-    GAP_FILLED, STATUS_COMPLETE, STATUS_GAP_FILLED, STATUS_INCOMPLETE,
+    compute_pet_file, compute_pet_file_with, GapRule, Period, PetMethodChoice, PetOutput, SiteMeta, GAP_FILLED, STATUS_COMPLETE,
+    STATUS_GAP_FILLED, STATUS_INCOMPLETE,
 };
 use yieldshift::model::pet::fao56::{self, Angstrom, Humidity, PenmanMonteithInput, Solar};
 use yieldshift::model::pet::hargreaves;
 use yieldshift::model::pet::priestley_taylor::{self, NetRadiation};
 use yieldshift::model::pet::{day_of_year, mid_month_day_of_year, PetMethod, Site};
+use yieldshift::output::pet::{write_annual_csv, write_period_csv};
 
 /// Half a unit in the `d`-th decimal: the value rounds to what FAO-56 prints.
 fn printed(d: i32) -> f64 {

@@ -8,9 +8,10 @@
 
 use std::path::{Path, PathBuf};
 use yieldshift::input::weather::{
-    compute_pet_file_with, read_site_file, write_annual_csv, write_period_csv, GapRule, PetMethodChoice, PetOutput, SiteFile, SiteMeta,
-    Timestep, STATUS_COMPLETE, STATUS_GAP_FILLED, STATUS_INCOMPLETE,
+    compute_pet_file_with, read_site_file, GapRule, PetMethodChoice, PetOutput, SiteFile, SiteMeta, Timestep, STATUS_COMPLETE,
+    STATUS_GAP_FILLED, STATUS_INCOMPLETE,
 };
+use yieldshift::output::pet::{write_annual_csv, write_period_csv};
 use yieldshift::{Error, Problem};
 
 /// Gaps listed individually in the summary before the rest are counted.
