@@ -306,7 +306,7 @@ mod tests {
         let annual = std::fs::read_to_string(dir.path().join("res").join("pet_annual.csv")).unwrap();
         let row: Vec<&str> = annual.lines().nth(1).unwrap().split(',').collect();
         // Only January is present: 30 computed days, 2021-01-10 filled, the rest missing.
-        assert_eq!(row[1..].iter().skip(2).copied().collect::<Vec<_>>(), vec!["hargreaves", "30", "335", "incomplete"]);
+        assert_eq!(row[1..].iter().skip(2).copied().collect::<Vec<_>>(), vec!["hargreaves", "30", "335", "incomplete", "0"]);
         let periods = std::fs::read_to_string(&out).unwrap();
         assert!(periods.contains("2021-01-10,") && periods.lines().count() == 32);
 

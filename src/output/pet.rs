@@ -61,6 +61,7 @@ pub fn write_annual_csv(out: &Path, rows: &[AnnualPet]) -> Result<()> {
             r.days.to_string(),
             r.missing_days.to_string(),
             r.status.to_string(),
+            r.clamped_days.to_string(),
         ];
         w.write_record(fields).map_err(csv_err)?;
     }
@@ -102,13 +103,15 @@ mod tests {
             days: 365,
             missing_days: 0,
             status: STATUS_COMPLETE,
+            clamped_days: 3,
+            added_by_clamp_mm: 0.4,
         }];
         let out = dir.path().join("sub").join("annual.csv");
         write_annual_csv(&out, &rows).unwrap();
         let text = std::fs::read_to_string(&out).unwrap();
         assert_eq!(
             text,
-            "catchment,year,pet_mm,pet_method,pet_days,pet_missing_days,pet_status\n\"upper, east\",2021,812.35,hargreaves,365,0,complete\n"
+            "catchment,year,pet_mm,pet_method,pet_days,pet_missing_days,pet_status,pet_clamped_days\n\"upper, east\",2021,812.35,hargreaves,365,0,complete,3\n"
         );
         let periods = vec![PeriodPet {
             catchment: None,
@@ -116,6 +119,7 @@ mod tests {
             et0_mm_per_day: 5.7234,
             et0_mm: 171.702,
             method: "penman-monteith",
+            clamped: false,
         }];
         let pout = dir.path().join("sub").join("periods.csv");
         write_period_csv(&pout, &periods).unwrap();
@@ -130,7 +134,7 @@ mod tests {
     #[test]
     fn daily_and_monthly_periods_are_not_mixed() {
         let dir = tempfile::tempdir().unwrap();
-        let row = |period| PeriodPet { catchment: None, period, et0_mm_per_day: 1.0, et0_mm: 1.0, method: "hargreaves" };
+        let row = |period| PeriodPet { catchment: None, period, et0_mm_per_day: 1.0, et0_mm: 1.0, method: "hargreaves", clamped: false };
         let rows = [row(Period::Month { year: 2021, month: 4 }), row(Period::Day { year: 2021, month: 4, day: 1 })];
         assert!(write_period_csv(&dir.path().join("p.csv"), &rows).is_err());
         assert!(!dir.path().join("p.csv").exists());

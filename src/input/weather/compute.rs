@@ -1,4 +1,6 @@
-//! ET0 of each row with the method the layout chose.
+//! ET0 of each row with the method the layout chose, then the crate's one
+//! non-negativity rule ([`crate::model::pet::non_negative_et0`]) before the value is
+//! stored, filled across gaps or summed.
 //!
 //! Shortwave data are checked against what the sun can deliver at the site on the
 //! day (sunshine ≤ daylight length, solar radiation ≤ Ra), since a value above
@@ -14,7 +16,7 @@ use crate::model::pet::fao56::{
 };
 use crate::model::pet::hargreaves;
 use crate::model::pet::priestley_taylor::{self, NetRadiation};
-use crate::model::pet::{PetMethod, Site};
+use crate::model::pet::{non_negative_et0, NonNegativeEt0, PetMethod, Site};
 use std::collections::HashMap;
 use std::path::Path;
 
@@ -22,11 +24,27 @@ use std::path::Path;
 /// refused, to allow for rounding in published records; it is then capped at N.
 const SUNSHINE_TOLERANCE_H: f64 = 0.1;
 
+/// One period's ET0: the method's raw result and the value after the rule.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(super) struct Et0 {
+    /// What the method gives, mm/day; may be negative (net radiation below G).
+    pub(super) raw_mm_per_day: f64,
+    /// After [`non_negative_et0`]: the value stored and summed.
+    pub(super) used: NonNegativeEt0,
+}
+
+impl Et0 {
+    /// Applies the non-negativity rule to a method's raw result.
+    pub(super) fn from_raw(raw_mm_per_day: f64) -> Et0 {
+        Et0 { raw_mm_per_day, used: non_negative_et0(raw_mm_per_day) }
+    }
+}
+
 /// Result of evaluating one row.
 #[derive(Debug, Clone)]
 pub(super) enum Outcome {
-    /// ET0, mm/day.
-    Value(f64),
+    /// ET0 was computed.
+    Value(Et0),
     /// A value the method needs is blank: which columns.
     Blank(Vec<&'static str>),
     /// The row's values are impossible; the problem has been reported.
@@ -65,7 +83,7 @@ pub(super) fn evaluate_series(
                 problems.push(Problem::in_file(cx.path, "ET0 could not be computed from this row's values").row(row.line));
                 Outcome::Rejected
             }
-            RowResult::Raw(x) => Outcome::Value(x),
+            RowResult::Raw(x) => Outcome::Value(Et0::from_raw(x)),
             RowResult::Blank => Outcome::Blank(blank),
             RowResult::Rejected => Outcome::Rejected,
         };
@@ -74,9 +92,9 @@ pub(super) fn evaluate_series(
     outcomes
 }
 
-/// A method's result for one row.
+/// A method's result for one row, before the non-negativity rule.
 enum RowResult {
-    /// ET0, mm/day.
+    /// The raw ET0, mm/day.
     Raw(f64),
     /// Values are blank; the columns have been pushed to `blank`.
     Blank,
@@ -106,11 +124,15 @@ fn humidity_of(v: &Values) -> Humidity {
     Humidity::from_best_available(v.ea_kpa, v.dewpoint_c, v.rh_max_pct, v.rh_min_pct, v.rh_mean_pct)
 }
 
-/// Hargreaves (FAO-56 eq. 52).
+/// Hargreaves (FAO-56 eq. 52) before the non-negativity rule, so that the days the
+/// rule changes are counted like those of the other methods.
 fn hargreaves_row(cx: &Context<'_>, row: &Row, blank: &mut Vec<&'static str>) -> RowResult {
     let v = &row.v;
     match (v.tmax_c, v.tmin_c) {
-        (Some(tmax), Some(tmin)) => RowResult::Raw(hargreaves::hargreaves(cx.site, row.period.day_of_year(), tmax, tmin).et0_mm_per_day),
+        (Some(tmax), Some(tmin)) => {
+            let ra = hargreaves::hargreaves(cx.site, row.period.day_of_year(), tmax, tmin).ra_mj_m2_day;
+            RowResult::Raw(hargreaves::et0_hargreaves_raw_mm_per_day(tmax, tmin, ra))
+        }
         _ => {
             blank_temps(v, blank);
             RowResult::Blank
@@ -269,4 +291,18 @@ fn check_shortwave(path: &Path, row: &Row, site: &Site, j: u32, solar: Solar, pr
         }
     }
     true
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_rule_is_applied_to_every_computed_value() {
+        let cold = Et0::from_raw(-0.59);
+        assert_eq!(cold.raw_mm_per_day, -0.59);
+        assert_eq!(cold.used, NonNegativeEt0 { mm_per_day: 0.0, clamped: true });
+        let warm = Et0::from_raw(3.88);
+        assert_eq!(warm.used, NonNegativeEt0 { mm_per_day: 3.88, clamped: false });
+    }
 }

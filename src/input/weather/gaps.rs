@@ -5,10 +5,11 @@
 //! when the file has no row for it or the row lacks a value the method needs. Each
 //! maximal run of missing slots is a [`Gap`]; a daily run of at most
 //! [`GapRule::max_fill_days`] with computed days on both sides is filled by linear
-//! interpolation of daily ET0. Monthly records are never filled.
+//! interpolation of the daily ET0 used (after the non-negativity rule, so a filled
+//! day is never negative). Monthly records are never filled.
 
 use super::calendar::Period;
-use super::compute::Outcome;
+use super::compute::{Et0, Outcome};
 use super::rows::Row;
 use std::collections::{BTreeMap, HashMap};
 
@@ -46,9 +47,9 @@ pub struct Gap {
 /// One slot of a daily or monthly calendar.
 #[derive(Debug, Clone, Copy)]
 pub(super) enum Slot {
-    /// Computed from the row's weather, mm/day.
-    Computed(f64),
-    /// Interpolated across a gap, mm/day.
+    /// Computed from the row's weather.
+    Computed(Et0),
+    /// Interpolated across a gap, mm/day (≥ 0).
     Filled(f64),
     /// No value; `row` is the index of the row when there is one (blank or refused).
     Missing { row: Option<usize> },
@@ -69,7 +70,7 @@ impl<'a> Slots<'a> {
         for (i, (row, outcome)) in rows.iter().zip(outcomes).enumerate() {
             let idx = (row.key - start) as usize;
             slots[idx] = match outcome {
-                Outcome::Value(x) => Slot::Computed(*x),
+                Outcome::Value(e) => Slot::Computed(*e),
                 Outcome::Blank(cols) => {
                     blanks.insert(i, cols.as_slice());
                     Slot::Missing { row: Some(i) }
@@ -166,10 +167,11 @@ impl<'a> Slots<'a> {
     }
 }
 
-/// The daily ET0 a slot holds, if any.
+/// The daily ET0 a slot holds (after the non-negativity rule), if any.
 fn value_of(slot: Slot) -> Option<f64> {
     match slot {
-        Slot::Computed(x) | Slot::Filled(x) => Some(x),
+        Slot::Computed(e) => Some(e.used.mm_per_day),
+        Slot::Filled(x) => Some(x),
         Slot::Missing { .. } => None,
     }
 }
@@ -179,14 +181,16 @@ mod tests {
     use super::*;
 
     #[test]
-    fn fills_on_the_line_between_neighbours() {
+    fn fills_between_the_values_used_never_below_zero() {
+        // A clamped day (raw −0.8) next to a 3-day gap and a day at 2.0 mm/day: the
+        // filled days lie on the line from 0 (the value used), not from −0.8.
         let mut s = Slots {
             slots: vec![
-                Slot::Computed(0.0),
+                Slot::Computed(Et0::from_raw(-0.8)),
                 Slot::Missing { row: None },
                 Slot::Missing { row: None },
                 Slot::Missing { row: None },
-                Slot::Computed(2.0),
+                Slot::Computed(Et0::from_raw(2.0)),
             ],
             blanks: HashMap::new(),
         };
@@ -202,14 +206,19 @@ mod tests {
     #[test]
     fn a_run_longer_than_the_rule_or_at_an_edge_stays_missing() {
         let day = |i: usize| Period::Day { year: 2021, month: 1, day: i as u32 + 1 };
-        let mut s =
-            Slots { slots: vec![Slot::Missing { row: None }, Slot::Computed(1.0), Slot::Missing { row: None }], blanks: HashMap::new() };
+        let mut s = Slots {
+            slots: vec![Slot::Missing { row: None }, Slot::Computed(Et0::from_raw(1.0)), Slot::Missing { row: None }],
+            blanks: HashMap::new(),
+        };
         let gaps = s.gaps(&None, &[], Some(GapRule::default()), day);
         assert_eq!(
             gaps.iter().map(|g| (g.filled, g.cause.as_str())).collect::<Vec<_>>(),
             vec![(false, "before the first date in the file"), (false, "after the last date in the file")]
         );
-        let mut s = Slots { slots: vec![Slot::Computed(1.0), Slot::Missing { row: None }, Slot::Computed(1.0)], blanks: HashMap::new() };
+        let mut s = Slots {
+            slots: vec![Slot::Computed(Et0::from_raw(1.0)), Slot::Missing { row: None }, Slot::Computed(Et0::from_raw(1.0))],
+            blanks: HashMap::new(),
+        };
         assert!(!s.gaps(&None, &[], Some(GapRule { max_fill_days: 0 }), day)[0].filled);
         assert!(!s.gaps(&None, &[], None, day)[0].filled);
     }

@@ -2,8 +2,9 @@
 //!
 //! Reads a daily or monthly weather table (CSV), checks every cell, picks (or is
 //! told) the method the columns allow, computes ET0 per period with
-//! [`crate::model::pet`], fills short gaps by a stated rule, and totals each
-//! calendar year per catchment. The annual table (written by `crate::output::pet`) is what the
+//! [`crate::model::pet`], sets negative daily values to zero by the crate's one
+//! rule, fills short gaps by a stated rule, and totals each calendar year per
+//! catchment. The annual table (written by `crate::output::pet`) is what the
 //! scenario's climate table reader accepts.
 //!
 //! # Files
@@ -11,7 +12,7 @@
 //! * [`columns`] — accepted columns, their ranges, daily or monthly, method choice;
 //! * [`rows`] — cell and row checks, one sorted series per catchment;
 //! * [`calendar`] — periods, day numbers, month lengths, leap years, dates;
-//! * [`compute`] — ET0 of each row;
+//! * [`compute`] — ET0 of each row, then the non-negativity rule;
 //! * [`gaps`] — missing periods and the gap rule;
 //! * [`totals`] — per-period values and annual totals.
 //!
@@ -47,6 +48,14 @@
 //! flagged `incomplete`, and its `pet_mm` is the sum of the days it has — which the
 //! climate table reader refuses. Missing months of a monthly record are never
 //! filled. Every gap is listed in [`PetOutput::gaps`].
+//!
+//! # Negative ET0
+//! Penman–Monteith and Priestley–Taylor go below zero when net radiation is below
+//! the soil heat flux (clear high-latitude winter days); Hargreaves does below
+//! −17.8 °C. Every computed value goes through [`crate::model::pet::non_negative_et0`]
+//! before it is stored, used for gap filling or summed: a negative value becomes 0
+//! (common practice, no published source) and the day is counted in
+//! [`AnnualPet::clamped_days`] (for monthly records, the days of such months).
 
 pub mod calendar;
 pub mod columns;
@@ -100,6 +109,11 @@ impl PetOutput {
     /// Years flagged incomplete.
     pub fn incomplete_years(&self) -> impl Iterator<Item = &AnnualPet> {
         self.annual.iter().filter(|a| a.status == STATUS_INCOMPLETE)
+    }
+
+    /// Catchment-years with at least one day whose negative ET0 was set to 0.
+    pub fn clamped_years(&self) -> impl Iterator<Item = &AnnualPet> {
+        self.annual.iter().filter(|a| a.clamped_days > 0)
     }
 }
 
