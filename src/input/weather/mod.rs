@@ -10,9 +10,9 @@
 //! # Files
 //! * [`site`] — the site values and the site TOML file;
 //! * [`columns`] — accepted columns, their ranges, daily or monthly, method choice;
-//! * [`rows`] — cell and row checks, one sorted series per catchment;
+//! * `rows` — cell and row checks, one sorted series per catchment;
 //! * [`calendar`] — periods, day numbers, month lengths, leap years, dates;
-//! * [`compute`] — ET0 of each row, then the non-negativity rule;
+//! * `compute` — ET0 of each row, then the non-negativity rule;
 //! * [`gaps`] — missing periods and the gap rule;
 //! * [`totals`] — per-period values and annual totals.
 //!
