@@ -9,13 +9,14 @@
 use approx::assert_abs_diff_eq;
 use std::path::{Path, PathBuf};
 use yieldshift::input::weather::{
-    compute_pet_file, compute_pet_file_with, write_annual_csv, write_period_csv, GapRule, Period, PetMethodChoice, PetOutput, SiteMeta,
-    GAP_FILLED, STATUS_COMPLETE, STATUS_GAP_FILLED, STATUS_INCOMPLETE,
+    compute_pet_file, compute_pet_file_with, GapRule, Period, PetMethodChoice, PetOutput, SiteMeta, GAP_FILLED, STATUS_COMPLETE,
+    STATUS_GAP_FILLED, STATUS_INCOMPLETE,
 };
 use yieldshift::model::pet::fao56::{self, Angstrom, Humidity, PenmanMonteithInput, Solar};
 use yieldshift::model::pet::hargreaves;
 use yieldshift::model::pet::priestley_taylor::{self, NetRadiation};
 use yieldshift::model::pet::{day_of_year, mid_month_day_of_year, PetMethod, Site};
+use yieldshift::output::pet::{write_annual_csv, write_period_csv};
 
 /// Half a unit in the `d`-th decimal: the value rounds to what FAO-56 prints.
 fn printed(d: i32) -> f64 {
@@ -475,8 +476,8 @@ fn written_tables_match_the_computed_rows() {
     write_annual_csv(&annual_csv, &out.annual).unwrap();
     let annual = std::fs::read_to_string(&annual_csv).unwrap();
     let mut lines = annual.lines();
-    assert_eq!(lines.next(), Some("catchment,year,pet_mm,pet_method,pet_days,pet_missing_days,pet_status"));
-    assert_eq!(lines.next(), Some(format!("upper-tussock,2021,{:.2},penman-monteith,364,1,gap-filled", out.annual[0].pet_mm).as_str()));
+    assert_eq!(lines.next(), Some("catchment,year,pet_mm,pet_method,pet_days,pet_missing_days,pet_status,pet_clamped_days"));
+    assert_eq!(lines.next(), Some(format!("upper-tussock,2021,{:.2},penman-monteith,364,1,gap-filled,0", out.annual[0].pet_mm).as_str()));
     assert_eq!(lines.next(), None);
     let periods = std::fs::read_to_string(&period_csv).unwrap();
     let rows: Vec<&str> = periods.lines().collect();
@@ -497,4 +498,161 @@ fn bom_and_crlf_keep_spreadsheet_rows() {
     // Header = row 1; the blank line is row 4 as a spreadsheet shows it.
     assert_eq!(located, vec![(Some(3), Some("tmax_c")), (Some(5), Some("tmin_c"))]);
     assert!(e.is_invalid_input());
+}
+
+// ---------------------------------------------------------------------------
+// High-latitude winter: negative daily ET0 is set to 0 and counted
+// ---------------------------------------------------------------------------
+
+/// One day of [`north_year_csv`]: day of year J, Tmax °C, Tmin °C, RH %, u2 m/s, sunshine h.
+type NorthDay = (u32, f64, f64, f64, f64, f64);
+
+/// Invented weather at 64°N for 2021, as CSV for catchment `scree`: January to November a mild, half-sunny season; all of December
+/// clear (sunshine = daylight length N, written to 3 decimals and rounded down),
+/// Tmax −10 °C, Tmin −15 °C, RH 100 %, u2 2 m/s. Returns the text and, per row,
+/// `(day of year, tmax, tmin, rh_mean, u2, sunshine)` as written.
+fn north_year_csv() -> (String, Vec<NorthDay>) {
+    let mut s = String::from("catchment,date,tmax_c,tmin_c,rh_mean_pct,wind_m_per_s,sunshine_h\n");
+    let mut rows = Vec::new();
+    for month in 1..=12u32 {
+        for day in 1..=yieldshift::model::pet::days_in_month(2021, month) {
+            let j = day_of_year(2021, month, day);
+            let n_h = fao56::daylight_hours(64.0, j);
+            let (tmax, tmin, rh, u2, sun) = if month == 12 {
+                (-10.0, -15.0, 100.0, 2.0, (n_h * 1000.0).floor() / 1000.0)
+            } else {
+                let summer = (2.0 * std::f64::consts::PI * (f64::from(j) - 196.0) / 365.0).cos(); // +1 mid-July
+                let tmax = (4.0 + 14.0 * summer).round();
+                (tmax, tmax - 8.0, 75.0, 3.0, (0.5 * n_h * 1000.0).floor() / 1000.0)
+            };
+            s.push_str(&format!("scree,2021-{month:02}-{day:02},{tmax},{tmin},{rh},{u2},{sun:.3}\n"));
+            rows.push((j, tmax, tmin, rh, u2, sun));
+        }
+    }
+    (s, rows)
+}
+
+#[test]
+fn high_latitude_winter_gives_no_negative_day_and_counts_the_clamped_days() {
+    let dir = tempfile::tempdir().unwrap();
+    let (text, days) = north_year_csv();
+    let p = write(dir.path(), "north.csv", &text);
+    let meta = SiteMeta::new(64.0, 0.0);
+    let model_site = meta.validate().unwrap();
+    // The raw values, from the model functions directly (no rule applied).
+    let raw_pm: Vec<f64> = days
+        .iter()
+        .map(|&(j, tmax_c, tmin_c, rh, u2, sun)| {
+            let input = PenmanMonteithInput {
+                day_of_year: j,
+                tmax_c,
+                tmin_c,
+                humidity: Humidity::RhMean { rh_mean_pct: rh },
+                u2_m_per_s: u2,
+                solar: Solar::SunshineHours(sun),
+                g_mj_m2_day: 0.0,
+            };
+            fao56::penman_monteith(&model_site, &input).et0_mm_per_day
+        })
+        .collect();
+    let raw_pt: Vec<f64> = days
+        .iter()
+        .map(|&(j, tmax_c, tmin_c, rh, _, sun)| {
+            let nr = NetRadiation::Estimated {
+                day_of_year: j,
+                tmax_c,
+                tmin_c,
+                humidity: Humidity::RhMean { rh_mean_pct: rh },
+                solar: Solar::SunshineHours(sun),
+            };
+            priestley_taylor::priestley_taylor(&model_site, &nr, 0.0).et0_mm_per_day
+        })
+        .collect();
+    for (choice, name, raw) in
+        [(PetMethodChoice::Auto, "penman-monteith", &raw_pm), (PetMethodChoice::PriestleyTaylor, "priestley-taylor", &raw_pt)]
+    {
+        let negative = raw.iter().filter(|x| **x < 0.0).count() as u32;
+        // The constructed December must give negative raw values, or the test proves nothing.
+        let december_negative = raw[334..].iter().filter(|x| **x < 0.0).count();
+        assert!(december_negative > 0, "{name}: no negative raw value in December: {:?}", &raw[334..]);
+        assert!(raw[334..].iter().all(|x| *x < 0.0), "{name}: clear, saturated December days at 64°N lose energy: {:?}", &raw[334..]);
+        let out = compute_pet_file(&p, &meta, choice).unwrap();
+        assert_eq!(out.method.name(), name);
+        assert_eq!(out.periods.len(), 365);
+        // No negative daily value, and each equals max(raw, 0).
+        for (period, r) in out.periods.iter().zip(raw) {
+            assert!(period.et0_mm_per_day >= 0.0, "{name} {}: {}", period.period, period.et0_mm_per_day);
+            assert_abs_diff_eq!(period.et0_mm_per_day, r.max(0.0), epsilon = 1e-12);
+            assert_eq!(period.clamped, *r < 0.0, "{name} {}", period.period);
+        }
+        let a = &out.annual[0];
+        assert_eq!(a.status, STATUS_COMPLETE);
+        assert_eq!(a.clamped_days, negative, "{name}");
+        let clamped_sum: f64 = raw.iter().map(|x| x.max(0.0)).sum();
+        let shortfall: f64 = raw.iter().filter(|x| **x < 0.0).map(|x| -x).sum();
+        assert!(a.pet_mm >= 0.0);
+        assert_abs_diff_eq!(a.pet_mm, clamped_sum, epsilon = 1e-9);
+        assert_abs_diff_eq!(a.added_by_clamp_mm, shortfall, epsilon = 1e-9);
+        assert_abs_diff_eq!(a.pet_mm - a.added_by_clamp_mm, raw.iter().sum::<f64>(), epsilon = 1e-9);
+
+        // The written tables: no negative cell, the count in the last annual column.
+        let period_csv = dir.path().join(format!("{name}.csv"));
+        let annual_csv = dir.path().join(format!("{name}_annual.csv"));
+        write_period_csv(&period_csv, &out.periods).unwrap();
+        write_annual_csv(&annual_csv, &out.annual).unwrap();
+        let periods = std::fs::read_to_string(&period_csv).unwrap();
+        for line in periods.lines().skip(1) {
+            let cells: Vec<&str> = line.split(',').collect();
+            let v: f64 = cells[2].parse().unwrap();
+            assert!(v >= 0.0 && !cells[2].starts_with('-'), "{line}");
+        }
+        let annual = std::fs::read_to_string(&annual_csv).unwrap();
+        let lines: Vec<&str> = annual.lines().collect();
+        assert!(lines[0].ends_with(",pet_status,pet_clamped_days"), "{}", lines[0]);
+        let cells: Vec<&str> = lines[1].split(',').collect();
+        assert_eq!(cells[7].parse::<u32>().unwrap(), negative, "{}", lines[1]);
+        assert!(cells[2].parse::<f64>().unwrap() >= 0.0);
+
+        // The annual table is still one the scenario's climate table accepts.
+        let catchments_csv = write(
+            dir.path(),
+            "catchments.csv",
+            "id,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha\nscree,2400,1650,800,1900,120,40,10\n",
+        );
+        let (catchments, _) = yieldshift::input::catchments::read_catchments(&catchments_csv, &[]).unwrap();
+        let climate = yieldshift::input::climate::read_climate(&annual_csv, &catchments).unwrap();
+        assert_eq!(climate.coverage(), vec![("scree".to_string(), 2021, 2021)]);
+    }
+}
+
+#[test]
+fn a_negative_month_is_set_to_zero_and_counts_its_days() {
+    // Monthly record at 64°N: December as the mean of clear, saturated days.
+    let dir = tempfile::tempdir().unwrap();
+    let j = mid_month_day_of_year(2021, 12);
+    let n_h = (fao56::daylight_hours(64.0, j) * 100.0).floor() / 100.0;
+    let text = format!(
+        "year,month,tmax_c,tmin_c,rh_mean_pct,wind_m_per_s,sunshine_h,tmean_prev_c,tmean_next_c\n2021,12,-10,-15,100,2,{n_h},-12.5,-12.5\n"
+    );
+    let p = write(dir.path(), "dec.csv", &text);
+    let meta = SiteMeta::new(64.0, 0.0);
+    let raw = fao56::penman_monteith(
+        &meta.validate().unwrap(),
+        &PenmanMonteithInput {
+            day_of_year: j,
+            tmax_c: -10.0,
+            tmin_c: -15.0,
+            humidity: Humidity::RhMean { rh_mean_pct: 100.0 },
+            u2_m_per_s: 2.0,
+            solar: Solar::SunshineHours(n_h),
+            g_mj_m2_day: fao56::soil_heat_flux_monthly_mj_m2_day(Some(-12.5), -12.5, Some(-12.5)),
+        },
+    )
+    .et0_mm_per_day;
+    assert!(raw < 0.0, "{raw}");
+    let out = compute_pet_file(&p, &meta, PetMethodChoice::Auto).unwrap();
+    assert_eq!((out.periods[0].et0_mm_per_day, out.periods[0].et0_mm, out.periods[0].clamped), (0.0, 0.0, true));
+    let a = &out.annual[0];
+    assert_eq!((a.pet_mm, a.clamped_days, a.status), (0.0, 31, STATUS_INCOMPLETE));
+    assert_abs_diff_eq!(a.added_by_clamp_mm, -raw * 31.0, epsilon = 1e-9);
 }

@@ -4,13 +4,14 @@
 //! (options win), computes ET0 per day or month with the method the columns allow
 //! (or the one asked for), and writes the per-period table and the annual table the
 //! scenario's climate table accepts. Prints a short summary: method, rows, years,
-//! gaps and incomplete years.
+//! gaps, incomplete years and the days whose negative ET0 was set to 0.
 
 use std::path::{Path, PathBuf};
 use yieldshift::input::weather::{
-    compute_pet_file_with, read_site_file, write_annual_csv, write_period_csv, GapRule, PetMethodChoice, PetOutput, SiteFile, SiteMeta,
-    Timestep, STATUS_COMPLETE, STATUS_GAP_FILLED, STATUS_INCOMPLETE,
+    compute_pet_file_with, read_site_file, GapRule, PetMethodChoice, PetOutput, SiteFile, SiteMeta, Timestep, STATUS_COMPLETE,
+    STATUS_GAP_FILLED, STATUS_INCOMPLETE,
 };
+use yieldshift::output::pet::{write_annual_csv, write_period_csv};
 use yieldshift::{Error, Problem};
 
 /// Gaps listed individually in the summary before the rest are counted.
@@ -190,6 +191,27 @@ fn days(n: u32) -> String {
     }
 }
 
+/// How many computed days had a negative ET0 set to 0, and where (the catchment-years,
+/// up to [`GAPS_SHOWN`] of them, with what the rule added to each total).
+fn clamped_line(o: &PetOutput) -> String {
+    let total: u32 = o.annual.iter().map(|a| a.clamped_days).sum();
+    if total == 0 {
+        return "negative daily ET0 set to 0: none\n".to_string();
+    }
+    let years: Vec<String> = o
+        .clamped_years()
+        .take(GAPS_SHOWN)
+        .map(|a| {
+            let who = a.catchment.as_deref().map(|c| format!("{c} ")).unwrap_or_default();
+            format!("{who}{} {} (+{:.2} mm)", a.year, days(a.clamped_days), a.added_by_clamp_mm)
+        })
+        .collect();
+    let more = o.clamped_years().count().saturating_sub(GAPS_SHOWN);
+    let more = if more > 0 { format!(", … and {more} more") } else { String::new() };
+    let months = if o.timestep == Timestep::Monthly { " (days of months whose mean was negative)" } else { "" };
+    format!("negative daily ET0 set to 0 on {}{months} (pet_clamped_days): {}{more}\n", days(total), years.join(", "))
+}
+
 /// The text printed after a successful run.
 fn summary(o: &PetOutput, choice: PetMethodChoice, out: &Path, annual_out: &Path) -> String {
     let mut s = String::new();
@@ -242,6 +264,7 @@ fn summary(o: &PetOutput, choice: PetMethodChoice, out: &Path, annual_out: &Path
     if !incomplete.is_empty() {
         s.push_str(&format!("incomplete years (pet_status = incomplete; the climate table refuses them): {}\n", incomplete.join(", ")));
     }
+    s.push_str(&clamped_line(o));
     s.push_str(&format!("wrote {} ({} rows) and {} ({} rows)\n", out.display(), o.periods.len(), annual_out.display(), o.annual.len()));
     s
 }
@@ -305,7 +328,7 @@ mod tests {
         let annual = std::fs::read_to_string(dir.path().join("res").join("pet_annual.csv")).unwrap();
         let row: Vec<&str> = annual.lines().nth(1).unwrap().split(',').collect();
         // Only January is present: 30 computed days, 2021-01-10 filled, the rest missing.
-        assert_eq!(row[1..].iter().skip(2).copied().collect::<Vec<_>>(), vec!["hargreaves", "30", "335", "incomplete"]);
+        assert_eq!(row[1..].iter().skip(2).copied().collect::<Vec<_>>(), vec!["hargreaves", "30", "335", "incomplete", "0"]);
         let periods = std::fs::read_to_string(&out).unwrap();
         assert!(periods.contains("2021-01-10,") && periods.lines().count() == 32);
 
@@ -321,6 +344,52 @@ mod tests {
         let lib = err.downcast_ref::<Error>().expect("library error inside anyhow");
         assert!(lib.is_invalid_input());
         assert_eq!(lib.problems()[0].row, Some(2));
+    }
+
+    #[test]
+    fn the_summary_and_the_annual_table_report_clamped_days() {
+        // December at 64°N, clear and saturated (Tmax −10, Tmin −15 °C, RH 100 %,
+        // u2 2 m/s): Priestley–Taylor's raw ET0 is negative on these days.
+        let dir = tempfile::tempdir().unwrap();
+        let weather = dir.path().join("north.csv");
+        let mut text = String::from("date,tmax_c,tmin_c,rh_mean_pct,sunshine_h\n");
+        let mut negative = 0;
+        let site = SiteMeta::new(64.0, 0.0).validate().unwrap();
+        for d in 1..=31u32 {
+            let j = yieldshift::model::pet::day_of_year(2021, 12, d);
+            let sun = (yieldshift::model::pet::fao56::daylight_hours(64.0, j) * 100.0).floor() / 100.0;
+            text.push_str(&format!("2021-12-{d:02},-10,-15,100,{sun}\n"));
+            let nr = yieldshift::model::pet::priestley_taylor::NetRadiation::Estimated {
+                day_of_year: j,
+                tmax_c: -10.0,
+                tmin_c: -15.0,
+                humidity: yieldshift::model::pet::Humidity::RhMean { rh_mean_pct: 100.0 },
+                solar: yieldshift::model::pet::Solar::SunshineHours(sun),
+            };
+            if yieldshift::model::pet::priestley_taylor::priestley_taylor(&site, &nr, 0.0).et0_mm_per_day < 0.0 {
+                negative += 1;
+            }
+        }
+        assert!(negative > 0);
+        std::fs::write(&weather, text).unwrap();
+        let out = dir.path().join("pet.csv");
+        let (w, o) = (weather.to_string_lossy().into_owned(), out.to_string_lossy().into_owned());
+        let args = Wrap::try_parse_from(["x", &w, "--out", &o, "--latitude-deg", "64", "--elevation-m", "0"]).unwrap().args;
+        run(&args).unwrap();
+        let annual = std::fs::read_to_string(dir.path().join("pet_annual.csv")).unwrap();
+        let row: Vec<&str> = annual.lines().nth(1).unwrap().split(',').collect();
+        assert_eq!(row[3], "priestley-taylor");
+        assert_eq!(row[7], negative.to_string());
+        let output = compute_pet_file_with(&weather, &site_meta(&args).unwrap(), PetMethodChoice::Auto, GapRule::default()).unwrap();
+        let text = summary(&output, PetMethodChoice::Auto, &out, Path::new("a.csv"));
+        let expected = format!("negative daily ET0 set to 0 on {} (pet_clamped_days): 2021 {} (+", days(negative), days(negative));
+        assert!(text.contains(&expected), "{text}");
+        // A record without negative days says so.
+        std::fs::write(dir.path().join("warm.csv"), "date,tmax_c,tmin_c\n2021-01-01,25,12\n").unwrap();
+        let warm =
+            compute_pet_file_with(&dir.path().join("warm.csv"), &SiteMeta::new(-45.0, 100.0), PetMethodChoice::Auto, GapRule::default())
+                .unwrap();
+        assert!(summary(&warm, PetMethodChoice::Auto, &out, Path::new("a.csv")).contains("negative daily ET0 set to 0: none\n"));
     }
 
     #[test]

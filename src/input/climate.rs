@@ -2,8 +2,8 @@
 //!
 //! Columns: `catchment`, `year`, and at least one of `rain_mm`, `pet_mm` (mm/yr).
 //! A missing variable falls back to the catchment's long-term mean. The columns
-//! `pet_method`, `pet_days`, `pet_missing_days`, `pet_status` written by
-//! `yieldshift pet` are accepted; a year whose `pet_status` is `incomplete` is refused.
+//! `pet_method`, `pet_days`, `pet_missing_days`, `pet_status`, `pet_clamped_days`
+//! written by `yieldshift pet` are accepted; a year whose `pet_status` is `incomplete` is refused.
 //! For each catchment, years must increase down the file with no gaps or repeats.
 //! Catchments with no rows use their long-term means in every year.
 
@@ -14,8 +14,8 @@ use std::collections::{HashMap, HashSet};
 use std::path::Path;
 
 /// Known columns of the climate table.
-pub const CLIMATE_COLUMNS: [&str; 8] =
-    ["catchment", "year", "rain_mm", "pet_mm", "pet_method", "pet_days", "pet_missing_days", "pet_status"];
+pub const CLIMATE_COLUMNS: [&str; 9] =
+    ["catchment", "year", "rain_mm", "pet_mm", "pet_method", "pet_days", "pet_missing_days", "pet_status", "pet_clamped_days"];
 
 /// What to use for projected years outside a catchment's climate record.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

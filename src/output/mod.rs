@@ -3,4 +3,5 @@
 
 pub mod geojson;
 pub mod outdir;
+pub mod pet;
 pub mod tables;

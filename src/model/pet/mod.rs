@@ -417,6 +417,73 @@ mod tests {
     }
 
     #[test]
+    fn the_rule_passes_demand_and_zeroes_the_rest() {
+        // Common practice, no published source: negative daily ET0 is set to zero.
+        assert_eq!(non_negative_et0(3.88), NonNegativeEt0 { mm_per_day: 3.88, clamped: false });
+        assert_eq!(non_negative_et0(0.0), NonNegativeEt0 { mm_per_day: 0.0, clamped: false });
+        assert_eq!(non_negative_et0(-0.59), NonNegativeEt0 { mm_per_day: 0.0, clamped: true });
+        assert_eq!(non_negative_et0(-1e-12), NonNegativeEt0 { mm_per_day: 0.0, clamped: true });
+        for bad in [f64::NAN, f64::INFINITY, f64::NEG_INFINITY] {
+            assert_eq!(non_negative_et0(bad), NonNegativeEt0 { mm_per_day: 0.0, clamped: true });
+        }
+    }
+
+    /// Midwinter at 64°N, sea level, 21 December (J = 355), a clear, calm-ish, saturated
+    /// day: Tmax −10 °C, Tmin −15 °C, RHmean 100 %, u2 2 m/s, sunshine = daylight, G = 0.
+    ///
+    /// Source: hand computation with the FAO-56 equations (Allen et al. 1998), written out
+    /// independently of this crate: eq. 23 dr = 1.03251; eq. 24 δ = −0.40898 rad; eq. 25
+    /// ωs = 0.47640 rad; eq. 34 N = 3.6394 h; eq. 21 Ra = 0.54990 MJ m⁻² day⁻¹; eq. 35 and 37
+    /// Rs = Rso = 0.41242; eq. 38 Rns = 0.31757; eq. 19 ea = es = 0.23809 kPa (so the
+    /// aerodynamic term of eq. 6 is zero); eq. 39 Rnl = 6.15276; eq. 40 Rn = −5.83519;
+    /// eq. 13 Δ = 0.018959 kPa/°C at T = −12.5 °C; eq. 7–8 γ = 0.067365 kPa/°C.
+    /// Eq. 6: ET0 = 0.408·Δ·Rn / (Δ + γ(1 + 0.34·2)) = −0.34161 mm/day.
+    /// Priestley–Taylor: 1.26·Δ/(Δ + γ)·0.408·Rn = −0.65884 mm/day.
+    /// The longwave loss of a clear polar-night day exceeds the little shortwave gain, so
+    /// both raw values are negative and the rule must set them to zero.
+    #[test]
+    fn high_latitude_winter_is_clamped_for_both_radiation_methods() {
+        use super::fao56::{daylight_hours, penman_monteith, PenmanMonteithInput};
+        use super::priestley_taylor::{priestley_taylor, NetRadiation};
+        use approx::assert_abs_diff_eq;
+        let site = Site::new(64.0, 0.0, Angstrom::default()).unwrap();
+        let j = day_of_year(2021, 12, 21);
+        assert_eq!(j, 355);
+        let n_h = daylight_hours(64.0, j);
+        assert_abs_diff_eq!(n_h, 3.6394, epsilon = 1e-3);
+        let humidity = Humidity::RhMean { rh_mean_pct: 100.0 };
+        let solar = Solar::SunshineHours(n_h);
+        let pm = penman_monteith(
+            &site,
+            &PenmanMonteithInput { day_of_year: j, tmax_c: -10.0, tmin_c: -15.0, humidity, u2_m_per_s: 2.0, solar, g_mj_m2_day: 0.0 },
+        );
+        assert_abs_diff_eq!(pm.radiation.ra_mj_m2_day, 0.54990, epsilon = 1e-4);
+        assert_abs_diff_eq!(pm.radiation.rn_mj_m2_day, -5.8352, epsilon = 1e-3);
+        assert_abs_diff_eq!(pm.et0_mm_per_day, -0.34161, epsilon = 1e-4);
+        let pt = priestley_taylor(&site, &NetRadiation::Estimated { day_of_year: j, tmax_c: -10.0, tmin_c: -15.0, humidity, solar }, 0.0);
+        assert_abs_diff_eq!(pt.et0_mm_per_day, -0.65884, epsilon = 1e-4);
+        for raw in [pm.et0_mm_per_day, pt.et0_mm_per_day] {
+            assert_eq!(non_negative_et0(raw), NonNegativeEt0 { mm_per_day: 0.0, clamped: true });
+        }
+    }
+
+    #[test]
+    fn totals_count_clamped_periods_and_what_the_rule_added() {
+        use approx::assert_abs_diff_eq;
+        // Three days (2.0, −0.5, 1.0 mm/day) and one 31-day month at −0.1 mm/day.
+        let mut t = Et0Total::new();
+        assert_eq!(t.add(2.0, 1).mm_per_day, 2.0);
+        assert!(t.add(-0.5, 1).clamped);
+        t.add(1.0, 1);
+        t.add(-0.1, 31);
+        assert_abs_diff_eq!(t.total_mm, 3.0, epsilon = 1e-12);
+        assert_eq!((t.periods, t.days, t.clamped_periods, t.clamped_days), (4, 34, 2, 32));
+        // The raw sum would have been 3.0 − 0.5 − 3.1 = −0.6 mm; the rule added 3.6 mm.
+        assert_abs_diff_eq!(t.added_by_clamp_mm, 3.6, epsilon = 1e-12);
+        assert_abs_diff_eq!(t.total_mm - t.added_by_clamp_mm, -0.6, epsilon = 1e-12);
+    }
+
+    #[test]
     fn method_names_round_trip() {
         for m in PetMethod::ALL {
             assert_eq!(PetMethod::from_name(m.name()), Some(m));
