@@ -136,14 +136,14 @@ pub fn read_climate(path: &Path, catchments: &[Catchment]) -> Result<ClimateTabl
         let pet = table.optional_in(line, rec, "pet_mm", 0.0, 6_000.0, "mm/yr", &mut p);
         let status = table.text(rec, "pet_status");
         match status.to_ascii_lowercase().as_str() {
-            "" | "complete" => {}
+            "" | "complete" | "gap-filled" => {}
             "incomplete" => p.push(
                 Problem::in_file(path, "PET for this year was computed from an incomplete weather record; fill the gaps or drop the year")
                     .row(line)
                     .column("pet_status"),
             ),
             _ => p.push(
-                Problem::in_file(path, format!("'{status}' is not a PET status; allowed: complete, incomplete (or empty)"))
+                Problem::in_file(path, format!("'{status}' is not a PET status; allowed: complete, gap-filled, incomplete (or empty)"))
                     .row(line)
                     .column("pet_status"),
             ),
@@ -245,4 +245,47 @@ fn check_years(path: &Path, id: &str, list: &[Record]) -> Vec<Problem> {
         }
     }
     problems
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::cover::ClassAreas;
+
+    fn catchment(id: &str) -> Catchment {
+        Catchment {
+            id: id.into(),
+            name: id.into(),
+            area_ha: 100.0,
+            rain_mm: 1000.0,
+            pet_mm: 700.0,
+            pet_forest_mm: None,
+            vulnerable_ha: 50.0,
+            infested: ClassAreas::default(),
+            stand_ages_ha: None,
+            forest_ha: 0.0,
+            flows_to: None,
+            point_kg_per_yr: vec![],
+            curves: None,
+        }
+    }
+
+    #[test]
+    fn the_annual_table_of_the_pet_command_is_accepted_including_gap_filled_years() {
+        // Regression: a `gap-filled` year written by `yieldshift pet` was refused.
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("annual.csv");
+        std::fs::write(
+            &p,
+            "catchment,year,pet_mm,pet_method,pet_days,pet_missing_days,pet_status,pet_clamped_days\n\
+             a,2020,712.5,penman-monteith,366,0,complete,0\n\
+             a,2021,698.0,penman-monteith,365,3,gap-filled,0\n",
+        )
+        .unwrap();
+        let t = read_climate(&p, &[catchment("a")]).unwrap();
+        assert_eq!(t.coverage(), vec![("a".to_string(), 2020, 2021)]);
+        std::fs::write(&p, "catchment,year,pet_mm,pet_status\na,2020,700,partial\n").unwrap();
+        let e = read_climate(&p, &[catchment("a")]).unwrap_err();
+        assert!(e[0].to_string().contains("'partial' is not a PET status"), "{}", e[0]);
+    }
 }
