@@ -1034,7 +1034,7 @@ fn read_nodes(t: &CsvTable, contaminants: &[String], problems: &mut Vec<Problem>
 }
 
 fn read_delay(t: &CsvTable, problems: &mut Vec<Problem>) -> Vec<DelayRow> {
-    let c = t.require(&crate::output::tables::DELAY_COLUMNS, problems);
+    let c = t.require(&crate::schema::columns::delay::COLUMNS, problems);
     if !problems.is_empty() {
         return vec![];
     }

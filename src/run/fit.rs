@@ -18,7 +18,7 @@ use crate::output::outdir::Staging;
 use crate::output::tables::{self, CsvOut};
 use crate::plot::fit::{BudykoChart, FitSeries, Mark, YieldFitChart};
 use crate::plot::{palette, save_figure, Formats};
-use crate::schema::file_stem;
+use crate::schema::{columns, file_stem};
 use crate::schema::numbers::{num, opt_num};
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
@@ -251,49 +251,8 @@ pub fn run(scenario: &Scenario, observed: &ObservedFlows, opts: &FitOptions) -> 
     Ok(FitOutcome { out, fitted, ungauged, left_out: observed.left_out.len(), figures })
 }
 
-/// Header of `fit.csv`.
-pub const FIT_HEADER: [&str; 36] = [
-    "catchment",
-    "name",
-    "method",
-    "parameter",
-    "value_scenario",
-    "value_mean_fit",
-    "value_series_fit",
-    "interval_level",
-    "interval_low",
-    "interval_high",
-    "bootstrap_samples",
-    "bootstrap_at_bound",
-    "nse",
-    "kge",
-    "kge_r",
-    "kge_alpha",
-    "kge_beta",
-    "pbias_pct",
-    "rmse_mm",
-    "nse_scenario",
-    "kge_scenario",
-    "pbias_scenario_pct",
-    "rmse_scenario_mm",
-    "mean_observed_mm",
-    "mean_simulated_mm",
-    "mean_rain_mm",
-    "canopy_fraction",
-    "moving_average_yr",
-    "series_windows",
-    "first_year",
-    "last_year",
-    "years_used",
-    "years_left_out",
-    "years_mean_pet",
-    "series_fit_at_bound",
-    "notes",
-];
-
 fn write_fit_csv(path: &Path, s: &Scenario, fitted: &[FittedCatchment]) -> Result<()> {
-    let header: Vec<String> = FIT_HEADER.iter().map(|h| h.to_string()).collect();
-    let mut w = CsvOut::create(path, &header)?;
+    let mut w = CsvOut::create(path, &columns::fit::COLUMNS)?;
     for f in fitted {
         let c = &s.catchments[f.index];
         let years = f.record.years();
@@ -355,22 +314,7 @@ fn write_fit_csv(path: &Path, s: &Scenario, fitted: &[FittedCatchment]) -> Resul
 }
 
 fn write_years_csv(path: &Path, s: &Scenario, fitted: &[FittedCatchment]) -> Result<()> {
-    let header: Vec<String> = [
-        "catchment",
-        "year",
-        "rain_mm",
-        "pet_mm",
-        "observed_yield_mm",
-        "simulated_yield_mm",
-        "scenario_yield_mm",
-        "residual_mm",
-        "evaporative_ratio_observed",
-        "aridity_index",
-    ]
-    .iter()
-    .map(|h| h.to_string())
-    .collect();
-    let mut w = CsvOut::create(path, &header)?;
+    let mut w = CsvOut::create(path, &columns::fit_years::COLUMNS)?;
     for f in fitted {
         let id = &s.catchments[f.index].id;
         let sim = f.record.simulated_yield_mm(f.fit.mean.value);
@@ -395,8 +339,7 @@ fn write_years_csv(path: &Path, s: &Scenario, fitted: &[FittedCatchment]) -> Res
 }
 
 fn write_left_out_csv(path: &Path, left: &[LeftOut]) -> Result<()> {
-    let header: Vec<String> = ["catchment", "year", "row", "reason"].iter().map(|h| h.to_string()).collect();
-    let mut w = CsvOut::create(path, &header)?;
+    let mut w = CsvOut::create(path, &columns::left_out::COLUMNS)?;
     for l in left {
         let fields = [l.catchment.clone(), l.year.to_string(), l.row.to_string(), l.reason.to_string()];
         w.row(fields.iter().map(String::as_str))?;
