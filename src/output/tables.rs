@@ -1,4 +1,5 @@
-//! Tidy CSV outputs: `yearly.csv`, `summary.csv`, `nodes.csv` and `run_info.json`.
+//! Tidy CSV outputs (`yearly.csv`, `summary.csv`, `nodes.csv`, `budget.csv`,
+//! `delay.csv`), the one CSV writer of the crate ([`CsvOut`]) and `run_info.json`.
 //!
 //! Numbers are written with fixed decimals so that outputs are byte-stable;
 //! undefined values (a change against a zero baseline, a concentration in a
@@ -297,11 +298,11 @@ pub fn node_fields(node_id: &str, strategy: &str, upstream: usize, y: &NodeYear,
     f
 }
 
-/// Writes `run_info.json`: what was run, with which method, and the cautions.
-pub fn write_run_info(dir: &Path, info: &serde_json::Value) -> Result<()> {
-    let path = dir.join(crate::schema::RUN_INFO_FILE);
-    let text = serde_json::to_string_pretty(info).map_err(|e| Error::Other(e.to_string()))?;
-    std::fs::write(&path, text + "\n").map_err(|e| Error::io(format!("writing {}", path.display()), e))
+/// Writes `run_info.json` ([`crate::schema::run_info`]: a run's [`RunInfo`](crate::schema::run_info::RunInfo)
+/// or a calibration's [`FitRunInfo`](crate::schema::run_info::FitRunInfo)), atomically.
+pub fn write_run_info(dir: &Path, info: &impl serde::Serialize) -> Result<()> {
+    let text = crate::schema::run_info::to_json(info)?;
+    crate::output::outdir::write_atomic(&dir.join(crate::schema::RUN_INFO_FILE), text.as_bytes())
 }
 
 #[cfg(test)]

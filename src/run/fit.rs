@@ -14,10 +14,12 @@ use crate::input::scenario::Scenario;
 use crate::model::budyko::CoverCurves;
 use crate::model::fit::{Bound, CatchmentFit, Cover, FitError, FitSettings, GaugeRecord};
 use crate::model::skill::Skill;
+use crate::model::uncertainty::stable_hash;
 use crate::output::outdir::Staging;
 use crate::output::tables::{self, CsvOut};
 use crate::plot::fit::{BudykoChart, FitSeries, Mark, YieldFitChart};
 use crate::plot::{palette, save_figure, Formats};
+use crate::schema::run_info::FitRunInfo;
 use crate::schema::{columns, file_stem};
 use crate::schema::numbers::{num, opt_num};
 use std::fmt::Write as _;
@@ -104,14 +106,9 @@ pub fn parse_donor(text: &str) -> std::result::Result<Donor, Problem> {
 }
 
 /// Seed of one catchment's bootstrap: the run's seed mixed with the catchment id
-/// (FNV-1a), so a catchment's interval does not depend on which others are gauged.
+/// ([`stable_hash`]), so a catchment's interval does not depend on which others are gauged.
 pub fn catchment_seed(seed: u64, id: &str) -> u64 {
-    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
-    for b in id.bytes() {
-        h ^= b as u64;
-        h = h.wrapping_mul(0x0000_0100_0000_01b3);
-    }
-    seed ^ h
+    seed ^ stable_hash(id)
 }
 
 fn first_row(s: &ObservedSeries) -> usize {
@@ -239,7 +236,7 @@ pub fn run(scenario: &Scenario, observed: &ObservedFlows, opts: &FitOptions) -> 
     write_left_out_csv(&dir.join("left_out.csv"), &observed.left_out)?;
     let snippet = calibration_toml(scenario, observed, &fitted, &opts.donors, &opts.settings);
     let cal = dir.join("calibration.toml");
-    std::fs::write(&cal, snippet).map_err(|e| Error::io(format!("writing {}", cal.display()), e))?;
+    crate::output::outdir::write_atomic(&cal, snippet.as_bytes())?;
     let fig_dir = dir.join("figures");
     std::fs::create_dir_all(&fig_dir).map_err(|e| Error::io("creating figures/", e))?;
     let mut figures = 0;
@@ -483,37 +480,32 @@ fn parameter_pairs(c: &CoverCurves, base: &CoverCurves) -> Vec<(&'static str, f6
         .collect()
 }
 
-fn run_info(
-    s: &Scenario,
-    observed: &ObservedFlows,
-    opts: &FitOptions,
-    fitted: &[FittedCatchment],
-    ungauged: &[String],
-) -> serde_json::Value {
-    serde_json::json!({
-        "tool": "yieldshift",
-        "command": "fit",
-        "version": env!("CARGO_PKG_VERSION"),
-        "title": s.title,
-        "scenario": s.path.display().to_string(),
-        "observed_flows": observed.path.display().to_string(),
-        "climate_table": s.climate_path.as_ref().map(|p| p.display().to_string()),
-        "hydrology_method": s.params.curves.method_name(),
-        "parameter": fitted.first().map(|f| f.fit.key),
-        "cover_fitted": opts.cover.name(),
-        "value_written": "value_mean_fit (long-term mean fit)",
-        "moving_average_yr": opts.settings.moving_average_yr,
-        "bootstrap_samples": opts.settings.bootstrap_samples,
-        "interval_level": opts.settings.level,
-        "seed": opts.settings.seed,
-        "catchments_fitted": fitted.iter().map(|f| s.catchments[f.index].id.clone()).collect::<Vec<_>>(),
-        "catchments_ungauged": ungauged,
-        "donors": opts.donors.iter().map(|d| serde_json::json!({"ungauged": d.ungauged, "gauged": d.gauged})).collect::<Vec<_>>(),
-        "observations_left_out": observed.left_out.len(),
-        "pbias_convention": PBIAS_CONVENTION,
-        "statistics": "nse, kge, pbias_pct, rmse_mm compare annual yields simulated with value_mean_fit to the observed; *_scenario columns use the value before fitting",
-        "cautions": format!("{} {}", crate::schema::CAUTIONS, FIT_CAUTIONS),
-    })
+fn run_info(s: &Scenario, observed: &ObservedFlows, opts: &FitOptions, fitted: &[FittedCatchment], ungauged: &[String]) -> FitRunInfo {
+    use crate::schema::run_info as ri;
+    FitRunInfo {
+        bootstrap_samples: opts.settings.bootstrap_samples,
+        catchments_fitted: fitted.iter().map(|f| s.catchments[f.index].id.clone()).collect(),
+        catchments_ungauged: ungauged.to_vec(),
+        cautions: format!("{} {}", crate::schema::CAUTIONS, FIT_CAUTIONS),
+        climate_table: s.climate_path.as_ref().map(|p| p.display().to_string()),
+        command: ri::FIT_COMMAND.into(),
+        cover_fitted: opts.cover.name().into(),
+        donors: opts.donors.iter().map(|d| ri::DonorInfo { gauged: d.gauged.clone(), ungauged: d.ungauged.clone() }).collect(),
+        hydrology_method: s.params.curves.method_name().into(),
+        interval_level: opts.settings.level,
+        moving_average_yr: opts.settings.moving_average_yr,
+        observations_left_out: observed.left_out.len(),
+        observed_flows: observed.path.display().to_string(),
+        parameter: fitted.first().map(|f| f.fit.key.to_string()),
+        pbias_convention: PBIAS_CONVENTION.into(),
+        scenario: s.path.display().to_string(),
+        seed: opts.settings.seed,
+        statistics: "nse, kge, pbias_pct, rmse_mm compare annual yields simulated with value_mean_fit to the observed; *_scenario columns use the value before fitting".into(),
+        title: s.title.clone(),
+        tool: ri::TOOL.into(),
+        value_written: "value_mean_fit (long-term mean fit)".into(),
+        version: env!("CARGO_PKG_VERSION").into(),
+    }
 }
 
 fn draw_figures(dir: &Path, s: &Scenario, f: &FittedCatchment, formats: Formats) -> Result<usize> {
