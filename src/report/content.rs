@@ -7,7 +7,10 @@
 use super::doc::{Align, Doc, Figure, Source, Table, Text};
 use super::figures::{self as figs, Drawn};
 use super::fmt::{fixed, sig, signed, UNDEFINED};
-use super::folder::{summary_cols as sc, Method, RunData, SummaryRow, BASIN, NO_CONTROL};
+use super::folder::{RunData, SummaryRow};
+use crate::schema::columns::summary as sc;
+use crate::schema::run_info::Curves;
+use crate::schema::{BASIN_ID, NO_CONTROL};
 use crate::schema::file_stem;
 
 pub use super::folder::MAX_DETAILED;
@@ -65,7 +68,7 @@ fn change_cells(d: &RunData, r: &SummaryRow) -> Vec<Text> {
             })
         })
         .collect();
-    v.push(pct_cell(r, sc::HORIZON, r.get(sc::HORIZON)).then(range_text(
+    v.push(pct_cell(r, sc::YIELD_CHANGE_HORIZON_PCT, r.get(sc::YIELD_CHANGE_HORIZON_PCT)).then(range_text(
         d,
         &r.catchment,
         &r.strategy,
@@ -101,7 +104,7 @@ fn exceed_cell(r: &SummaryRow, k: usize, name: &str, has_guideline: bool) -> Tex
 }
 
 fn display_name(d: &RunData, id: &str) -> String {
-    if id == BASIN {
+    if id == BASIN_ID {
         return "Basin (all catchments)".into();
     }
     d.catchments.iter().find(|c| c.0 == id).map(|c| c.1.clone()).unwrap_or_else(|| id.to_string())
@@ -122,10 +125,10 @@ fn has_stem(d: &RunData, stem: &str) -> bool {
     d.has_figure(&format!("{stem}.png")) || d.has_figure(&format!("{stem}.svg"))
 }
 
-fn method_name(m: &Method) -> &'static str {
+fn method_name(m: &Curves) -> &'static str {
     match m {
-        Method::Zhang { .. } => "Zhang et al. (2001)",
-        Method::Fu { .. } => "Fu (1981)",
+        Curves::Zhang { .. } => "Zhang et al. (2001)",
+        Curves::Fu { .. } => "Fu (1981)",
     }
 }
 
@@ -139,23 +142,16 @@ fn num_plain(v: f64) -> String {
     }
 }
 
-/// A number of run_info.json as the file writes it (`2.0`, `10`, `0.06`).
-fn info_num(d: &RunData, path: &str, v: f64) -> Text {
-    let mut raw = Some(&d.info.raw);
-    for k in path.split('.') {
-        raw = raw.and_then(|x| x.get(k));
-    }
-    let shown = match raw {
-        Some(serde_json::Value::Number(n)) if n.is_i64() || n.is_u64() => n.to_string(),
-        _ => super::fmt::param(v),
-    };
-    Text::new().num(shown, Some(Source::new("run_info.json", &[], path)))
+/// A number of run_info.json (at the dotted `path`) as a reader would write it
+/// ([`super::fmt::param`]: whole numbers plainly, `2.0` as 2, `0.06`).
+fn info_num(path: &str, v: f64) -> Text {
+    Text::new().num(super::fmt::param(v), Some(Source::new(crate::schema::RUN_INFO_FILE, &[], path)))
 }
 
 /// Builds the report document.
 pub fn build(d: &RunData, drawn: &[Drawn]) -> Doc {
     let i = &d.info;
-    let method = method_name(&i.method);
+    let method = method_name(&i.hydrology.curves);
     let mut doc = Doc::new(
         i.title.clone(),
         format!(
@@ -198,8 +194,8 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
     let mut t = Text::new()
         .plain(format!("{} projects water yield and contaminant concentrations for ", i.title))
         .plain(format!("{} catchments", d.catchments.len()));
-    if let Some(b) = d.summary_row(BASIN, NO_CONTROL) {
-        t = t.plain(" (").num(fixed(b.area_ha, 0), Some(s_src(BASIN, NO_CONTROL, "area_ha"))).plain(" ha in all)");
+    if let Some(b) = d.summary_row(BASIN_ID, NO_CONTROL) {
+        t = t.plain(" (").num(fixed(b.area_ha, 0), Some(s_src(BASIN_ID, NO_CONTROL, "area_ha"))).plain(" ha in all)");
     } else {
         t = t.plain(format!(" ({} ha in all)", fixed(area, 0)));
     }
@@ -210,7 +206,7 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
         .num(i.horizon_years.to_string(), Some(Source::new("run_info.json", &[], "horizon_years")))
         .plain(format!(
             " years, with the {method} water-balance curve, as conifers spread, thicken and close canopy.",
-            method = method_name(&i.method)
+            method = method_name(&i.hydrology.curves)
         ));
     if programmes.is_empty() {
         t = t.plain(" No control programme was projected: only the no-control reference.");
@@ -227,7 +223,7 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
 
     // Headline numbers from the basin rows.
     let mut bullets = Vec::new();
-    if let Some(b) = d.summary_row(BASIN, NO_CONTROL) {
+    if let Some(b) = d.summary_row(BASIN_ID, NO_CONTROL) {
         let mut t = Text::new().strong("Water yield. ").plain("Without control, the basin's yield changes by ");
         let parts: Vec<Text> = d
             .offsets
@@ -236,9 +232,9 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
             .filter_map(|(&o, v)| {
                 v.map(|v| {
                     Text::new()
-                        .num(signed(v, 1), Some(s_src(BASIN, NO_CONTROL, &offset_col(o))))
+                        .num(signed(v, 1), Some(s_src(BASIN_ID, NO_CONTROL, &offset_col(o))))
                         .plain(" %")
-                        .then(range_text(d, BASIN, NO_CONTROL, "yield_change_pct", i.start_year + o, 1, true))
+                        .then(range_text(d, BASIN_ID, NO_CONTROL, "yield_change_pct", i.start_year + o, 1, true))
                         .plain(format!(" after {o} years ({})", i.start_year + o))
                 })
             })
@@ -249,20 +245,20 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
             }
             t = t.then(p);
         }
-        if let Some(h) = b.get(sc::HORIZON) {
+        if let Some(h) = b.get(sc::YIELD_CHANGE_HORIZON_PCT) {
             t = t
                 .plain(" and ")
-                .num(signed(h, 1), Some(s_src(BASIN, NO_CONTROL, sc::HORIZON)))
+                .num(signed(h, 1), Some(s_src(BASIN_ID, NO_CONTROL, sc::YIELD_CHANGE_HORIZON_PCT)))
                 .plain(format!(" % by {}", i.end_year()))
-                .then(range_text(d, BASIN, NO_CONTROL, "yield_change_pct", i.end_year(), 1, true));
+                .then(range_text(d, BASIN_ID, NO_CONTROL, "yield_change_pct", i.end_year(), 1, true));
         }
         t = t.plain(", against today's cover held fixed.");
-        if let (Some(s), Some(e)) = (b.get(sc::CANOPY_START), b.get(sc::CANOPY_END)) {
+        if let (Some(s), Some(e)) = (b.get(sc::CANOPY_FRACTION_START), b.get(sc::CANOPY_FRACTION_END)) {
             t = t
                 .plain(" The closed-canopy fraction of the basin goes from ")
-                .num(fixed(s, 3), Some(s_src(BASIN, NO_CONTROL, sc::CANOPY_START)))
+                .num(fixed(s, 3), Some(s_src(BASIN_ID, NO_CONTROL, sc::CANOPY_FRACTION_START)))
                 .plain(" to ")
-                .num(fixed(e, 3), Some(s_src(BASIN, NO_CONTROL, sc::CANOPY_END)))
+                .num(fixed(e, 3), Some(s_src(BASIN_ID, NO_CONTROL, sc::CANOPY_FRACTION_END)))
                 .plain(".");
         }
         bullets.push(t);
@@ -270,7 +266,7 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
     // Largest and smallest losses.
     if let Some((k, o)) = figs::comparison_offset(d) {
         let mut rows: Vec<&SummaryRow> =
-            d.summary.iter().filter(|r| r.strategy == NO_CONTROL && r.catchment != BASIN && r.at_offsets[k].is_some()).collect();
+            d.summary.iter().filter(|r| r.strategy == NO_CONTROL && r.catchment != BASIN_ID && r.at_offsets[k].is_some()).collect();
         rows.sort_by(|a, b| a.at_offsets[k].unwrap_or(0.0).total_cmp(&b.at_offsets[k].unwrap_or(0.0)));
         if let (Some(worst), Some(best)) = (rows.first(), rows.last()) {
             let cell = |r: &SummaryRow| {
@@ -293,7 +289,7 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
         let mut first: Vec<(&SummaryRow, i32)> = d
             .summary
             .iter()
-            .filter(|r| r.strategy == NO_CONTROL && r.catchment != BASIN)
+            .filter(|r| r.strategy == NO_CONTROL && r.catchment != BASIN_ID)
             .filter_map(|r| r.first_exceedance.get(k).copied().flatten().map(|y| (r, y)))
             .collect();
         first.sort_by_key(|x| x.1);
@@ -315,26 +311,26 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
         bullets.push(t);
     }
     // Best programme by benefit-cost ratio (when water has a value) or levelised cost.
-    let basin_rows: Vec<&SummaryRow> = d.summary.iter().filter(|r| r.catchment == BASIN && r.strategy != NO_CONTROL).collect();
+    let basin_rows: Vec<&SummaryRow> = d.summary.iter().filter(|r| r.catchment == BASIN_ID && r.strategy != NO_CONTROL).collect();
     let by_bcr = basin_rows
         .iter()
-        .filter(|r| r.get(sc::BCR).is_some())
-        .max_by(|a, b| a.get(sc::BCR).unwrap_or(0.0).total_cmp(&b.get(sc::BCR).unwrap_or(0.0)));
+        .filter(|r| r.get(sc::BENEFIT_COST_RATIO).is_some())
+        .max_by(|a, b| a.get(sc::BENEFIT_COST_RATIO).unwrap_or(0.0).total_cmp(&b.get(sc::BENEFIT_COST_RATIO).unwrap_or(0.0)));
     let by_lcoe = basin_rows
         .iter()
-        .filter(|r| r.get(sc::LEVELISED).is_some_and(|v| v > 0.0))
-        .min_by(|a, b| a.get(sc::LEVELISED).unwrap_or(f64::MAX).total_cmp(&b.get(sc::LEVELISED).unwrap_or(f64::MAX)));
+        .filter(|r| r.get(sc::LEVELISED_COST_PER_M3).is_some_and(|v| v > 0.0))
+        .min_by(|a, b| a.get(sc::LEVELISED_COST_PER_M3).unwrap_or(f64::MAX).total_cmp(&b.get(sc::LEVELISED_COST_PER_M3).unwrap_or(f64::MAX)));
     if let Some(r) = by_lcoe {
         let mut t = Text::new()
             .strong("Control. ")
             .plain(format!("The lowest levelised cost of water saved is that of {} ($", r.strategy))
-            .then(num_cell(r, sc::LEVELISED, |v| sig(v, 3), 1.0))
+            .then(num_cell(r, sc::LEVELISED_COST_PER_M3, |v| sig(v, 3), 1.0))
             .plain("/m³ for a total cost of $")
-            .then(num_cell(r, sc::COST, |v| fixed(v, 0), 1.0));
+            .then(num_cell(r, sc::TOTAL_COST, |v| fixed(v, 0), 1.0));
         if let Some(b) = by_bcr {
             t = t
                 .plain(format!("); the highest benefit-cost ratio is that of {} (", b.strategy))
-                .then(num_cell(b, sc::BCR, |v| fixed(v, 2), 1.0))
+                .then(num_cell(b, sc::BENEFIT_COST_RATIO, |v| fixed(v, 2), 1.0))
                 .plain(").");
         } else {
             t = t.plain(").");
@@ -362,17 +358,17 @@ fn summary_section(d: &RunData, doc: &mut Doc) {
     let rows: Vec<Vec<Text>> = i
         .strategies
         .iter()
-        .filter_map(|st| d.summary_row(BASIN, st))
+        .filter_map(|st| d.summary_row(BASIN_ID, st))
         .map(|r| {
             let mut row = vec![Text::new().code(&r.strategy)];
             row.extend(change_cells(d, r));
-            row.push(num_cell(r, sc::CANOPY_START, |v| fixed(v, 3), 1.0).plain(" → ").then(num_cell(
+            row.push(num_cell(r, sc::CANOPY_FRACTION_START, |v| fixed(v, 3), 1.0).plain(" → ").then(num_cell(
                 r,
-                sc::CANOPY_END,
+                sc::CANOPY_FRACTION_END,
                 |v| fixed(v, 3),
                 1.0,
             )));
-            row.push(num_cell(r, sc::WATER_LOST, |v| fixed(v, 2), MILLION));
+            row.push(num_cell(r, sc::WATER_LOST_HORIZON_M3_PER_YR, |v| fixed(v, 2), MILLION));
             row
         })
         .collect();
@@ -487,7 +483,7 @@ fn inputs_section(d: &RunData, doc: &mut Doc) {
             Text::from("Projected years"),
             Text::new().num(i.start_year.to_string(), src("start_year")).plain("–").plain(i.end_year().to_string()),
         ],
-        vec![Text::from("Water-balance method"), Text::from(method_name(&i.method))],
+        vec![Text::from("Water-balance method"), Text::from(method_name(&i.hydrology.curves))],
         vec![Text::from("Strategies"), Text::from(i.strategies.join(", "))],
         vec![Text::from("Discount rate, per year"), Text::new().num(num_plain(i.discount_rate), src("discount_rate"))],
         vec![
@@ -723,9 +719,9 @@ fn scenario_tables(s: &super::folder::ScenarioDoc, doc: &mut Doc) {
 
 /// A closure or dilution parameter: from run_info.json if recorded there, else
 /// from the scenario file, else the documented default (named, not numbered).
-fn recorded(d: &RunData, info_path: &str, section: &str, key: &str) -> Text {
-    if let Some(v) = d.info.opt_num(info_path) {
-        return info_num(d, info_path, v);
+fn recorded(d: &RunData, info_path: &str, value: Option<f64>, section: &str, key: &str) -> Text {
+    if let Some(v) = value {
+        return info_num(info_path, v);
     }
     if let Some(s) = &d.scenario {
         if let Some(v) = s.table.get(section).and_then(|t| t.get(key)) {
@@ -752,8 +748,9 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
          numbers in the text are read from run_info.json or the scenario copied into inputs/.",
     );
     doc.heading(3, "Evapotranspiration and water yield");
-    match i.method {
-        Method::Zhang { w_forest, w_grass } => {
+    let closure = |k: &str| i.canopy_closure.as_ref().and_then(|c| c.logistic_parameter(k));
+    match i.hydrology.curves {
+        Curves::Zhang { w_forest, w_grass } => {
             doc.equation(
                 "ET/P = (1 + w·E0/P) / (1 + w·E0/P + P/E0)",
                 "Zhang, Dawes & Walker (2001), eq. 8; P rainfall, E0 potential evapotranspiration, both mm/yr",
@@ -761,13 +758,13 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
             doc.para(
                 Text::new()
                     .plain("with the plant-available-water coefficient w = ")
-                    .then(info_num(d, "hydrology.w_forest", w_forest))
+                    .then(info_num("hydrology.w_forest", w_forest))
                     .plain(" for forest (conifer canopy and existing forest) and w = ")
-                    .then(info_num(d, "hydrology.w_grass", w_grass))
+                    .then(info_num("hydrology.w_grass", w_grass))
                     .plain(" for grass and tussock. ET never exceeds min(P, E0)."),
             );
         }
-        Method::Fu { omega_forest, omega_grass } => {
+        Curves::Fu { omega_forest, omega_grass } => {
             doc.equation(
                 "ET/P = 1 + φ − (1 + φ^ω)^(1/ω),   φ = E0/P",
                 "Fu (1981), in the form of Zhang et al. (2004), eq. 4; evaluated in a numerically stable form",
@@ -775,9 +772,9 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
             doc.para(
                 Text::new()
                     .plain("with ω = ")
-                    .then(info_num(d, "hydrology.omega_forest", omega_forest))
+                    .then(info_num("hydrology.omega_forest", omega_forest))
                     .plain(" for forest and ω = ")
-                    .then(info_num(d, "hydrology.omega_grass", omega_grass))
+                    .then(info_num("hydrology.omega_grass", omega_grass))
                     .plain(" for grass and tussock. ET never exceeds min(P, E0)."),
             );
         }
@@ -789,7 +786,7 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
     doc.para(
         Text::new()
             .plain("where f is the ET-equivalent closed-forest fraction of the catchment (column canopy_fraction). Forest evaporative demand is E0_forest = ")
-            .then(info_num(d, "hydrology.forest_pet_factor", i.forest_pet_factor))
+            .then(info_num("hydrology.forest_pet_factor", i.hydrology.forest_pet_factor))
             .plain(" × E0 where the catchment table gives no pet_forest_mm. The baseline holds today's cover fixed under the same climate; yield change is (Q − Q_baseline)/Q_baseline."),
     );
     if d.scenario.as_ref().is_some_and(|s| s.table.contains_key("calibration")) {
@@ -804,15 +801,15 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
     doc.para(
         Text::new()
             .plain("I is the infested area, V the vulnerable area, S the area of cohorts at or past the seed-bearing age of ")
-            .then(info_num(d, "invasion.seed_bearing_age_yr", i.seed_bearing_age_yr))
+            .then(info_num("invasion.seed_bearing_age_yr", i.invasion.seed_bearing_age_yr as f64))
             .plain(" years, r = ")
-            .then(info_num(d, "invasion.spread_rate_per_yr", i.spread_rate_per_yr))
+            .then(info_num("invasion.spread_rate_per_yr", i.invasion.spread_rate_per_yr))
             .plain(" per year and R = ")
-            .then(info_num(d, "invasion.seed_rain_ha_per_yr", i.seed_rain_ha_per_yr))
+            .then(info_num("invasion.seed_rain_ha_per_yr", i.invasion.seed_rain_ha_per_yr))
             .plain(" ha/yr of seed rain from outside. Cohorts are scattered until age ")
-            .then(info_num(d, "invasion.medium_age_yr", i.medium_age_yr))
+            .then(info_num("invasion.medium_age_yr", i.invasion.medium_age_yr as f64))
             .plain(", medium until age ")
-            .then(info_num(d, "invasion.dense_age_yr", i.dense_age_yr))
+            .then(info_num("invasion.dense_age_yr", i.invasion.dense_age_yr as f64))
             .plain(", and dense after that. Area is conserved: cleared land returns to the uninvaded vulnerable land."),
     );
 
@@ -825,9 +822,9 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
         doc.para(
             Text::new()
                 .plain("Closure follows the scenario's table of stand ages ")
-                .then(recorded(d, "canopy_closure.ages_yr", "canopy_closure", "ages_yr"))
+                .then(recorded(d, "canopy_closure.ages_yr", None, "canopy_closure", "ages_yr"))
                 .plain(" and fractions ")
-                .then(recorded(d, "canopy_closure.fractions", "canopy_closure", "fractions"))
+                .then(recorded(d, "canopy_closure.fractions", None, "canopy_closure", "fractions"))
                 .plain(
                     ", interpolated linearly and held at the ends. Each cohort contributes area × closure(age) of ET-equivalent forest.",
                 ),
@@ -840,11 +837,11 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
         doc.para(
             Text::new()
                 .plain("with half-closure age a½ = ")
-                .then(recorded(d, "canopy_closure.half_closure_age_yr", "canopy_closure", "half_closure_age_yr"))
+                .then(recorded(d, "canopy_closure.half_closure_age_yr", closure("half_closure_age_yr"), "canopy_closure", "half_closure_age_yr"))
                 .plain(" years, steepness k = ")
-                .then(recorded(d, "canopy_closure.steepness_per_yr", "canopy_closure", "steepness_per_yr"))
+                .then(recorded(d, "canopy_closure.steepness_per_yr", closure("steepness_per_yr"), "canopy_closure", "steepness_per_yr"))
                 .plain(" per year and mature closure c_max = ")
-                .then(recorded(d, "canopy_closure.max_fraction", "canopy_closure", "max_fraction"))
+                .then(recorded(d, "canopy_closure.max_fraction", closure("max_fraction"), "canopy_closure", "max_fraction"))
                 .plain(". The canopy fraction is f = (existing forest + Σ cohort area × closure(age)) / catchment area."),
         );
     }
@@ -857,7 +854,7 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
     doc.para(
         Text::new()
             .plain("Export coefficients e_open and e_forest are those of the contaminant table above; point loads come from the catchment table. Below a runoff depth of ")
-            .then(recorded(d, "min_runoff_mm", "dilution", "min_runoff_mm"))
+            .then(recorded(d, "min_runoff_mm", i.min_runoff_mm, "dilution", "min_runoff_mm"))
             .plain(" mm/yr no concentration is stated (the cell is empty and flagged low-runoff). At receiving nodes, volumes and loads of all upstream catchments are summed and the flow-weighted concentration reported."),
     );
 
@@ -879,11 +876,11 @@ fn methods_section(d: &RunData, doc: &mut Doc) {
         "PV = Σ_t C_t / (1 + r)^t;   levelised cost = PV(cost) / PV(water saved)",
         "Present value of a yearly stream, year 0 = the start year (undiscounted)",
     );
-    let mut t = Text::new().plain("with the discount rate r = ").then(info_num(d, "discount_rate", i.discount_rate)).plain(" per year.");
+    let mut t = Text::new().plain("with the discount rate r = ").then(info_num("discount_rate", i.discount_rate)).plain(" per year.");
     if let Some(v) = i.water_value_per_m3 {
         t = t
             .plain(" With the value of water v = ")
-            .then(info_num(d, "water_value_per_m3", v))
+            .then(info_num("water_value_per_m3", v))
             .plain(" $/m³: NPV = v·PV(water) − PV(cost) and benefit-cost ratio = v·PV(water)/PV(cost).");
     }
     doc.para(t);
@@ -959,9 +956,9 @@ fn results_section(d: &RunData, doc: &mut Doc, drawn: &[Drawn]) {
         Text::new().plain(format!(
             "Each catchment's path in Budyko space without control, over the {} curves for forest and for grass/tussock this run used, with the energy and water limits. \
              Hollow markers: start; filled markers: end. {} Moving up from the grass curve towards the forest curve is the invader's extra evapotranspiration; moving sideways is the climate record.{}",
-            method_name(&i.method),
+            method_name(&i.hydrology.curves),
             note_of(figs::BUDYKO),
-            if i.forest_pet_factor > 1.0 {
+            if i.hydrology.forest_pet_factor > 1.0 {
                 " The forest curve uses the forest evaporative demand (E0 times the forest PET factor), so it can lie above the ET = E0 line, which is drawn for grass/tussock PET."
             } else {
                 ""
@@ -1028,7 +1025,7 @@ fn catchment_overview(d: &RunData, doc: &mut Doc) {
             Text::new().num(fixed(r.area_ha, 0), Some(s_src(id, NO_CONTROL, "area_ha"))),
         ];
         row.extend(change_cells(d, r));
-        row.push(num_cell(r, sc::CANOPY_START, |v| fixed(v, 3), 1.0).plain(" → ").then(num_cell(r, sc::CANOPY_END, |v| fixed(v, 3), 1.0)));
+        row.push(num_cell(r, sc::CANOPY_FRACTION_START, |v| fixed(v, 3), 1.0).plain(" → ").then(num_cell(r, sc::CANOPY_FRACTION_END, |v| fixed(v, 3), 1.0)));
         for (k, c) in i.contaminants.iter().enumerate() {
             row.push(exceed_cell(r, k, &c.name, c.guideline_mg_per_l.is_some()));
         }
@@ -1070,16 +1067,16 @@ fn catchment_detail(d: &RunData, doc: &mut Doc, id: &str, name: &str) {
         .plain(", ")
         .num(fixed(nc.area_ha, 0), Some(s_src(id, NO_CONTROL, "area_ha")))
         .plain(" ha). Without control its yield changes by ");
-    t = t.then(pct_cell(nc, sc::HORIZON, nc.get(sc::HORIZON))).plain(format!(" % by {} against the baseline", i.end_year()));
-    if let Some(v) = nc.get(sc::VS_UNINVADED) {
+    t = t.then(pct_cell(nc, sc::YIELD_CHANGE_HORIZON_PCT, nc.get(sc::YIELD_CHANGE_HORIZON_PCT))).plain(format!(" % by {} against the baseline", i.end_year()));
+    if let Some(v) = nc.get(sc::CHANGE_VS_UNINVADED_HORIZON_PCT) {
         t = t
             .plain(" and by ")
-            .num(signed(v, 1), Some(s_src(id, NO_CONTROL, sc::VS_UNINVADED)))
+            .num(signed(v, 1), Some(s_src(id, NO_CONTROL, sc::CHANGE_VS_UNINVADED_HORIZON_PCT)))
             .plain(" % against the same catchment with no invader at all");
     }
     t = t
         .plain("; in the last year that is ")
-        .then(num_cell(nc, sc::WATER_LOST, |v| fixed(v, 2), MILLION))
+        .then(num_cell(nc, sc::WATER_LOST_HORIZON_M3_PER_YR, |v| fixed(v, 2), MILLION))
         .plain(" million m³ less water than the baseline.");
     // The most influential uncertain parameter at the horizon, when ranked.
     if let Some(top) = d.sensitivity.as_ref().and_then(|rows| {
@@ -1111,7 +1108,7 @@ fn catchment_detail(d: &RunData, doc: &mut Doc, id: &str, name: &str) {
         .map(|r| {
             let mut row = vec![Text::new().code(&r.strategy)];
             row.extend(change_cells(d, r));
-            row.push(num_cell(r, sc::CANOPY_END, |v| fixed(v, 3), 1.0));
+            row.push(num_cell(r, sc::CANOPY_FRACTION_END, |v| fixed(v, 3), 1.0));
             for (k, c) in i.contaminants.iter().enumerate() {
                 row.push(exceed_cell(r, k, &c.name, c.guideline_mg_per_l.is_some()));
             }
@@ -1269,16 +1266,16 @@ fn economics_table(d: &RunData, rows: &[&SummaryRow], caption: String) -> Table 
         .map(|r| {
             let mut row = vec![
                 Text::new().code(&r.strategy),
-                num_cell(r, sc::COST, |v| fixed(v, 0), 1.0),
-                num_cell(r, sc::COST_PV, |v| fixed(v, 0), 1.0),
-                num_cell(r, sc::SAVED, |v| fixed(v, 2), MILLION),
-                num_cell(r, sc::SAVED_PV, |v| fixed(v, 2), MILLION),
+                num_cell(r, sc::TOTAL_COST, |v| fixed(v, 0), 1.0),
+                num_cell(r, sc::TOTAL_COST_PV, |v| fixed(v, 0), 1.0),
+                num_cell(r, sc::WATER_SAVED_M3, |v| fixed(v, 2), MILLION),
+                num_cell(r, sc::WATER_SAVED_PV_M3, |v| fixed(v, 2), MILLION),
                 num_cell(r, sc::COST_PER_M3, |v| sig(v, 3), 1.0),
-                num_cell(r, sc::LEVELISED, |v| sig(v, 3), 1.0),
+                num_cell(r, sc::LEVELISED_COST_PER_M3, |v| sig(v, 3), 1.0),
             ];
             if has_value {
                 row.push(num_cell(r, sc::NPV, |v| fixed(v, 0), 1.0));
-                row.push(num_cell(r, sc::BCR, |v| fixed(v, 2), 1.0));
+                row.push(num_cell(r, sc::BENEFIT_COST_RATIO, |v| fixed(v, 2), 1.0));
             }
             row
         })
@@ -1354,7 +1351,7 @@ fn nodes_results(d: &RunData, doc: &mut Doc) {
 
 fn economics_results(d: &RunData, doc: &mut Doc) {
     doc.heading(3, "Strategy economics");
-    let rows: Vec<&SummaryRow> = d.programmes().filter_map(|st| d.summary_row(BASIN, st)).collect();
+    let rows: Vec<&SummaryRow> = d.programmes().filter_map(|st| d.summary_row(BASIN_ID, st)).collect();
     if !rows.is_empty() {
         doc.table(economics_table(
             d,

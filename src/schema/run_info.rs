@@ -16,6 +16,8 @@ use std::path::Path;
 pub const TOOL: &str = "yieldshift";
 /// Value of `inputs_copied_to`.
 pub const INPUTS_COPIED_TO: &str = "inputs/";
+/// Most years after the start a run folder can hold (scenarios allow 300).
+pub const MAX_HORIZON_YEARS: usize = 1000;
 /// Value of `command` in the run_info.json of `yieldshift fit`.
 pub const FIT_COMMAND: &str = "fit";
 
@@ -344,9 +346,21 @@ impl RunInfo {
         self.hydrology.curves.into()
     }
 
-    /// Reads `run_dir/run_info.json`.
+    /// Reads `run_dir/run_info.json`; refuses years no run writes (a hand-edited
+    /// file), so that year arithmetic of the readers cannot overflow.
     pub fn read(run_dir: &Path) -> Result<RunInfo> {
-        read_json(&run_dir.join(super::RUN_INFO_FILE))
+        let path = run_dir.join(super::RUN_INFO_FILE);
+        let info: RunInfo = read_json(&path)?;
+        if !(1..=9999).contains(&info.start_year) {
+            return Err(Error::invalid(Problem::in_file(&path, format!("{} is not a year from 1 to 9999", info.start_year)).column("start_year")));
+        }
+        if info.horizon_years > MAX_HORIZON_YEARS {
+            return Err(Error::invalid(
+                Problem::in_file(&path, format!("{} is more years than a run projects (at most {MAX_HORIZON_YEARS})", info.horizon_years))
+                    .column("horizon_years"),
+            ));
+        }
+        Ok(info)
     }
 
     /// The file's text: pretty JSON and a final line end.
