@@ -344,14 +344,21 @@ fn write_left_out_csv(path: &Path, left: &[LeftOut]) -> Result<()> {
     w.finish()
 }
 
-/// A TOML float that reads back to exactly `v` (always with a decimal point).
+/// A TOML float as the toml crate's serializer writes it: reads back to
+/// exactly `v`, always with a decimal point.
 fn toml_float(v: f64) -> String {
-    let s = format!("{v}");
-    if s.contains(['.', 'e', 'E']) {
-        s
-    } else {
-        format!("{s}.0")
-    }
+    toml::Value::Float(v).to_string()
+}
+
+/// A TOML string as the toml crate's serializer writes it: quoted and escaped,
+/// so any id (with `"`, `\` or control characters) reads back as it is.
+fn toml_str(s: &str) -> String {
+    toml::Value::String(s.to_string()).to_string()
+}
+
+/// Text for a `#` comment: line breaks (which would end the comment) become spaces.
+fn comment(s: &str) -> String {
+    s.chars().map(|c| if c.is_control() { ' ' } else { c }).collect()
 }
 
 /// The `[[calibration]]` snippet: fitted values for gauged catchments, donor
@@ -367,8 +374,8 @@ pub fn calibration_toml(
     let method = scenario.params.curves.method_name();
     let key = fitted.first().map(|f| f.fit.key).unwrap_or("");
     let _ = writeln!(t, "# [[calibration]] entries written by yieldshift fit {}.", env!("CARGO_PKG_VERSION"));
-    let _ = writeln!(t, "# Scenario: {}", scenario.path.display());
-    let _ = writeln!(t, "# Observed flows: {}", observed.path.display());
+    let _ = writeln!(t, "# Scenario: {}", comment(&scenario.path.display().to_string()));
+    let _ = writeln!(t, "# Observed flows: {}", comment(&observed.path.display().to_string()));
     let _ = writeln!(
         t,
         "# Method {method}: {key} fitted so that each gauged catchment's mean simulated yield over its record equals the\n\
@@ -381,7 +388,7 @@ pub fn calibration_toml(
         let years = f.record.years();
         let _ = writeln!(t);
         let _ = writeln!(t, "[[calibration]]");
-        let _ = writeln!(t, "catchment = \"{}\"", c.id);
+        let _ = writeln!(t, "catchment = {}", toml_str(&c.id));
         let _ = writeln!(t, "{} = {}", f.fit.key, toml_float(f.fit.mean.value));
         // A held parameter that differs from [hydrology] (an earlier calibration) is kept.
         for (k, v, base) in parameter_pairs(&fitted_curves, &scenario.params.curves) {
@@ -392,7 +399,7 @@ pub fn calibration_toml(
         let _ = write!(
             t,
             "# {}: {} years used ({}–{}), {} left out; scenario value {}",
-            c.name,
+            comment(&c.name),
             years.len(),
             years.first().map(|y| y.year).unwrap_or(0),
             years.last().map(|y| y.year).unwrap_or(0),
@@ -438,8 +445,8 @@ pub fn calibration_toml(
     for d in donors {
         let _ = writeln!(t);
         let _ = writeln!(t, "[[calibration]]");
-        let _ = writeln!(t, "catchment = \"{}\"", d.ungauged);
-        let _ = writeln!(t, "donor = \"{}\"   # ungauged: takes {}'s fitted values", d.gauged, d.gauged);
+        let _ = writeln!(t, "catchment = {}", toml_str(&d.ungauged));
+        let _ = writeln!(t, "donor = {}   # ungauged: takes {}'s fitted values", toml_str(&d.gauged), comment(&d.gauged));
     }
     let rest: Vec<&crate::model::Catchment> = scenario
         .catchments
@@ -463,8 +470,8 @@ pub fn calibration_toml(
                 .min_by(|a, b| ((a.pet_mm / a.rain_mm) - phi).abs().total_cmp(&((b.pet_mm / b.rain_mm) - phi).abs()));
             if let Some(n) = nearest {
                 let _ = writeln!(t, "# [[calibration]]");
-                let _ = writeln!(t, "# catchment = \"{}\"", c.id);
-                let _ = writeln!(t, "# donor = \"{}\"", n.id);
+                let _ = writeln!(t, "# catchment = {}", toml_str(&c.id));
+                let _ = writeln!(t, "# donor = {}", toml_str(&n.id));
             }
         }
     }
