@@ -16,9 +16,10 @@ use super::projection::LocalProjection;
 use crate::error::{Error, Result};
 use crate::input::gis::Boundaries;
 use crate::output::geojson::Summary;
-use crate::plot::map::{signed, ChoroplethMap, Classes, MapArea, MapPolygon};
+use crate::plot::map::{ChoroplethMap, Classes, MapArea, MapPolygon};
 use crate::plot::{save_figure, Formats};
 use crate::schema::columns::summary;
+use crate::schema::numbers::{readable_signed, Thousands};
 use crate::schema::run_info::RunInfo;
 use crate::schema::{FIGURES_DIR, INPUTS_DIR, NO_CONTROL};
 use geo::{Area, Centroid, Contains, InteriorPoint, LineString, Point, Polygon};
@@ -87,15 +88,11 @@ fn project(b: &Boundaries) -> (LocalProjection, Vec<Projected>) {
     (proj, out)
 }
 
-/// A change in percent for a label: sign always shown, two decimals below 1 %.
+/// A change in percent for a label: sign always shown, two decimals below 1 %,
+/// never thousands-grouped (as the legend).
 fn percent_text(x: f64) -> String {
     let d = if x != 0.0 && x.abs() < 0.95 { 2 } else { 1 };
-    let v = signed(x, d);
-    if x > 0.0 && !v.chars().all(|c| c == '0' || c == '.') {
-        format!("+{v} %")
-    } else {
-        format!("{v} %")
-    }
+    format!("{} %", readable_signed(x, d, Thousands::Plain).unwrap_or_default())
 }
 
 /// One map to draw.
