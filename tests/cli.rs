@@ -1,8 +1,8 @@
 //! End-to-end tests: the real binary on temporary folders.
 
 use std::path::{Path, PathBuf};
-use yieldshift::schema::columns;
 use std::process::{Command, Output};
+use yieldshift::schema::columns;
 
 fn bin() -> Command {
     Command::new(env!("CARGO_BIN_EXE_yieldshift"))

@@ -617,7 +617,16 @@ fn calibration_ids_with_quotes_and_backslashes_read_back_through_the_scenario() 
     std::fs::write(&s, base).unwrap();
     let out = dir.join("fit");
     let donor = format!("{ungauged}={gauged}");
-    let r = bin(&["fit", s.to_str().unwrap(), "--observed", dir.join("observed.csv").to_str().unwrap(), "--out", out.to_str().unwrap(), "--donor", &donor]);
+    let r = bin(&[
+        "fit",
+        s.to_str().unwrap(),
+        "--observed",
+        dir.join("observed.csv").to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--donor",
+        &donor,
+    ]);
     assert!(r.status.success(), "{}", text(&r));
 
     let snippet = std::fs::read_to_string(out.join("calibration.toml")).unwrap();

@@ -341,8 +341,24 @@ mod tests {
     #[test]
     fn quotes_exactly_what_the_hand_quoting_did() {
         let awkward = [
-            "", "plain", "a,b", "say \"hi\"", "two\nlines", "cr\rhere", "crlf\r\n", " padded ", "tab\there", "semi;colon", "'single'",
-            "#hash", "Lac Tekapō", "−12.5", "\"", ",", "=1+1", "back\\slash",
+            "",
+            "plain",
+            "a,b",
+            "say \"hi\"",
+            "two\nlines",
+            "cr\rhere",
+            "crlf\r\n",
+            " padded ",
+            "tab\there",
+            "semi;colon",
+            "'single'",
+            "#hash",
+            "Lac Tekapō",
+            "−12.5",
+            "\"",
+            ",",
+            "=1+1",
+            "back\\slash",
         ];
         // Every field in every position, and rows of two and three fields.
         for a in awkward {

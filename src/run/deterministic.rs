@@ -122,6 +122,7 @@ fn write_catchment_rows(
 }
 
 /// Runs the projection and writes every output.
+// Over 100 lines on purpose: the run's steps in order (stage, project, write, ensemble, finish, commit); each step is a call, and the order is the point.
 pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
     let staging = Staging::new(&opts.out, opts.force)?;
     let dir = staging.dir().to_path_buf();

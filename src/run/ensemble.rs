@@ -340,6 +340,7 @@ struct CatchmentResult {
 
 /// Runs the ensemble and writes `ensemble.csv`, `sensitivity.csv` (when any parameter
 /// is uncertain), `members.csv` (when asked) and band and tornado figures into `dir`.
+// Over 100 lines on purpose: the ensemble's two phases (no-control per catchment in parallel, then each strategy over the basin) share their draws and writers; split, they would pass a dozen locals around.
 pub fn run_ensemble(
     s: &Scenario,
     cfg: &EnsembleConfig,

@@ -4,8 +4,8 @@
 //! `sensitivity.csv`. Used for catchments ([`super::ensemble`]) and the basin
 //! ([`super::basin_totals`]).
 
-use crate::model::stats::{spearman, src};
 use crate::error::Result;
+use crate::model::stats::{spearman, src};
 use crate::output::tables::CsvOut;
 use crate::schema::numbers::opt_num;
 

@@ -205,8 +205,13 @@ pub mod summary {
     /// The leading columns.
     pub const ID: [&str; 4] = [CATCHMENT, NAME, STRATEGY, AREA_HA];
     /// The horizon columns (after the per-offset ones).
-    pub const HORIZON: [&str; 5] =
-        [YIELD_CHANGE_HORIZON_PCT, CHANGE_VS_UNINVADED_HORIZON_PCT, WATER_LOST_HORIZON_M3_PER_YR, CANOPY_FRACTION_START, CANOPY_FRACTION_END];
+    pub const HORIZON: [&str; 5] = [
+        YIELD_CHANGE_HORIZON_PCT,
+        CHANGE_VS_UNINVADED_HORIZON_PCT,
+        WATER_LOST_HORIZON_M3_PER_YR,
+        CANOPY_FRACTION_START,
+        CANOPY_FRACTION_END,
+    ];
     /// The programme economics (after the per-contaminant ones).
     pub const ECONOMICS: [&str; 8] =
         [TOTAL_COST, TOTAL_COST_PV, WATER_SAVED_M3, WATER_SAVED_PV_M3, COST_PER_M3, LEVELISED_COST_PER_M3, NPV, BENEFIT_COST_RATIO];
@@ -448,7 +453,10 @@ mod tests {
         assert_eq!(s.len(), 4 + 2 + 5 + 1 + 8);
         assert_eq!(summary::offset_of(&s[5]), Some(20));
         assert_eq!(summary::offset_of(summary::YIELD_CHANGE_HORIZON_PCT), None);
-        assert_eq!(members::columns(&["a"]), ["catchment", "strategy", "member", "year", "yield_mm", "yield_change_pct", "a_mg_per_l", "control_cost", "water_saved_m3"]);
+        assert_eq!(
+            members::columns(&["a"]),
+            ["catchment", "strategy", "member", "year", "yield_mm", "yield_change_pct", "a_mg_per_l", "control_cost", "water_saved_m3"]
+        );
         assert_eq!(flags::low_runoff("a"), "low-runoff:a");
     }
 

@@ -352,7 +352,9 @@ impl RunInfo {
         let path = run_dir.join(super::RUN_INFO_FILE);
         let info: RunInfo = read_json(&path)?;
         if !(1..=9999).contains(&info.start_year) {
-            return Err(Error::invalid(Problem::in_file(&path, format!("{} is not a year from 1 to 9999", info.start_year)).column("start_year")));
+            return Err(Error::invalid(
+                Problem::in_file(&path, format!("{} is not a year from 1 to 9999", info.start_year)).column("start_year"),
+            ));
         }
         if info.horizon_years > MAX_HORIZON_YEARS {
             return Err(Error::invalid(
@@ -491,7 +493,12 @@ mod tests {
             }],
             discount_rate: 0.05,
             ensemble: Some(EnsembleInfo { climate: EnsembleClimate::Bootstrap, members: 60, sampling: Sampling::LatinHypercube, seed: 7 }),
-            gis: Some(GisInfo { area_from_geometry: false, area_tolerance: 0.05, boundaries: Some("b.geojson".into()), id_property: "id".into() }),
+            gis: Some(GisInfo {
+                area_from_geometry: false,
+                area_tolerance: 0.05,
+                boundaries: Some("b.geojson".into()),
+                id_property: "id".into(),
+            }),
             horizon_years: 60,
             hydrology: Hydrology { forest_pet_factor: 1.15, curves },
             hydrology_method: "zhang".into(),
@@ -526,7 +533,12 @@ mod tests {
 
     #[test]
     fn keys_are_in_alphabetical_order_at_every_level_and_read_back() {
-        let logistic = CanopyClosure::Logistic { curve: LogisticCurve::Logistic, half_closure_age_yr: 12.0, max_fraction: 1.0, steepness_per_yr: 0.35 };
+        let logistic = CanopyClosure::Logistic {
+            curve: LogisticCurve::Logistic,
+            half_closure_age_yr: 12.0,
+            max_fraction: 1.0,
+            steepness_per_yr: 0.35,
+        };
         let table = CanopyClosure::Table { ages_yr: vec![0.0, 30.0], curve: TableCurve::Table, fractions: vec![0.0, 0.9] };
         for (closure, curves) in [
             (logistic, Curves::Zhang { w_forest: 2.0, w_grass: 0.5249999999999999 }),
@@ -568,7 +580,12 @@ mod tests {
     #[test]
     fn a_hand_edited_file_is_refused_naming_line_and_key() {
         let info = example(
-            CanopyClosure::Logistic { curve: LogisticCurve::Logistic, half_closure_age_yr: 12.0, max_fraction: 1.0, steepness_per_yr: 0.35 },
+            CanopyClosure::Logistic {
+                curve: LogisticCurve::Logistic,
+                half_closure_age_yr: 12.0,
+                max_fraction: 1.0,
+                steepness_per_yr: 0.35,
+            },
             Curves::Zhang { w_forest: 2.0, w_grass: 0.5 },
         );
         let text = info.to_json().unwrap().replace("\"discount_rate\": 0.05", "\"discount_rate\": \"five\"");

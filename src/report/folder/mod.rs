@@ -3,7 +3,6 @@
 //! here. A hand-edited or damaged file gives [`Error::Invalid`] naming the file,
 //! the row (spreadsheet numbering, header = row 1) and the column — never a panic.
 
-
 mod csv_table;
 mod rows;
 
@@ -13,7 +12,9 @@ pub use rows::*;
 
 use crate::error::{Error, Problem, Result};
 use crate::schema::columns::{ensemble, sensitivity, summary, yearly};
-use crate::schema::{BASIN_ID, ENSEMBLE_FILE, FIGURES_DIR, INPUTS_DIR, NO_CONTROL, RUN_INFO_FILE, SENSITIVITY_FILE, SUMMARY_FILE, YEARLY_FILE};
+use crate::schema::{
+    BASIN_ID, ENSEMBLE_FILE, FIGURES_DIR, INPUTS_DIR, NO_CONTROL, RUN_INFO_FILE, SENSITIVITY_FILE, SUMMARY_FILE, YEARLY_FILE,
+};
 use csv_table::MAX_PROBLEMS;
 use std::collections::{BTreeMap, BTreeSet};
 use std::path::{Path, PathBuf};

@@ -186,7 +186,6 @@ pub struct NodeYear {
     pub conc: Vec<Option<f64>>,
 }
 
-
 pub(super) fn read_summary(t: &CsvTable, contaminants: &[String], problems: &mut Vec<Problem>) -> (Vec<i32>, Vec<SummaryRow>) {
     let id = t.require(&summary::ID, problems);
     let mut offsets: Vec<(i32, usize)> =
@@ -194,8 +193,7 @@ pub(super) fn read_summary(t: &CsvTable, contaminants: &[String], problems: &mut
     offsets.sort();
     let named: Vec<&str> = summary::HORIZON.iter().chain(&summary::ECONOMICS).copied().collect();
     let cols = t.require(&named, problems);
-    let exceed: Vec<usize> =
-        contaminants.iter().map(|c| t.require(&[summary::first_exceedance_year(c).as_str()], problems)[0]).collect();
+    let exceed: Vec<usize> = contaminants.iter().map(|c| t.require(&[summary::first_exceedance_year(c).as_str()], problems)[0]).collect();
     if !problems.is_empty() {
         return (vec![], vec![]);
     }
@@ -413,4 +411,3 @@ pub(super) fn read_sensitivity(t: &CsvTable, problems: &mut Vec<Problem>) -> Vec
         })
         .collect()
 }
-
