@@ -589,3 +589,61 @@ fn impossible_record_exits_2_and_writes_nothing() {
     let msg = text(&r);
     assert!(msg.contains("--moving-average-yr") && msg.contains("UNGAUGED=GAUGED"), "{msg}");
 }
+
+#[test]
+fn calibration_ids_with_quotes_and_backslashes_read_back_through_the_scenario() {
+    // Ids may hold `"` and `\`: calibration.toml must encode them so that the
+    // scenario reader finds the same catchments.
+    let (gauged, ungauged) = ("q\"uote", "back\\slash");
+    let tmp = tempfile::tempdir().unwrap();
+    let dir = tmp.path();
+    std::fs::write(
+        dir.join("catchments.csv"),
+        "id,name,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha,forest_ha\n\
+         \"q\"\"uote\",\"Quote \"\"Creek\"\"\",1200,1300,850,900,0,0,0,0\n\
+         back\\slash,Slash Stream,800,1000,900,600,0,0,0,0\n",
+    )
+    .unwrap();
+    let mut cl = String::from("catchment,year,rain_mm,pet_mm\n");
+    let mut obs = String::from("catchment,year,flow_mm\n");
+    for t in 0..30 {
+        let (p, e) = climate(t);
+        let (p, e) = (p.round(), e.round());
+        cl.push_str(&format!("\"q\"\"uote\",{},{p},{e}\n\"back\\slash\",{},{p},{e}\n", 1990 + t, 1990 + t));
+        obs.push_str(&format!("\"q\"\"uote\",{},{:.10}\n", 1990 + t, p - zhang_et_mm(p, e, W_GAUGED)));
+    }
+    std::fs::write(dir.join("climate.csv"), cl).unwrap();
+    std::fs::write(dir.join("observed.csv"), obs).unwrap();
+    let base = "start_year = 2020\nhorizon_years = 10\ncatchments = \"catchments.csv\"\n\n[climate]\ntable = \"climate.csv\"\n\n\
+                [hydrology]\nmethod = \"zhang\"\nw_forest = 2.0\nw_grass = 0.5\nforest_pet_factor = 1.1\n";
+    let s = dir.join("scenario.toml");
+    std::fs::write(&s, base).unwrap();
+    let out = dir.join("fit");
+    let donor = format!("{ungauged}={gauged}");
+    let r = bin(&[
+        "fit",
+        s.to_str().unwrap(),
+        "--observed",
+        dir.join("observed.csv").to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--donor",
+        &donor,
+    ]);
+    assert!(r.status.success(), "{}", text(&r));
+
+    let snippet = std::fs::read_to_string(out.join("calibration.toml")).unwrap();
+    let cal = dir.join("calibrated.toml");
+    std::fs::write(&cal, format!("{base}\n{snippet}")).unwrap();
+    let sc = load_scenario(&cal).unwrap_or_else(|e| panic!("{e}\n{snippet}"));
+    let ids: Vec<&str> = sc.catchments.iter().map(|c| c.id.as_str()).collect();
+    assert_eq!(ids, [gauged, ungauged]);
+    let fitted = fit_rows(&out.join("fit.csv"))[0]["value_mean_fit"].parse::<f64>().unwrap();
+    assert_abs_diff_eq!(fitted, W_GAUGED, epsilon = 1e-6);
+    for c in &sc.catchments {
+        match c.curves {
+            Some(CoverCurves::Zhang { w_grass, .. }) => assert_abs_diff_eq!(w_grass, fitted, epsilon = 1e-9),
+            other => panic!("{}: {other:?}\n{snippet}", c.id),
+        }
+    }
+}

@@ -39,7 +39,7 @@
 
 use super::budyko::CoverCurves;
 use super::catchment::{Catchment, ClimateYear, ModelParams};
-use super::cover::{new_infestation_ha, Cohorts};
+use super::cover::new_infestation_ha;
 use super::dilution::M3_PER_MM_HA;
 
 /// Per-year outputs of one catchment, reused between members.

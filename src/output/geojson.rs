@@ -14,7 +14,9 @@
 
 use crate::error::{Error, Problem, Result};
 use crate::input::gis::Boundaries;
-use crate::schema::{NO_CONTROL, RESULTS_FILE, RESULTS_MEMBER};
+use crate::schema::columns::{ensemble, summary};
+use crate::schema::run_info::RunInfo;
+use crate::schema::{ENSEMBLE_FILE, NO_CONTROL, RESULTS_FILE, RESULTS_MEMBER, SUMMARY_FILE};
 use geo::orient::{Direction, Orient};
 use serde::ser::{Serialize, SerializeMap, Serializer};
 use serde_json::Value;
@@ -44,12 +46,12 @@ pub(crate) struct Summary {
 
 impl Summary {
     pub(crate) fn read(run_dir: &Path) -> Result<Summary> {
-        let path = run_dir.join("summary.csv");
+        let path = run_dir.join(SUMMARY_FILE);
         let mut r = csv::ReaderBuilder::new().from_path(&path).map_err(|e| Error::Other(format!("reading {}: {e}", path.display())))?;
         let header: Vec<String> =
             r.headers().map_err(|e| Error::Other(format!("reading {}: {e}", path.display())))?.iter().map(str::to_string).collect();
         let col: HashMap<String, usize> = header.iter().enumerate().map(|(i, h)| (h.clone(), i)).collect();
-        for need in ["catchment", "name", "strategy"] {
+        for need in [summary::CATCHMENT, summary::NAME, summary::STRATEGY] {
             if !col.contains_key(need) {
                 return Err(Error::Other(format!("{} has no column '{need}'; is this a yieldshift run folder?", path.display())));
             }
@@ -59,8 +61,8 @@ impl Summary {
         let mut strategies: Vec<String> = Vec::new();
         for rec in r.records() {
             let rec = rec.map_err(|e| Error::Other(format!("reading {}: {e}", path.display())))?;
-            let c = rec.get(col["catchment"]).unwrap_or("").to_string();
-            let s = rec.get(col["strategy"]).unwrap_or("").to_string();
+            let c = rec.get(col[summary::CATCHMENT]).unwrap_or("").to_string();
+            let s = rec.get(col[summary::STRATEGY]).unwrap_or("").to_string();
             if !strategies.contains(&s) {
                 strategies.push(s.clone());
             }
@@ -108,13 +110,7 @@ impl Summary {
 
     /// Columns `yield_change_<N>y_pct` with their N, in file order.
     pub(crate) fn offset_columns(&self) -> Vec<(usize, String)> {
-        self.header
-            .iter()
-            .filter_map(|h| {
-                let n = h.strip_prefix("yield_change_")?.strip_suffix("y_pct")?;
-                n.parse::<usize>().ok().map(|n| (n, h.clone()))
-            })
-            .collect()
+        self.header.iter().filter_map(|h| summary::offset_of(h).map(|n| (n, h.clone()))).collect()
     }
 }
 
@@ -135,42 +131,12 @@ pub(crate) fn json_number(text: &str) -> std::result::Result<Value, String> {
     }
 }
 
-/// What the maps and the GeoJSON need from `run_info.json`.
-pub(crate) struct RunInfo {
-    pub title: String,
-    pub start_year: i64,
-    pub horizon_years: i64,
-    pub catchment_table: Option<String>,
-    pub version: String,
-}
-
-impl RunInfo {
-    pub(crate) fn read(run_dir: &Path) -> Result<RunInfo> {
-        let path = run_dir.join(crate::schema::RUN_INFO_FILE);
-        let text = std::fs::read_to_string(&path).map_err(|e| Error::io(format!("reading {}", path.display()), e))?;
-        let v: Value = serde_json::from_str(&text).map_err(|e| Error::Other(format!("reading {}: {e}", path.display())))?;
-        let int =
-            |k: &str| v.get(k).and_then(Value::as_i64).ok_or_else(|| Error::Other(format!("{} has no integer '{k}'", path.display())));
-        Ok(RunInfo {
-            title: v.get("title").and_then(Value::as_str).unwrap_or("").to_string(),
-            start_year: int("start_year")?,
-            horizon_years: int("horizon_years")?,
-            catchment_table: v.get("catchment_table").and_then(Value::as_str).map(str::to_string),
-            version: v.get("version").and_then(Value::as_str).unwrap_or("").to_string(),
-        })
-    }
-
-    pub(crate) fn horizon_year(&self) -> i64 {
-        self.start_year + self.horizon_years
-    }
-}
-
 /// (catchment, year) → the p5, p50 and p95 cells of `ensemble.csv`.
 type Percentiles = HashMap<(String, i64), [Value; 3]>;
 
 /// Ensemble percentiles of no-control yield change at the given years (`None` without an ensemble).
 fn ensemble_yield_percentiles(run_dir: &Path, years: &[i64]) -> Result<Option<Percentiles>> {
-    let path = run_dir.join("ensemble.csv");
+    let path = run_dir.join(ENSEMBLE_FILE);
     if !path.exists() {
         return Ok(None);
     }
@@ -178,11 +144,12 @@ fn ensemble_yield_percentiles(run_dir: &Path, years: &[i64]) -> Result<Option<Pe
     let mut r = csv::ReaderBuilder::new().from_path(&path).map_err(|e| fail(e.to_string()))?;
     let h: Vec<String> = r.headers().map_err(|e| fail(e.to_string()))?.iter().map(str::to_string).collect();
     let at = |name: &str| h.iter().position(|x| x == name).ok_or_else(|| fail(format!("no column '{name}'")));
-    let (c, s, y, var, p5, p50, p95) = (at("catchment")?, at("strategy")?, at("year")?, at("variable")?, at("p5")?, at("p50")?, at("p95")?);
+    let (c, s, y, var) = (at(ensemble::CATCHMENT)?, at(ensemble::STRATEGY)?, at(ensemble::YEAR)?, at(ensemble::VARIABLE)?);
+    let (p5, p50, p95) = (at(ensemble::P5)?, at(ensemble::P50)?, at(ensemble::P95)?);
     let mut out = HashMap::new();
     for rec in r.records() {
         let rec = rec.map_err(|e| fail(e.to_string()))?;
-        if rec.get(s) != Some(NO_CONTROL) || rec.get(var) != Some("yield_change_pct") {
+        if rec.get(s) != Some(NO_CONTROL) || rec.get(var) != Some(ensemble::YIELD_CHANGE_PCT) {
             continue;
         }
         let Some(year) = rec.get(y).and_then(|t| t.parse::<i64>().ok()) else { continue };
@@ -209,34 +176,31 @@ impl Serialize for Ordered<'_> {
 }
 
 /// Per-strategy result properties: (summary column, property base name).
-const STRATEGY_PROPERTIES: [(&str, &str); 7] = [
-    ("yield_change_horizon_pct", "yield_change_horizon_pct"),
-    ("water_saved_m3", "water_saved_m3"),
-    ("total_cost", "total_cost"),
-    ("cost_per_m3", "cost_per_m3"),
-    ("levelised_cost_per_m3", "levelised_cost_per_m3"),
-    ("npv", "npv"),
-    ("benefit_cost_ratio", "benefit_cost_ratio"),
+/// Per-strategy result properties: the `summary.csv` columns, each written as
+/// `<column>_<strategy suffix>`.
+const STRATEGY_PROPERTIES: [&str; 7] = [
+    summary::YIELD_CHANGE_HORIZON_PCT,
+    summary::WATER_SAVED_M3,
+    summary::TOTAL_COST,
+    summary::COST_PER_M3,
+    summary::LEVELISED_COST_PER_M3,
+    summary::NPV,
+    summary::BENEFIT_COST_RATIO,
 ];
 
 /// No-control result properties taken under their `summary.csv` names.
-const NO_CONTROL_PROPERTIES: [&str; 5] = [
-    "yield_change_horizon_pct",
-    "change_vs_uninvaded_horizon_pct",
-    "water_lost_horizon_m3_per_yr",
-    "canopy_fraction_start",
-    "canopy_fraction_end",
-];
+const NO_CONTROL_PROPERTIES: [&str; 5] = summary::HORIZON;
 
 /// Reads `run_dir/summary.csv` (and `ensemble.csv` if there is one) and writes
 /// `run_dir/catchments.geojson`: every boundary with its catchment's results
 /// as properties. `run_dir/run_info.json` must already be written. Returns the
 /// path written.
+// Over 100 lines on purpose: one pass from the tables to the file, in the order the properties are written (docs/gis.md lists them in this order); pieces would only pass the same dozen locals around.
 pub fn write_results_geojson(run_dir: &Path, b: &Boundaries) -> Result<PathBuf> {
     let summary = Summary::read(run_dir)?;
     let info = RunInfo::read(run_dir)?;
     let offsets = summary.offset_columns();
-    let exceedance: Vec<&String> = summary.header().iter().filter(|h| h.ends_with("_first_exceedance_year")).collect();
+    let exceedance: Vec<&String> = summary.header().iter().filter(|h| summary::is_first_exceedance_year(h)).collect();
     let strategies: Vec<&String> = summary.strategies.iter().filter(|s| s.as_str() != NO_CONTROL).collect();
 
     // Strategy suffixes must not collide.
@@ -249,8 +213,10 @@ pub fn write_results_geojson(run_dir: &Path, b: &Boundaries) -> Result<PathBuf> 
             ))));
         }
     }
-    let year20 = offsets.iter().find(|(n, _)| *n == 20).map(|_| info.start_year + 20).filter(|y| *y <= info.horizon_year());
-    let ens_years: Vec<i64> = year20.into_iter().chain(std::iter::once(info.horizon_year())).collect();
+    let horizon_year = info.end_year() as i64;
+    let start_year = info.start_year as i64;
+    let year20 = offsets.iter().find(|(n, _)| *n == 20).map(|_| start_year + 20).filter(|y| *y <= horizon_year);
+    let ens_years: Vec<i64> = year20.into_iter().chain(std::iter::once(horizon_year)).collect();
     let ensemble = ensemble_yield_percentiles(run_dir, &ens_years)?;
 
     let mut written: Vec<String> = Vec::new();
@@ -260,17 +226,17 @@ pub fn write_results_geojson(run_dir: &Path, b: &Boundaries) -> Result<PathBuf> 
         if !summary.has_row(id, NO_CONTROL) {
             return Err(Error::Other(format!(
                 "{} has no {NO_CONTROL} row for catchment '{id}' of the boundaries {}; are they from the same run?",
-                run_dir.join("summary.csv").display(),
+                run_dir.join(SUMMARY_FILE).display(),
                 b.path().display()
             )));
         }
         let mut ours: Vec<(String, Value)> = Vec::new();
         let mut put = |k: String, v: Value| ours.push((k, v));
-        put("catchment_name".into(), Value::from(summary.cell(id, NO_CONTROL, "name").unwrap_or("")));
-        put("area_table_ha".into(), summary.json(id, NO_CONTROL, "area_ha")?);
+        put("catchment_name".into(), Value::from(summary.cell(id, NO_CONTROL, summary::NAME).unwrap_or("")));
+        put("area_table_ha".into(), summary.json(id, NO_CONTROL, summary::AREA_HA)?);
         put("area_geodesic_ha".into(), round_json(f.area_ha(), 3));
-        put("start_year".into(), Value::from(info.start_year));
-        put("horizon_year".into(), Value::from(info.horizon_year()));
+        put("start_year".into(), Value::from(start_year));
+        put("horizon_year".into(), Value::from(horizon_year));
         for (_, column) in &offsets {
             put(column.clone(), summary.json(id, NO_CONTROL, column)?);
         }
@@ -283,19 +249,19 @@ pub fn write_results_geojson(run_dir: &Path, b: &Boundaries) -> Result<PathBuf> 
             put(column.to_string(), summary.json(id, NO_CONTROL, column)?);
         }
         if let Some(ens) = &ensemble {
-            for (label, year) in [("20y", year20), ("horizon", Some(info.horizon_year()))] {
+            for (label, year) in [("20y", year20), ("horizon", Some(horizon_year))] {
                 let Some(year) = year else { continue };
                 let cells = ens.get(&(id.to_string(), year));
-                for (k, q) in ["p5", "p50", "p95"].iter().enumerate() {
+                for (k, q) in [ensemble::P5, ensemble::P50, ensemble::P95].iter().enumerate() {
                     put(format!("yield_change_{label}_pct_{q}"), cells.map(|c| c[k].clone()).unwrap_or(Value::Null));
                 }
             }
         }
         for s in &strategies {
             let suffix = property_suffix(s);
-            for (column, base) in STRATEGY_PROPERTIES {
+            for column in STRATEGY_PROPERTIES {
                 if summary.has(column) {
-                    put(format!("{base}_{suffix}"), summary.json(id, s, column)?);
+                    put(format!("{column}_{suffix}"), summary.json(id, s, column)?);
                 }
             }
         }
@@ -324,13 +290,13 @@ pub fn write_results_geojson(run_dir: &Path, b: &Boundaries) -> Result<PathBuf> 
     }
 
     let member = serde_json::json!({
-        "tool": "yieldshift",
+        "tool": crate::schema::run_info::TOOL,
         "version": info.version,
         "title": info.title,
         "boundaries": b.path().file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_default(),
         "id_property": b.id_property(),
-        "start_year": info.start_year,
-        "horizon_year": info.horizon_year(),
+        "start_year": start_year,
+        "horizon_year": horizon_year,
         "strategies": summary.strategies,
         "properties_written": written,
         "properties_documented_in": "docs/gis.md",

@@ -14,6 +14,7 @@
 
 use crate::error::{Error, Problem, Result};
 use crate::schema::RUN_INFO_FILE;
+use std::io::Write as _;
 use std::path::{Path, PathBuf};
 
 /// A staging folder that becomes the output folder on [`Staging::commit`].
@@ -150,6 +151,65 @@ fn process_is_gone(pid: u32) -> bool {
     cfg!(target_os = "linux") && proc_root.join("self").exists() && !proc_root.join(pid.to_string()).exists()
 }
 
+/// Writes `bytes` to `path` atomically: a reader sees the earlier file or the
+/// new one, never a part; a failed write leaves the earlier file untouched.
+/// For every single file written outside a staging folder (`report.html`,
+/// `report.md` when `yieldshift report DIR` regenerates them) and for the run's
+/// own small files (`run_info.json`, `shard.json`, `calibration.toml`).
+pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
+    write_atomic_with(path, |f| f.write_all(bytes))
+}
+
+/// [`write_atomic`] with the content streamed by `fill` into the temporary file.
+///
+/// The temporary file sits in the same folder (so the rename cannot cross file
+/// systems) under [`staging_name`]: the final name, the process id and a
+/// per-process counter, so two files, two threads or two processes never stage
+/// to the same name. The file is synced before the rename and the folder after
+/// it where the platform allows, so the new content survives a crash.
+pub fn write_atomic_with(path: &Path, fill: impl FnOnce(&mut std::fs::File) -> std::io::Result<()>) -> Result<()> {
+    let tmp = staging_name(path)?;
+    let written = std::fs::File::create(&tmp).and_then(|mut f| {
+        fill(&mut f)?;
+        f.sync_all()
+    });
+    if let Err(e) = written {
+        let _ = std::fs::remove_file(&tmp);
+        return Err(Error::io(format!("writing {}", path.display()), e));
+    }
+    if let Err(e) = std::fs::rename(&tmp, path) {
+        let _ = std::fs::remove_file(&tmp);
+        return Err(Error::io(format!("replacing {}", path.display()), e));
+    }
+    sync_folder(folder_of(path));
+    Ok(())
+}
+
+/// The folder a file is in (`.` for a bare name).
+fn folder_of(path: &Path) -> &Path {
+    path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."))
+}
+
+/// A fresh temporary name beside `path`: `.<name>.tmp-<pid>-<n>`.
+pub fn staging_name(path: &Path) -> Result<PathBuf> {
+    static NEXT: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(0);
+    let Some(name) = path.file_name() else {
+        return Err(Error::invalid(Problem::in_file(path, "is not a file name")));
+    };
+    let n = NEXT.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+    Ok(folder_of(path).join(format!(".{}.tmp-{}-{n}", name.to_string_lossy(), std::process::id())))
+}
+
+/// Makes a rename in `dir` durable (Unix: fsync of the folder); a courtesy, errors ignored.
+fn sync_folder(dir: &Path) {
+    #[cfg(unix)]
+    if let Ok(d) = std::fs::File::open(dir) {
+        let _ = d.sync_all();
+    }
+    #[cfg(not(unix))]
+    let _ = dir;
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -215,5 +275,37 @@ mod tests {
         let e = Staging::new(tmp.path(), false).unwrap_err();
         assert!(e.to_string().contains("--force"), "{e}");
         assert_eq!(std::fs::read_to_string(tmp.path().join("mine.txt")).unwrap(), "keep");
+    }
+
+    #[test]
+    fn atomic_writes_in_a_row_both_arrive_and_a_failure_keeps_the_earlier_file() {
+        let tmp = tempfile::tempdir().unwrap();
+        let (html, md) = (tmp.path().join("report.html"), tmp.path().join("report.md"));
+        assert_ne!(staging_name(&html).unwrap(), staging_name(&md).unwrap());
+        assert_ne!(staging_name(&html).unwrap(), staging_name(&html).unwrap());
+        write_atomic(&html, b"<p>one</p>").unwrap();
+        write_atomic(&md, b"one").unwrap();
+        assert_eq!(std::fs::read_to_string(&html).unwrap(), "<p>one</p>");
+        assert_eq!(std::fs::read_to_string(&md).unwrap(), "one");
+        // A write that fails half-way: the earlier file stays, nothing is left beside it.
+        let e = write_atomic_with(&html, |f| {
+            f.write_all(b"<p>tw")?;
+            Err(std::io::Error::other("disk full"))
+        })
+        .unwrap_err();
+        assert!(e.to_string().contains("report.html"), "{e}");
+        assert_eq!(std::fs::read_to_string(&html).unwrap(), "<p>one</p>");
+        // A rename that fails (the target is a folder): the folder stays, no temporary file is left.
+        let taken = tmp.path().join("taken");
+        std::fs::create_dir(&taken).unwrap();
+        std::fs::write(taken.join("keep"), "k").unwrap();
+        assert!(write_atomic(&taken, b"x").is_err());
+        assert_eq!(std::fs::read_to_string(taken.join("keep")).unwrap(), "k");
+        let mut names: Vec<String> =
+            std::fs::read_dir(tmp.path()).unwrap().map(|e| e.unwrap().file_name().to_string_lossy().into_owned()).collect();
+        names.sort();
+        assert_eq!(names, ["report.html", "report.md", "taken"]);
+        write_atomic(&html, b"<p>two</p>").unwrap();
+        assert_eq!(std::fs::read_to_string(&html).unwrap(), "<p>two</p>");
     }
 }

@@ -69,22 +69,12 @@ pub fn write_annual_csv(out: &Path, rows: &[AnnualPet]) -> Result<()> {
     write_atomically(out, &bytes)
 }
 
-/// Writes `bytes` to a temporary file beside `out`, then renames it onto `out`, so
-/// that a failure never leaves a half-written file under the target name.
+/// Creates the folder of `out` if needed and writes `bytes` there atomically
+/// ([`crate::output::outdir::write_atomic`]).
 fn write_atomically(out: &Path, bytes: &[u8]) -> Result<()> {
     let parent = out.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
     std::fs::create_dir_all(parent).map_err(|e| Error::io(format!("creating {}", parent.display()), e))?;
-    let name = out.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_else(|| "pet.csv".to_string());
-    let tmp = parent.join(format!(".{name}.partial-{}", std::process::id()));
-    if let Err(e) = std::fs::write(&tmp, bytes) {
-        let _ = std::fs::remove_file(&tmp);
-        return Err(Error::io(format!("writing {}", tmp.display()), e));
-    }
-    if let Err(e) = std::fs::rename(&tmp, out) {
-        let _ = std::fs::remove_file(&tmp);
-        return Err(Error::io(format!("moving {} into place", out.display()), e));
-    }
-    Ok(())
+    crate::output::outdir::write_atomic(out, bytes)
 }
 
 #[cfg(test)]

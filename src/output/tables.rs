@@ -1,4 +1,5 @@
-//! Tidy CSV outputs: `yearly.csv`, `summary.csv`, `nodes.csv` and `run_info.json`.
+//! Tidy CSV outputs (`yearly.csv`, `summary.csv`, `nodes.csv`, `budget.csv`,
+//! `delay.csv`), the one CSV writer of the crate ([`CsvOut`]) and `run_info.json`.
 //!
 //! Numbers are written with fixed decimals so that outputs are byte-stable;
 //! undefined values (a change against a zero baseline, a concentration in a
@@ -11,104 +12,149 @@ use crate::model::dilution::ConcentrationFlag;
 use crate::model::economics::ProgrammeTotals;
 use crate::model::summary::{CatchmentSummary, NodeYear, REPORT_OFFSETS_YR};
 use crate::model::{Catchment, Contaminant, YearResult};
+use crate::schema::columns::{self, flags};
 use crate::schema::numbers::{num, opt_num};
-use std::fmt::Write as _;
 use std::io::Write;
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
-/// Appends one CSV line (with its newline) to `out`; fields containing a comma,
-/// quote or line break are quoted. Every CSV this crate writes goes through here.
-pub fn push_csv_line<'a>(out: &mut String, fields: impl IntoIterator<Item = &'a str>) {
-    for (i, f) in fields.into_iter().enumerate() {
-        if i > 0 {
-            out.push(',');
-        }
-        if f.bytes().any(|b| matches!(b, b',' | b'"' | b'\n' | b'\r')) {
-            let _ = write!(out, "\"{}\"", f.replace('"', "\"\""));
-        } else {
-            out.push_str(f);
-        }
+/// The one CSV dialect of every table this crate writes: comma-separated, a
+/// field quoted only when it holds a comma, a quote, CR or LF (quotes doubled),
+/// records ended by LF. Record lengths are checked by [`CsvOut`] itself.
+fn dialect() -> csv::WriterBuilder {
+    let mut b = csv::WriterBuilder::new();
+    b.quote_style(csv::QuoteStyle::Necessary).terminator(csv::Terminator::Any(b'\n')).has_headers(false).flexible(true);
+    b
+}
+
+/// Rows encoded by an in-memory [`CsvOut`] (see [`CsvOut::in_memory`]), to be
+/// written in order into a file by [`CsvOut::write_rows`].
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct CsvRows(Vec<u8>);
+
+impl CsvRows {
+    /// The encoded text (whole lines).
+    pub fn as_bytes(&self) -> &[u8] {
+        &self.0
     }
-    out.push('\n');
 }
 
-/// A buffered CSV writer that reports the file on failure.
-pub struct CsvOut {
-    w: std::io::BufWriter<std::fs::File>,
-    path: std::path::PathBuf,
-    line: String,
+/// The one CSV writing path of the crate: every table goes through here, to a
+/// file ([`CsvOut::create`], [`CsvOut::append`]) or to memory for rows computed
+/// in parallel ([`CsvOut::in_memory`]). Failures name the file; a row whose
+/// number of fields differs from the header is refused, naming the row.
+pub struct CsvOut<W: Write = std::fs::File> {
+    /// `None` only for the instant [`CsvOut::write_rows`] takes the file out.
+    w: Option<csv::Writer<W>>,
+    path: PathBuf,
+    /// Fields of every row (the header's), when known.
+    width: Option<usize>,
+    /// Records written so far, header included (for messages).
+    records: usize,
 }
 
-impl CsvOut {
+/// Buffer of a file-backed writer (the file itself is unbuffered).
+const FILE_BUFFER: usize = 1 << 16;
+
+impl CsvOut<std::fs::File> {
     /// Creates the file and writes the header.
-    pub fn create(path: &Path, header: &[String]) -> Result<CsvOut> {
+    pub fn create<H: AsRef<str>>(path: &Path, header: &[H]) -> Result<CsvOut> {
         let f = std::fs::File::create(path).map_err(|e| Error::io(format!("creating {}", path.display()), e))?;
-        let mut out = CsvOut { w: std::io::BufWriter::with_capacity(1 << 16, f), path: path.to_path_buf(), line: String::new() };
-        out.row(header.iter().map(String::as_str))?;
+        let w = dialect().buffer_capacity(FILE_BUFFER).from_writer(f);
+        let mut out = CsvOut { w: Some(w), path: path.to_path_buf(), width: Some(header.len()), records: 0 };
+        out.row(header)?;
         Ok(out)
     }
 
-    /// Writes one row; fields containing a comma, quote or line break are quoted.
-    pub fn row<'a>(&mut self, fields: impl IntoIterator<Item = &'a str>) -> Result<()> {
-        self.line.clear();
-        push_csv_line(&mut self.line, fields);
-        self.w.write_all(self.line.as_bytes()).map_err(|e| Error::io(format!("writing {}", self.path.display()), e))
-    }
-
-    /// Writes pre-formatted CSV text (whole lines).
-    pub fn raw(&mut self, text: &str) -> Result<()> {
-        self.w.write_all(text.as_bytes()).map_err(|e| Error::io(format!("writing {}", self.path.display()), e))
-    }
-
-    /// Flushes the file.
-    pub fn finish(mut self) -> Result<()> {
-        self.w.flush().map_err(|e| Error::io(format!("writing {}", self.path.display()), e))
+    /// Opens an existing table to add rows at its end; `width` is its number of columns.
+    pub fn append(path: &Path, width: usize) -> Result<CsvOut> {
+        let f = std::fs::OpenOptions::new().append(true).open(path).map_err(|e| Error::io(format!("opening {}", path.display()), e))?;
+        let w = dialect().buffer_capacity(FILE_BUFFER).from_writer(f);
+        Ok(CsvOut { w: Some(w), path: path.to_path_buf(), width: Some(width), records: 0 })
     }
 }
 
-/// Header of `yearly.csv`.
-pub fn yearly_header(contaminants: &[Contaminant]) -> Vec<String> {
-    let mut h: Vec<String> = [
-        "catchment",
-        "strategy",
-        "year",
-        "rain_mm",
-        "pet_mm",
-        "et_mm",
-        "yield_mm",
-        "yield_m3",
-        "baseline_yield_mm",
-        "uninvaded_yield_mm",
-        "yield_change_pct",
-        "change_vs_uninvaded_pct",
-        "canopy_fraction",
-        "scattered_ha",
-        "medium_ha",
-        "dense_ha",
-        "infested_ha",
-        "new_infestation_ha",
-        "control_cost",
-        "treated_ha",
-        "cleared_ha",
-        "regrowth_ha",
-        "water_saved_m3",
-        "cumulative_cost",
-        "cumulative_water_saved_m3",
-    ]
-    .iter()
-    .map(|s| s.to_string())
-    .collect();
-    for c in contaminants {
-        h.push(format!("{}_load_kg_per_yr", c.name));
-        h.push(format!("{}_mg_per_l", c.name));
+impl CsvOut<Vec<u8>> {
+    /// Rows of `width` fields encoded in memory (no header), for [`CsvOut::write_rows`].
+    pub fn in_memory(width: usize) -> CsvOut<Vec<u8>> {
+        CsvOut { w: Some(dialect().from_writer(Vec::new())), path: PathBuf::from("(rows in memory)"), width: Some(width), records: 0 }
     }
-    h.push("flags".into());
-    h
+
+    /// The rows written so far.
+    pub fn into_rows(mut self) -> Result<CsvRows> {
+        let w = self.w.take().ok_or_else(|| self.gone())?;
+        w.into_inner().map(CsvRows).map_err(|e| Error::io(format!("writing {}", self.path.display()), e.into_error()))
+    }
+}
+
+impl<W: Write> CsvOut<W> {
+    fn gone(&self) -> Error {
+        Error::Other(format!("writing {}: the writer was lost after an earlier failure", self.path.display()))
+    }
+
+    fn fail(&self, e: csv::Error) -> Error {
+        match e.into_kind() {
+            csv::ErrorKind::Io(io) => Error::io(format!("writing {}", self.path.display()), io),
+            other => Error::Other(format!("writing {}: {other:?}", self.path.display())),
+        }
+    }
+
+    /// Writes one record; fields holding a comma, quote, CR or LF are quoted.
+    pub fn row<T: AsRef<str>>(&mut self, fields: impl IntoIterator<Item = T>) -> Result<()> {
+        let Some(w) = self.w.as_mut() else { return Err(self.gone()) };
+        let mut n = 0;
+        let mut res = Ok(());
+        for f in fields {
+            n += 1;
+            if res.is_ok() {
+                res = w.write_field(f.as_ref());
+            }
+        }
+        res = res.and_then(|_| w.write_record(None::<&[u8]>));
+        res.map_err(|e| self.fail(e))?;
+        self.records += 1;
+        match self.width {
+            Some(width) if width != n => Err(Error::Other(format!(
+                "writing {}: record {} has {n} fields where the header has {width} (a yieldshift bug; please report it)",
+                self.path.display(),
+                self.records
+            ))),
+            _ => Ok(()),
+        }
+    }
+
+    /// Writes rows encoded by an in-memory writer, as they are.
+    pub fn write_rows(&mut self, rows: &CsvRows) -> Result<()> {
+        if rows.0.is_empty() {
+            return Ok(());
+        }
+        let w = self.w.take().ok_or_else(|| self.gone())?;
+        let mut inner = w.into_inner().map_err(|e| Error::io(format!("writing {}", self.path.display()), e.into_error()))?;
+        inner.write_all(&rows.0).map_err(|e| Error::io(format!("writing {}", self.path.display()), e))?;
+        self.w = Some(dialect().buffer_capacity(FILE_BUFFER).from_writer(inner));
+        Ok(())
+    }
+
+    /// Flushes everything written to the file.
+    pub fn finish(mut self) -> Result<()> {
+        let w = self.w.take().ok_or_else(|| self.gone())?;
+        let mut inner = w.into_inner().map_err(|e| Error::io(format!("writing {}", self.path.display()), e.into_error()))?;
+        inner.flush().map_err(|e| Error::io(format!("writing {}", self.path.display()), e))
+    }
+}
+
+/// Header of `yearly.csv` ([`columns::yearly::columns`]).
+pub fn yearly_header(contaminants: &[Contaminant]) -> Vec<String> {
+    columns::yearly::columns(&names(contaminants))
+}
+
+fn names(contaminants: &[Contaminant]) -> Vec<&str> {
+    contaminants.iter().map(|c| c.name.as_str()).collect()
 }
 
 /// Flags for a year's concentrations (`low-runoff:<name>` per contaminant not stated).
 fn concentration_flags(concs: &[std::result::Result<f64, ConcentrationFlag>], contaminants: &[Contaminant]) -> String {
-    concs.iter().zip(contaminants).filter(|(c, _)| c.is_err()).map(|(_, m)| format!("low-runoff:{}", m.name)).collect::<Vec<_>>().join(";")
+    let flags: Vec<String> = concs.iter().zip(contaminants).filter(|(c, _)| c.is_err()).map(|(_, m)| flags::low_runoff(&m.name)).collect();
+    flags.join(&flags::SEPARATOR.to_string())
 }
 
 /// Control columns of one `yearly.csv` row.
@@ -160,45 +206,17 @@ pub fn yearly_fields(c: &Catchment, strategy: &str, y: &YearResult, ctl: &Contro
     let mut flags = concentration_flags(&y.concentrations, contaminants);
     if y.baseline_yield_mm <= 0.0 {
         if !flags.is_empty() {
-            flags.push(';');
+            flags.push(flags::SEPARATOR);
         }
-        flags.push_str("zero-baseline-yield");
+        flags.push_str(flags::ZERO_BASELINE_YIELD);
     }
     f.push(flags);
     f
 }
 
-/// Header of `summary.csv`.
+/// Header of `summary.csv` ([`columns::summary::columns`]).
 pub fn summary_header(contaminants: &[Contaminant]) -> Vec<String> {
-    let mut h: Vec<String> = vec!["catchment".into(), "name".into(), "strategy".into(), "area_ha".into()];
-    for o in REPORT_OFFSETS_YR {
-        h.push(format!("yield_change_{o}y_pct"));
-    }
-    for s in [
-        "yield_change_horizon_pct",
-        "change_vs_uninvaded_horizon_pct",
-        "water_lost_horizon_m3_per_yr",
-        "canopy_fraction_start",
-        "canopy_fraction_end",
-    ] {
-        h.push(s.into());
-    }
-    for c in contaminants {
-        h.push(format!("{}_first_exceedance_year", c.name));
-    }
-    for s in [
-        "total_cost",
-        "total_cost_pv",
-        "water_saved_m3",
-        "water_saved_pv_m3",
-        "cost_per_m3",
-        "levelised_cost_per_m3",
-        "npv",
-        "benefit_cost_ratio",
-    ] {
-        h.push(s.into());
-    }
-    h
+    columns::summary::columns(&REPORT_OFFSETS_YR, &names(contaminants))
 }
 
 /// Fields of one `summary.csv` row; `water_value_per_m3` enables NPV and BCR.
@@ -234,7 +252,7 @@ pub fn summary_fields(
 
 /// Header of `budget.csv`.
 pub fn budget_header() -> Vec<String> {
-    ["strategy", "pool", "year", "available", "spent", "unspent", "carried_over"].iter().map(|s| s.to_string()).collect()
+    columns::owned(&columns::budget::COLUMNS)
 }
 
 /// Fields of one `budget.csv` row (`pool` is `basin` or a catchment id).
@@ -243,43 +261,21 @@ pub fn budget_fields(strategy: &str, pool: &str, b: &BudgetYear) -> Vec<String> 
         strategy.to_string(),
         pool.to_string(),
         b.year.to_string(),
-        if b.available.is_finite() { num(b.available, 2) } else { "unlimited".into() },
+        if b.available.is_finite() { num(b.available, 2) } else { columns::budget::UNLIMITED.into() },
         num(b.spent, 2),
         if b.available.is_finite() { num(b.unspent(), 2) } else { String::new() },
         num(b.carried, 2),
     ]
 }
 
-/// Columns of `delay.csv` (written here, read by the report).
-pub const DELAY_COLUMNS: [&str; 8] = [
-    "strategy",
-    "delay_yr",
-    "start_year",
-    "total_cost",
-    "total_cost_pv",
-    "water_saved_m3",
-    "water_lost_vs_baseline_m3",
-    "final_infested_ha",
-];
-
 /// Header of `delay.csv`.
 pub fn delay_header() -> Vec<String> {
-    DELAY_COLUMNS.iter().map(|s| s.to_string()).collect()
+    columns::owned(&columns::delay::COLUMNS)
 }
 
 /// Header of `nodes.csv`.
 pub fn nodes_header(contaminants: &[Contaminant]) -> Vec<String> {
-    let mut h: Vec<String> =
-        ["node", "strategy", "year", "upstream_catchments", "area_ha", "yield_m3", "baseline_yield_m3", "yield_change_pct"]
-            .iter()
-            .map(|s| s.to_string())
-            .collect();
-    for c in contaminants {
-        h.push(format!("{}_load_kg_per_yr", c.name));
-        h.push(format!("{}_mg_per_l", c.name));
-    }
-    h.push("flags".into());
-    h
+    columns::nodes::columns(&names(contaminants))
 }
 
 /// Fields of one `nodes.csv` row.
@@ -302,9 +298,110 @@ pub fn node_fields(node_id: &str, strategy: &str, upstream: usize, y: &NodeYear,
     f
 }
 
-/// Writes `run_info.json`: what was run, with which method, and the cautions.
-pub fn write_run_info(dir: &Path, info: &serde_json::Value) -> Result<()> {
-    let path = dir.join(crate::schema::RUN_INFO_FILE);
-    let text = serde_json::to_string_pretty(info).map_err(|e| Error::Other(e.to_string()))?;
-    std::fs::write(&path, text + "\n").map_err(|e| Error::io(format!("writing {}", path.display()), e))
+/// Writes `run_info.json` ([`crate::schema::run_info`]: a run's [`RunInfo`](crate::schema::run_info::RunInfo)
+/// or a calibration's [`FitRunInfo`](crate::schema::run_info::FitRunInfo)), atomically.
+pub fn write_run_info(dir: &Path, info: &impl serde::Serialize) -> Result<()> {
+    let text = crate::schema::run_info::to_json(info)?;
+    crate::output::outdir::write_atomic(&dir.join(crate::schema::RUN_INFO_FILE), text.as_bytes())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The hand quoting this crate used before it wrote through the csv crate:
+    /// quote a field holding a comma, quote, CR or LF; double the quotes.
+    fn hand_quoted(fields: &[&str]) -> String {
+        let mut out = String::new();
+        for (i, f) in fields.iter().enumerate() {
+            if i > 0 {
+                out.push(',');
+            }
+            if f.bytes().any(|b| matches!(b, b',' | b'"' | b'\n' | b'\r')) {
+                out.push('"');
+                out.push_str(&f.replace('"', "\"\""));
+                out.push('"');
+            } else {
+                out.push_str(f);
+            }
+        }
+        out.push('\n');
+        out
+    }
+
+    fn encoded(rows: &[Vec<&str>]) -> String {
+        let width = rows.first().map_or(0, Vec::len);
+        let mut w = CsvOut::in_memory(width);
+        for r in rows {
+            w.row(r).unwrap();
+        }
+        String::from_utf8(w.into_rows().unwrap().0).unwrap()
+    }
+
+    #[test]
+    fn quotes_exactly_what_the_hand_quoting_did() {
+        let awkward = [
+            "",
+            "plain",
+            "a,b",
+            "say \"hi\"",
+            "two\nlines",
+            "cr\rhere",
+            "crlf\r\n",
+            " padded ",
+            "tab\there",
+            "semi;colon",
+            "'single'",
+            "#hash",
+            "Lac Tekapō",
+            "−12.5",
+            "\"",
+            ",",
+            "=1+1",
+            "back\\slash",
+        ];
+        // Every field in every position, and rows of two and three fields.
+        for a in awkward {
+            for b in awkward {
+                let row = vec![a, b, "x"];
+                assert_eq!(encoded(&[row.clone()]), hand_quoted(&row), "{row:?}");
+                let row = vec!["x", a, b];
+                assert_eq!(encoded(&[row.clone()]), hand_quoted(&row), "{row:?}");
+            }
+        }
+        // Rows that are all empty fields are written as separators only.
+        assert_eq!(encoded(&[vec!["", "", ""]]), ",,\n");
+    }
+
+    #[test]
+    fn a_lone_empty_field_is_quoted_so_it_reads_back() {
+        // The hand quoting wrote a bare line end, which a reader skips as a
+        // blank line; the csv crate writes `""`, one empty field. No table of
+        // this crate has a single column, so no output changes.
+        assert_eq!(encoded(&[vec![""]]), "\"\"\n");
+        let mut r = csv::ReaderBuilder::new().has_headers(false).from_reader("\"\"\n".as_bytes());
+        let rec = r.records().next().unwrap().unwrap();
+        assert_eq!(rec.len(), 1);
+        assert_eq!(&rec[0], "");
+    }
+
+    #[test]
+    fn rows_in_memory_append_and_width() {
+        let tmp = tempfile::tempdir().unwrap();
+        let path = tmp.path().join("t.csv");
+        let mut w = CsvOut::create(&path, &["a", "b"]).unwrap();
+        let mut m = CsvOut::in_memory(2);
+        m.row(["1", "x,y"]).unwrap();
+        w.write_rows(&m.into_rows().unwrap()).unwrap();
+        w.row(["2", "z"]).unwrap();
+        w.finish().unwrap();
+        let mut a = CsvOut::append(&path, 2).unwrap();
+        a.row(["3", ""]).unwrap();
+        let e = a.row(["4"]).unwrap_err().to_string();
+        assert!(e.contains("t.csv") && e.contains("1 fields where the header has 2"), "{e}");
+        drop(a);
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), "a,b\n1,\"x,y\"\n2,z\n3,\n4\n");
+        let e = CsvOut::create(&tmp.path().join("no/such/dir.csv"), &["a"]).err().unwrap().to_string();
+        assert!(e.contains("dir.csv"), "{e}");
+    }
 }

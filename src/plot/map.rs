@@ -12,6 +12,7 @@
 //! steadily in lightness, so classes stay in order in greyscale.
 
 use super::{err, palette, Figure, FONT};
+use crate::schema::numbers::{readable, Thousands};
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
@@ -128,19 +129,14 @@ impl Classes {
 
     /// Legend text of class `i`, e.g. "−10 to −5".
     pub fn label(&self, i: usize) -> String {
-        format!("{} to {}", signed(self.breaks[i], self.decimals), signed(self.breaks[i + 1], self.decimals))
+        format!("{} to {}", map_number(self.breaks[i], self.decimals), map_number(self.breaks[i + 1], self.decimals))
     }
 }
 
-/// A number with a true minus sign (U+2212), e.g. "−12.5".
-pub fn signed(v: f64, decimals: usize) -> String {
-    let s = format!("{v:.decimals$}");
-    let zero = s.trim_start_matches('-').chars().all(|c| c == '0' || c == '.');
-    if zero {
-        s.trim_start_matches('-').to_string()
-    } else {
-        s.replacen('-', "\u{2212}", 1)
-    }
+/// A number of a map's legend or labels: a true minus sign (U+2212), e.g.
+/// "−12.5", never thousands-grouped (map text has always been plain).
+pub fn map_number(v: f64, decimals: usize) -> String {
+    readable(v, decimals, Thousands::Plain).unwrap_or_default()
 }
 
 /// One polygon in map kilometres: exterior ring and holes (closed or not).
@@ -578,7 +574,9 @@ mod tests {
         assert_eq!(Classes::diverging(&[-2.2], 5).decimals, 1);
         assert_eq!(scale_bar_km(7.3), 5.0);
         assert_eq!(scale_bar_km(1.9), 1.0);
-        assert_eq!(signed(-0.0, 1), "0.0");
-        assert_eq!(signed(-2.5, 1), "\u{2212}2.5");
+        assert_eq!(map_number(-0.0, 1), "0.0");
+        assert_eq!(map_number(-2.5, 1), "\u{2212}2.5");
+        // Legends are never grouped: a change against a small baseline can pass 1000 %.
+        assert_eq!(Classes { breaks: vec![1000.0, 2000.0], colours: vec![NO_VALUE], decimals: 0 }.label(0), "1000 to 2000");
     }
 }

@@ -15,10 +15,13 @@
 use super::projection::LocalProjection;
 use crate::error::{Error, Result};
 use crate::input::gis::Boundaries;
-use crate::output::geojson::{RunInfo, Summary};
-use crate::plot::map::{signed, ChoroplethMap, Classes, MapArea, MapPolygon};
+use crate::output::geojson::Summary;
+use crate::plot::map::{ChoroplethMap, Classes, MapArea, MapPolygon};
 use crate::plot::{save_figure, Formats};
-use crate::schema::NO_CONTROL;
+use crate::schema::columns::summary;
+use crate::schema::numbers::{readable_signed, Thousands};
+use crate::schema::run_info::RunInfo;
+use crate::schema::{FIGURES_DIR, INPUTS_DIR, NO_CONTROL};
 use geo::{Area, Centroid, Contains, InteriorPoint, LineString, Point, Polygon};
 use std::path::Path;
 
@@ -31,11 +34,9 @@ const TARGET_CLASSES: usize = 6;
 /// `(from, to)` catchment ids of the drainage network, from the run's copy of
 /// the catchment table.
 fn read_flows(run_dir: &Path, info: &RunInfo) -> Result<Vec<(String, String)>> {
-    let Some(table) = &info.catchment_table else {
-        return Err(Error::Other(format!("{} does not name the catchment table", run_dir.join(crate::schema::RUN_INFO_FILE).display())));
-    };
+    let table = &info.catchment_table;
     let name = Path::new(table).file_name().ok_or_else(|| Error::Other(format!("catchment table '{table}' has no file name")))?;
-    let path = run_dir.join("inputs").join(name);
+    let path = run_dir.join(INPUTS_DIR).join(name);
     let t = crate::input::table::read_table(&path).map_err(Error::Invalid)?;
     let (Some(_), Some(_)) = (t.col("id"), t.col("flows_to")) else { return Ok(Vec::new()) };
     Ok(t.rows
@@ -87,15 +88,11 @@ fn project(b: &Boundaries) -> (LocalProjection, Vec<Projected>) {
     (proj, out)
 }
 
-/// A change in percent for a label: sign always shown, two decimals below 1 %.
+/// A change in percent for a label: sign always shown, two decimals below 1 %,
+/// never thousands-grouped (as the legend).
 fn percent_text(x: f64) -> String {
     let d = if x != 0.0 && x.abs() < 0.95 { 2 } else { 1 };
-    let v = signed(x, d);
-    if x > 0.0 && !v.chars().all(|c| c == '0' || c == '.') {
-        format!("+{v} %")
-    } else {
-        format!("{v} %")
-    }
+    format!("{} %", readable_signed(x, d, Thousands::Plain).unwrap_or_default())
 }
 
 /// One map to draw.
@@ -103,7 +100,7 @@ struct MapSpec {
     stem: String,
     title: String,
     strategy: String,
-    column: &'static str,
+    column: String,
 }
 
 /// Draws the run's maps into `run_dir/figures/` and returns how many were
@@ -116,38 +113,39 @@ pub fn draw_maps(run_dir: &Path, b: &Boundaries, formats: Formats) -> Result<usi
     let summary = Summary::read(run_dir)?;
     let info = RunInfo::read(run_dir)?;
     let flows = read_flows(run_dir, &info)?;
-    let figdir = run_dir.join("figures");
+    let figdir = run_dir.join(FIGURES_DIR);
     std::fs::create_dir_all(&figdir).map_err(|e| Error::io(format!("creating {}", figdir.display()), e))?;
 
     let mut specs = Vec::new();
-    let horizon = info.horizon_year();
-    if summary.has("yield_change_20y_pct") && info.horizon_years >= 20 {
+    let horizon = info.end_year();
+    let year20 = summary::yield_change_at(20);
+    if summary.has(&year20) && info.horizon_years >= 20 {
         specs.push(MapSpec {
             stem: "map_yield_change_20y".into(),
             title: format!("Water-yield change by {} (year 20), no control", info.start_year + 20),
             strategy: NO_CONTROL.into(),
-            column: "yield_change_20y_pct",
+            column: year20.clone(),
         });
     }
     specs.push(MapSpec {
         stem: "map_yield_change_horizon".into(),
         title: format!("Water-yield change by {horizon} (year {}), no control", info.horizon_years),
         strategy: NO_CONTROL.into(),
-        column: "yield_change_horizon_pct",
+        column: summary::YIELD_CHANGE_HORIZON_PCT.into(),
     });
     for s in summary.strategies.iter().filter(|s| s.as_str() != NO_CONTROL) {
         specs.push(MapSpec {
             stem: format!("map_yield_change_horizon_{}", crate::schema::file_stem(s)),
             title: format!("Water-yield change by {horizon} (year {}) under {s}", info.horizon_years),
             strategy: s.clone(),
-            column: "yield_change_horizon_pct",
+            column: summary::YIELD_CHANGE_HORIZON_PCT.into(),
         });
     }
 
     // Values of every map, then one set of classes for all of them.
     let mut values: Vec<Vec<Option<f64>>> = Vec::with_capacity(specs.len());
     for spec in &specs {
-        let v = b.iter().map(|f| summary.number(f.id(), &spec.strategy, spec.column)).collect::<Result<Vec<_>>>()?;
+        let v = b.iter().map(|f| summary.number(f.id(), &spec.strategy, &spec.column)).collect::<Result<Vec<_>>>()?;
         values.push(v);
     }
     let all: Vec<f64> = values.iter().flatten().flatten().copied().collect();
@@ -159,7 +157,7 @@ pub fn draw_maps(run_dir: &Path, b: &Boundaries, formats: Formats) -> Result<usi
         flows.iter().filter_map(|(from, to)| Some((*index.get(from.as_str())?, *index.get(to.as_str())?))).collect();
     let show_labels = b.len() <= LABEL_LIMIT;
     let names: Vec<String> =
-        b.iter().map(|f| summary.cell(f.id(), NO_CONTROL, "name").filter(|n| !n.is_empty()).unwrap_or(f.id()).to_string()).collect();
+        b.iter().map(|f| summary.cell(f.id(), NO_CONTROL, summary::NAME).filter(|n| !n.is_empty()).unwrap_or(f.id()).to_string()).collect();
 
     let n_maps = values.iter().filter(|v| v.iter().any(Option::is_some)).count();
     let mut n = 0;

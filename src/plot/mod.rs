@@ -31,6 +31,7 @@ pub mod series;
 pub mod tornado;
 
 use crate::error::{Error, Result};
+use crate::schema::numbers::{readable, Thousands};
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::path::Path;
@@ -140,7 +141,7 @@ pub fn tick_decimals(lo: f64, hi: f64, max_ticks: usize) -> usize {
 }
 
 /// A tick or value label: fixed decimals, thousands separators from 1,000 (as in
-/// the report's text), and a true minus sign.
+/// the report's text), and a true minus sign ([`readable`]); empty when not finite.
 pub fn number_label(v: f64, decimals: usize) -> String {
     label(v, decimals, true)
 }
@@ -151,38 +152,8 @@ pub fn plain_label(v: f64, decimals: usize) -> String {
 }
 
 fn label(v: f64, decimals: usize, grouped: bool) -> String {
-    if !v.is_finite() {
-        return String::new();
-    }
-    let s = format!("{:.*}", decimals, v.abs());
-    let zero = s.chars().all(|c| c == '0' || c == '.');
-    let (int, frac) = match s.split_once('.') {
-        Some((i, f)) => (i.to_string(), Some(f.to_string())),
-        None => (s.clone(), None),
-    };
-    let int = if grouped && v.abs() >= 1_000.0 { group_thousands(&int) } else { int };
-    let mut out = String::new();
-    if v < 0.0 && !zero {
-        out.push('\u{2212}');
-    }
-    out.push_str(&int);
-    if let Some(f) = frac {
-        out.push('.');
-        out.push_str(&f);
-    }
-    out
-}
-
-fn group_thousands(digits: &str) -> String {
-    let n = digits.len();
-    let mut out = String::with_capacity(n + n / 3);
-    for (i, c) in digits.chars().enumerate() {
-        if i > 0 && (n - i) % 3 == 0 {
-            out.push(',');
-        }
-        out.push(c);
-    }
-    out
+    let thousands = if grouped { Thousands::Grouped } else { Thousands::Plain };
+    readable(v, decimals, thousands).unwrap_or_default()
 }
 
 /// Draws `fig` to `stem.png` and/or `stem.svg`.

@@ -7,7 +7,7 @@
 //! basin-wide figures and end with `_range` for ensemble figures, so they never
 //! replace a figure the run itself wrote.
 
-use super::folder::{RunData, BASIN, NO_CONTROL};
+use super::folder::RunData;
 use crate::error::Result;
 use crate::model::budyko::CoverCurves;
 use crate::plot::basin::{catchment_comparison, CatchmentChange};
@@ -17,6 +17,7 @@ use crate::plot::sensitivity::{influence_chart, Influence, InfluencePanel};
 use crate::plot::series::{Band, Line, LineChart};
 use crate::plot::{palette, save_figure, Formats};
 use crate::schema::file_stem;
+use crate::schema::{BASIN_ID, NO_CONTROL};
 
 /// Stem of the catchment comparison figure.
 pub const COMPARISON: &str = "basin_yield_change_by_catchment";
@@ -31,7 +32,7 @@ pub fn sensitivity_stem(at: &str) -> String {
 }
 
 fn subject_name(d: &RunData, id: &str) -> String {
-    if id == BASIN {
+    if id == BASIN_ID {
         return "Basin".into();
     }
     d.catchments.iter().find(|c| c.0 == id).map(|c| c.1.clone()).unwrap_or_else(|| id.to_string())
@@ -54,20 +55,18 @@ pub struct Drawn {
 pub fn comparison_offset(d: &RunData) -> Option<(usize, i32)> {
     let i20 = d.offsets.iter().position(|&o| o == 20);
     let pick = i20.or_else(|| {
-        let valid: Vec<usize> = (0..d.offsets.len()).filter(|&i| d.offsets[i] <= d.info.horizon_years).collect();
+        let valid: Vec<usize> = (0..d.offsets.len()).filter(|&i| d.offsets[i] as i64 <= d.info.horizon_years as i64).collect();
         valid.last().copied()
     })?;
     Some((pick, d.offsets[pick]))
 }
 
 fn curves(d: &RunData) -> CoverCurves {
-    match d.info.method {
-        super::folder::Method::Zhang { w_forest, w_grass } => CoverCurves::Zhang { w_forest, w_grass },
-        super::folder::Method::Fu { omega_forest, omega_grass } => CoverCurves::Fu { omega_forest, omega_grass },
-    }
+    d.info.cover_curves()
 }
 
 /// Draws every figure the report owns; returns those drawn.
+// Over 100 lines on purpose: a list of independent figures, each a few lines; one function keeps the list (and the report's figure order) in one place.
 pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
     let dir = d.dir.join("figures");
     std::fs::create_dir_all(&dir).map_err(|e| crate::Error::io(format!("creating {}", dir.display()), e))?;
@@ -88,7 +87,7 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
             d.summary
                 .iter()
                 .filter(|r| r.strategy == NO_CONTROL)
-                .map(|r| (r.catchment.clone(), r.name.clone(), r.get(super::folder::summary_cols::HORIZON)))
+                .map(|r| (r.catchment.clone(), r.name.clone(), r.get(crate::schema::columns::summary::YIELD_CHANGE_HORIZON_PCT)))
                 .collect(),
         ),
     };
@@ -97,10 +96,10 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
         .filter_map(|(id, name, v)| {
             let range = d.ensemble.as_ref().and_then(|e| e.get(id, NO_CONTROL, "yield_change_pct", year)).map(|q| (q.p5, q.p95));
             v.map(|v| CatchmentChange {
-                name: if id == BASIN { "Basin (all catchments)".to_string() } else { name.clone() },
+                name: if id == BASIN_ID { "Basin (all catchments)".to_string() } else { name.clone() },
                 change_pct: v,
                 range_pct: range,
-                is_basin: id == BASIN,
+                is_basin: id == BASIN_ID,
             })
         })
         .collect();
@@ -148,7 +147,7 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
         let fig = BudykoSpace {
             title: format!("{} — catchments in Budyko space, {NO_CONTROL}", d.info.title),
             curves: curves(d),
-            forest_pet_factor: d.info.forest_pet_factor,
+            forest_pet_factor: d.info.hydrology.forest_pet_factor,
             trajectories: cands,
             start_label: format!("Start: mean of {s}–{}", s + w - 1),
             end_label: format!("End: mean of {}–{e}", e - w + 1),
@@ -203,7 +202,7 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
     if let Some(e) = &d.ensemble {
         // Only for the catchments the report details (all of them in small basins).
         let mut subjects: Vec<(String, String)> = d.detailed_catchments().into_iter().map(|c| (c.0.clone(), c.1.clone())).collect();
-        subjects.push((BASIN.to_string(), "Basin (all catchments)".to_string()));
+        subjects.push((BASIN_ID.to_string(), "Basin (all catchments)".to_string()));
         for (id, name) in subjects {
             let stem = file_stem(&id);
             let years = d.years(&id, NO_CONTROL);
@@ -315,8 +314,8 @@ pub fn at_label(at: &str) -> String {
 /// present, else the first catchment and strategy in the file.
 pub fn sensitivity_subject(d: &RunData) -> Option<(String, String)> {
     let rows = d.sensitivity.as_ref()?;
-    if rows.iter().any(|r| r.catchment == BASIN && r.strategy == NO_CONTROL) {
-        return Some((BASIN.into(), NO_CONTROL.into()));
+    if rows.iter().any(|r| r.catchment == BASIN_ID && r.strategy == NO_CONTROL) {
+        return Some((BASIN_ID.into(), NO_CONTROL.into()));
     }
     rows.first().map(|r| (r.catchment.clone(), r.strategy.clone()))
 }

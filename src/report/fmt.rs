@@ -1,47 +1,21 @@
 //! How numbers are written in the report: fixed decimals, thousands grouped with
 //! commas from 1,000, a true minus sign (U+2212), and an explicit `+` on changes.
-//! Undefined values are written as an en dash.
+//! Undefined values are written as an en dash. The digits come from
+//! [`crate::schema::numbers`], shared with the figures.
+
+use crate::schema::numbers::{readable, readable_signed, Thousands};
 
 /// Text for a value that the run left undefined (an empty CSV cell).
 pub const UNDEFINED: &str = "–";
 
-/// `v` with `decimals` places, grouped, true minus sign.
+/// `v` with `decimals` places, grouped, true minus sign ([`readable`]).
 pub fn fixed(v: f64, decimals: usize) -> String {
-    if !v.is_finite() {
-        return UNDEFINED.to_string();
-    }
-    let s = format!("{:.*}", decimals, v.abs());
-    let zero = s.bytes().all(|c| c == b'0' || c == b'.');
-    let (int, frac) = match s.split_once('.') {
-        Some((i, f)) => (i, Some(f)),
-        None => (s.as_str(), None),
-    };
-    let mut out = String::new();
-    if v < 0.0 && !zero {
-        out.push('\u{2212}');
-    }
-    let n = int.len();
-    for (i, c) in int.chars().enumerate() {
-        if i > 0 && (n - i) % 3 == 0 && n > 3 {
-            out.push(',');
-        }
-        out.push(c);
-    }
-    if let Some(f) = frac {
-        out.push('.');
-        out.push_str(f);
-    }
-    out
+    readable(v, decimals, Thousands::Grouped).unwrap_or_else(|| UNDEFINED.to_string())
 }
 
-/// A change: like [`fixed`] with a leading `+` when positive after rounding.
+/// A change: like [`fixed`] with a leading `+` when positive after rounding ([`readable_signed`]).
 pub fn signed(v: f64, decimals: usize) -> String {
-    let s = fixed(v, decimals);
-    if v > 0.0 && s.bytes().any(|c| (b'1'..=b'9').contains(&c)) {
-        format!("+{s}")
-    } else {
-        s
-    }
+    readable_signed(v, decimals, Thousands::Grouped).unwrap_or_else(|| UNDEFINED.to_string())
 }
 
 /// `v` to `digits` significant figures (at most 6 decimals; whole numbers when large).

@@ -111,6 +111,7 @@ fn is_svg(bytes: &[u8]) -> bool {
 }
 
 /// Renders `doc` as a self-contained HTML page; figures are read from `run_dir/figures/`.
+// Over 100 lines on purpose: one HTML document written in order (head, style, blocks, footer); the template reads best as one piece.
 pub fn render(doc: &Doc, run_dir: &Path, footer: &Text) -> String {
     let mut h = String::with_capacity(1 << 20);
     h.push_str("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n");

@@ -23,7 +23,8 @@ pub mod folder;
 pub mod html;
 pub mod markdown;
 
-use crate::error::{Error, Result};
+use crate::error::Result;
+use crate::output::outdir::write_atomic;
 use crate::plot::Formats;
 use std::path::{Path, PathBuf};
 
@@ -45,14 +46,6 @@ pub struct ReportOutcome {
     pub figures: Vec<PathBuf>,
     /// Figures embedded in the report (file names in `figures/`).
     pub embedded: Vec<String>,
-}
-
-/// Writes `text` to `path` through a temporary file, so a failed write never
-/// leaves a half-written report in place of a good one.
-fn write_atomically(path: &Path, text: &str) -> Result<()> {
-    let tmp = path.with_extension("partial");
-    std::fs::write(&tmp, text).map_err(|e| Error::io(format!("writing {}", tmp.display()), e))?;
-    std::fs::rename(&tmp, path).map_err(|e| Error::io(format!("replacing {}", path.display()), e))
 }
 
 /// How the report draws its own figures.
@@ -105,8 +98,10 @@ pub fn write_report_with(run_dir: &Path, opts: &ReportOptions) -> Result<ReportO
     ));
     let html_path = run_dir.join(HTML_FILE);
     let md_path = run_dir.join(MARKDOWN_FILE);
-    write_atomically(&html_path, &html::render(&document, run_dir, &footer))?;
-    write_atomically(&md_path, &markdown::render(&document, &footer))?;
+    // Each document through its own temporary file: a failed write never leaves
+    // a half-written report in place of a good one.
+    write_atomic(&html_path, html::render(&document, run_dir, &footer).as_bytes())?;
+    write_atomic(&md_path, markdown::render(&document, &footer).as_bytes())?;
     let embedded = document
         .blocks
         .iter()

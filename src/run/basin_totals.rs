@@ -506,14 +506,10 @@ impl Partials {
         if self.sensitivity.is_none() {
             return Ok(());
         }
-        let mut text = String::new();
+        let mut out = CsvOut::append(&dir.join("sensitivity.csv"), crate::schema::columns::sensitivity::COLUMNS.len())?;
         for (at, year, r) in self.basin_rankings() {
-            text.push_str(&crate::run::sensitivity::sensitivity_rows(BASIN_ID, crate::schema::NO_CONTROL, &at, year, &r));
+            crate::run::sensitivity::write_sensitivity_rows(&mut out, BASIN_ID, crate::schema::NO_CONTROL, &at, year, &r)?;
         }
-        use std::io::Write;
-        let path = dir.join("sensitivity.csv");
-        let mut f =
-            std::fs::OpenOptions::new().append(true).open(&path).map_err(|e| Error::io(format!("writing {}", path.display()), e))?;
-        f.write_all(text.as_bytes()).map_err(|e| Error::io(format!("writing {}", path.display()), e))
+        out.finish()
     }
 }

@@ -22,6 +22,7 @@ use crate::plot::series::{CoverChart, Line, LineChart};
 use crate::plot::{palette, save_figure, Formats};
 use crate::run::basin_totals::{BasinMeta, DelaySums, Partials, StrategySums};
 use crate::schema::file_stem;
+use crate::schema::run_info::RunInfo;
 use std::path::{Path, PathBuf};
 
 use crate::schema::{BASIN_ID, NO_CONTROL};
@@ -121,6 +122,7 @@ fn write_catchment_rows(
 }
 
 /// Runs the projection and writes every output.
+// Over 100 lines on purpose: the run's steps in order (stage, project, write, ensemble, finish, commit); each step is a call, and the order is the point.
 pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
     let staging = Staging::new(&opts.out, opts.force)?;
     let dir = staging.dir().to_path_buf();
@@ -341,75 +343,53 @@ fn zero_years(start_year: i32, n: usize, k: usize) -> Vec<YearResult> {
         .collect()
 }
 
-fn run_info(s: &Scenario) -> serde_json::Value {
-    use crate::model::budyko::CoverCurves;
+fn run_info(s: &Scenario) -> RunInfo {
+    use crate::input::scenario::ClimateVariability;
+    use crate::schema::run_info as ri;
     let mut strategies = vec![NO_CONTROL.to_string()];
     strategies.extend(s.strategies.iter().map(|st| st.name.clone()));
-    let hydrology = match s.params.curves {
-        CoverCurves::Zhang { w_forest, w_grass } => {
-            serde_json::json!({"method": "zhang", "w_forest": w_forest, "w_grass": w_grass, "forest_pet_factor": s.params.forest_pet_factor})
-        }
-        CoverCurves::Fu { omega_forest, omega_grass } => {
-            serde_json::json!({"method": "fu", "omega_forest": omega_forest, "omega_grass": omega_grass, "forest_pet_factor": s.params.forest_pet_factor})
-        }
-    };
-    let inv = &s.params.invasion;
-    serde_json::json!({
-        "tool": "yieldshift",
-        "version": env!("CARGO_PKG_VERSION"),
-        "title": s.title,
-        "scenario": s.path.display().to_string(),
-        "catchment_table": s.catchments_path.display().to_string(),
-        "climate_table": s.climate_path.as_ref().map(|p| p.display().to_string()),
-        "gis": s.gis.as_ref().map(|g| serde_json::json!({
-            "boundaries": g.boundaries.path().file_name().map(|n| n.to_string_lossy().into_owned()),
-            "id_property": g.boundaries.id_property(),
-            "area_tolerance": g.area_tolerance,
-            "area_from_geometry": g.area_from_geometry,
-        })),
-        "pet_from_weather": s.pet_source.as_ref().map(|(p, m)| serde_json::json!({"weather_table": p.display().to_string(), "method": m})),
-        "inputs_copied_to": "inputs/",
-        "start_year": s.start_year,
-        "horizon_years": s.horizon_years,
-        "catchments": s.catchments.len(),
-        "hydrology_method": s.params.curves.method_name(),
-        "hydrology": hydrology,
-        "invasion": {
-            "spread_rate_per_yr": inv.spread_rate_per_yr,
-            "seed_bearing_age_yr": inv.seed_bearing_age_yr,
-            "seed_rain_ha_per_yr": inv.seed_rain_ha_per_yr,
-            "medium_age_yr": inv.medium_age_yr,
-            "dense_age_yr": inv.dense_age_yr,
-            "initial_dense_span_yr": inv.initial_dense_span_yr,
-        },
-        "canopy_closure": match &inv.closure {
-            crate::model::ClosureCurve::Logistic { half_closure_age_yr, steepness_per_yr, max_fraction } => serde_json::json!({
-                "curve": "logistic", "half_closure_age_yr": half_closure_age_yr, "steepness_per_yr": steepness_per_yr, "max_fraction": max_fraction,
-            }),
-            crate::model::ClosureCurve::Table { ages_yr, fractions } => serde_json::json!({"curve": "table", "ages_yr": ages_yr, "fractions": fractions}),
-        },
-        "min_runoff_mm": s.params.min_runoff_mm,
-        "ensemble": s.ensemble.as_ref().map(|e| serde_json::json!({
-            "members": e.members,
-            "sampling": match e.sampling { crate::model::uncertainty::Sampling::MonteCarlo => "monte-carlo", crate::model::uncertainty::Sampling::LatinHypercube => "latin-hypercube" },
-            "seed": e.seed,
-            "climate": match e.climate {
-                crate::input::scenario::ClimateVariability::None => "none",
-                crate::input::scenario::ClimateVariability::Bootstrap { .. } => "bootstrap",
-                crate::input::scenario::ClimateVariability::Stochastic { .. } => "stochastic",
+    RunInfo {
+        canopy_closure: Some((&s.params.invasion.closure).into()),
+        catchment_table: s.catchments_path.display().to_string(),
+        catchments: s.catchments.len(),
+        cautions: crate::schema::CAUTIONS.into(),
+        climate_table: s.climate_path.as_ref().map(|p| p.display().to_string()),
+        contaminants: s.params.contaminants.iter().map(Into::into).collect(),
+        discount_rate: s.economics.discount_rate,
+        ensemble: s.ensemble.as_ref().map(|e| ri::EnsembleInfo {
+            climate: match e.climate {
+                ClimateVariability::None => ri::EnsembleClimate::None,
+                ClimateVariability::Bootstrap { .. } => ri::EnsembleClimate::Bootstrap,
+                ClimateVariability::Stochastic { .. } => ri::EnsembleClimate::Stochastic,
             },
-        })),
-        "strategies": strategies,
-        "discount_rate": s.economics.discount_rate,
-        "water_value_per_m3": s.economics.water_value_per_m3,
-        "contaminants": s.params.contaminants.iter().map(|c| serde_json::json!({
-            "name": c.name,
-            "open_export_kg_per_ha_yr": c.open_export_kg_per_ha_yr,
-            "forest_export_kg_per_ha_yr": c.forest_export_kg_per_ha_yr,
-            "guideline_mg_per_l": c.guideline_mg_per_l,
-        })).collect::<Vec<_>>(),
-        "cautions": crate::schema::CAUTIONS,
-    })
+            members: e.members,
+            sampling: e.sampling.into(),
+            seed: e.seed,
+        }),
+        gis: s.gis.as_ref().map(|g| ri::GisInfo {
+            area_from_geometry: g.area_from_geometry,
+            area_tolerance: g.area_tolerance,
+            boundaries: g.boundaries.path().file_name().map(|n| n.to_string_lossy().into_owned()),
+            id_property: g.boundaries.id_property().to_string(),
+        }),
+        horizon_years: s.horizon_years,
+        hydrology: ri::Hydrology { forest_pet_factor: s.params.forest_pet_factor, curves: s.params.curves.into() },
+        hydrology_method: s.params.curves.method_name().into(),
+        inputs_copied_to: ri::INPUTS_COPIED_TO.into(),
+        invasion: (&s.params.invasion).into(),
+        min_runoff_mm: Some(s.params.min_runoff_mm),
+        pet_from_weather: s
+            .pet_source
+            .as_ref()
+            .map(|(p, m)| ri::PetFromWeather { method: m.clone(), weather_table: p.display().to_string() }),
+        scenario: s.path.display().to_string(),
+        start_year: s.start_year,
+        strategies,
+        title: s.title.clone(),
+        tool: ri::TOOL.into(),
+        version: env!("CARGO_PKG_VERSION").into(),
+        water_value_per_m3: s.economics.water_value_per_m3,
+    }
 }
 
 /// Copies the scenario and every table it names into `dir/inputs/`, so a run

@@ -25,10 +25,11 @@ use crate::model::kernel::{concentration, project_lean, LeanYears};
 use crate::model::stats::{mean, percentile_sorted};
 use crate::model::uncertainty::{stable_hash, stream, uniforms, UncertainParam};
 use crate::model::CoverCurves;
-use crate::output::tables::CsvOut;
+use crate::output::tables::{CsvOut, CsvRows};
 use crate::plot::tornado::Tornado;
 use crate::plot::{save_figure, Formats};
-use crate::run::sensitivity::{rank, sensitivity_rows, Ranking};
+use crate::run::sensitivity::{rank, write_sensitivity_rows, Ranking};
+use crate::schema::columns;
 use crate::schema::numbers::{num, opt_num};
 use crate::schema::{file_stem, NO_CONTROL};
 use rayon::prelude::*;
@@ -268,14 +269,21 @@ struct MemberValues {
 
 /// Names of the ensemble variables for a scenario, in column order.
 pub fn variable_names(s: &Scenario) -> Vec<String> {
-    let mut v = vec!["yield_mm".to_string(), "yield_change_pct".to_string()];
-    v.extend(s.params.contaminants.iter().map(|c| format!("{}_mg_per_l", c.name)));
-    v.push("control_cost".into());
-    v
+    columns::ensemble::variables(&contaminant_names(s))
 }
 
-fn percentile_rows(s: &Scenario, id: &str, strategy: &str, mv: &MemberValues, names: &[String]) -> String {
-    let mut out = String::new();
+fn contaminant_names(s: &Scenario) -> Vec<&str> {
+    s.params.contaminants.iter().map(|c| c.name.as_str()).collect()
+}
+
+fn percentile_rows<W: std::io::Write>(
+    out: &mut CsvOut<W>,
+    s: &Scenario,
+    id: &str,
+    strategy: &str,
+    mv: &MemberValues,
+    names: &[String],
+) -> Result<()> {
     let k = s.params.contaminants.len();
     for (t, year) in s.years().enumerate() {
         for (vi, name) in names.iter().enumerate() {
@@ -283,7 +291,7 @@ fn percentile_rows(s: &Scenario, id: &str, strategy: &str, mv: &MemberValues, na
             vals.sort_by(f64::total_cmp);
             let guideline = if vi >= 2 && vi < 2 + k { s.params.contaminants[vi - 2].guideline_mg_per_l } else { None };
             let prob = guideline.filter(|_| !vals.is_empty()).map(|g| vals.iter().filter(|&&v| v > g).count() as f64 / vals.len() as f64);
-            let dec = if name == "control_cost" { 2 } else { 5 };
+            let dec = if name == columns::ensemble::CONTROL_COST { 2 } else { 5 };
             let mut fields = vec![id.to_string(), strategy.to_string(), year.to_string(), name.clone()];
             for p in PERCENTILES {
                 fields.push(if vals.is_empty() { String::new() } else { num(percentile_sorted(&vals, p), dec) });
@@ -291,45 +299,36 @@ fn percentile_rows(s: &Scenario, id: &str, strategy: &str, mv: &MemberValues, na
             fields.push(if vals.is_empty() { String::new() } else { num(mean(&vals), dec) });
             fields.push(vals.len().to_string());
             fields.push(opt_num(prob, 4));
-            out.push_str(&csv_line(&fields));
+            out.row(&fields)?;
         }
     }
-    out
-}
-
-fn csv_line(fields: &[String]) -> String {
-    let mut s = String::new();
-    crate::output::tables::push_csv_line(&mut s, fields.iter().map(String::as_str));
-    s
+    Ok(())
 }
 
 /// Header of `ensemble.csv`.
 pub fn ensemble_header() -> Vec<String> {
-    ["catchment", "strategy", "year", "variable", "p5", "p25", "p50", "p75", "p95", "mean", "members", "prob_above_guideline"]
-        .iter()
-        .map(|s| s.to_string())
-        .collect()
+    columns::owned(&columns::ensemble::COLUMNS)
 }
 
 /// Header of `sensitivity.csv`.
 pub fn sensitivity_header() -> Vec<String> {
-    ["catchment", "strategy", "at", "year", "parameter", "spearman_rho", "src", "rank"].iter().map(|s| s.to_string()).collect()
+    columns::owned(&columns::sensitivity::COLUMNS)
 }
 
 /// Offsets (years after the start) at which sensitivity is ranked: year 20 (if within the horizon) and the horizon.
 fn sensitivity_points(s: &Scenario) -> Vec<(&'static str, usize)> {
     let mut v = Vec::new();
     if s.horizon_years >= 20 {
-        v.push(("year-20", 20));
+        v.push((columns::sensitivity::AT_YEAR_20, 20));
     }
-    v.push(("horizon", s.horizon_years));
+    v.push((columns::sensitivity::AT_HORIZON, s.horizon_years));
     v
 }
 
 struct CatchmentResult {
-    ensemble: String,
-    sensitivity: String,
-    members: String,
+    ensemble: CsvRows,
+    sensitivity: CsvRows,
+    members: CsvRows,
     /// Per member: (yield volume, baseline volume) at each sensitivity point, m³.
     basin_volumes: Vec<Vec<(f64, f64)>>,
     /// Draws `[param][member]` (for basin-level sensitivity).
@@ -341,6 +340,7 @@ struct CatchmentResult {
 
 /// Runs the ensemble and writes `ensemble.csv`, `sensitivity.csv` (when any parameter
 /// is uncertain), `members.csv` (when asked) and band and tornado figures into `dir`.
+// Over 100 lines on purpose: the ensemble's two phases (no-control per catchment in parallel, then each strategy over the basin) share their draws and writers; split, they would pass a dozen locals around.
 pub fn run_ensemble(
     s: &Scenario,
     cfg: &EnsembleConfig,
@@ -382,15 +382,15 @@ pub fn run_ensemble(
                 bar.inc(1);
                 r
             })
-            .collect();
+            .collect::<Result<_>>()?;
         for (off, r) in results.into_iter().enumerate() {
             let i = start + off;
-            write_str(&mut ens, &r.ensemble)?;
+            ens.write_rows(&r.ensemble)?;
             if let Some(sn) = sens.as_mut() {
-                write_str(sn, &r.sensitivity)?;
+                sn.write_rows(&r.sensitivity)?;
             }
             if let Some(mo) = members_out.as_mut() {
-                write_str(mo, &r.members)?;
+                mo.write_rows(&r.members)?;
             }
             let a = s.catchments[i].area_ha;
             basin.area_ha.add(a);
@@ -468,16 +468,14 @@ pub fn run_ensemble(
                     }
                 }
             }
-            write_str(&mut ens, &percentile_rows(s, &c.id, &st.name, &mv, &names))?;
+            percentile_rows(&mut ens, s, &c.id, &st.name, &mv, &names)?;
             if let Some(mo) = members_out.as_mut() {
-                let mut text = String::new();
                 for m in 0..m_count {
                     for (t, year) in s.years().enumerate() {
                         let saved = per_member[m].1[i][t] - reference[i][m][t];
-                        text.push_str(&member_line(&c.id, &st.name, m, year, &mv, t, m, Some(saved)));
+                        member_row(mo, &c.id, &st.name, m, year, &mv, t, m, Some(saved))?;
                     }
                 }
-                write_str(mo, &text)?;
             }
         }
     }
@@ -522,7 +520,7 @@ fn no_control_catchment(
     labels: &[String],
     points: &[(&'static str, usize)],
     keep_reference: bool,
-) -> CatchmentResult {
+) -> Result<CatchmentResult> {
     let c = &s.catchments[i];
     let m_count = cfg.members;
     let n_years = s.horizon_years + 1;
@@ -532,7 +530,7 @@ fn no_control_catchment(
     let mut lean = LeanYears::default();
     let mut basin_volumes = Vec::with_capacity(m_count);
     let mut reference_m3 = Vec::new();
-    let mut members = String::new();
+    let mut members = CsvOut::in_memory(if cfg.write_members { members_header(s).len() } else { 0 });
     let mut setup = setup_for(s, &draws, 0);
     for m in 0..m_count {
         // Every uncertain parameter is re-applied, so one setup serves all members.
@@ -563,55 +561,62 @@ fn no_control_catchment(
         }
         if cfg.write_members {
             for (t, year) in s.years().enumerate() {
-                members.push_str(&member_line(&c.id, NO_CONTROL, m, year, &mv, t, m, Some(0.0)));
+                member_row(&mut members, &c.id, NO_CONTROL, m, year, &mv, t, m, Some(0.0))?;
             }
         }
     }
-    let ensemble = percentile_rows(s, &c.id, NO_CONTROL, &mv, names);
-    let mut sensitivity = String::new();
+    let mut ensemble = CsvOut::in_memory(ensemble_header().len());
+    percentile_rows(&mut ensemble, s, &c.id, NO_CONTROL, &mv, names)?;
+    let mut sensitivity = CsvOut::in_memory(sensitivity_header().len());
     let mut ranking = None;
     if !labels.is_empty() {
         for (at, off) in points {
             let r = rank(labels, &draws, &mv.vars[1][*off]);
-            sensitivity.push_str(&sensitivity_rows(&c.id, NO_CONTROL, at, s.start_year + *off as i32, &r));
-            if *at == "horizon" {
+            write_sensitivity_rows(&mut sensitivity, &c.id, NO_CONTROL, at, s.start_year + *off as i32, &r)?;
+            if *at == columns::sensitivity::AT_HORIZON {
                 ranking = Some(r);
             }
         }
     }
-    CatchmentResult {
-        ensemble,
-        sensitivity,
-        members,
+    Ok(CatchmentResult {
+        ensemble: ensemble.into_rows()?,
+        sensitivity: sensitivity.into_rows()?,
+        members: members.into_rows()?,
         basin_volumes,
         draws: if labels.is_empty() { Vec::new() } else { draws },
         ranking,
         reference_m3,
-    }
+    })
+}
+
+/// Header of `members.csv`.
+fn members_header(s: &Scenario) -> Vec<String> {
+    columns::members::columns(&contaminant_names(s))
 }
 
 fn members_file(dir: &Path, s: &Scenario) -> Result<CsvOut> {
-    let mut h: Vec<String> =
-        ["catchment", "strategy", "member", "year", "yield_mm", "yield_change_pct"].iter().map(|x| x.to_string()).collect();
-    h.extend(s.params.contaminants.iter().map(|c| format!("{}_mg_per_l", c.name)));
-    h.push("control_cost".into());
-    h.push("water_saved_m3".into());
-    CsvOut::create(&dir.join("members.csv"), &h)
+    CsvOut::create(&dir.join("members.csv"), &members_header(s))
 }
 
 #[allow(clippy::too_many_arguments)]
-fn member_line(id: &str, strategy: &str, m: usize, year: i32, mv: &MemberValues, t: usize, col: usize, saved: Option<f64>) -> String {
+fn member_row<W: std::io::Write>(
+    out: &mut CsvOut<W>,
+    id: &str,
+    strategy: &str,
+    m: usize,
+    year: i32,
+    mv: &MemberValues,
+    t: usize,
+    col: usize,
+    saved: Option<f64>,
+) -> Result<()> {
     let mut f = vec![id.to_string(), strategy.to_string(), m.to_string(), year.to_string()];
     for (vi, var) in mv.vars.iter().enumerate() {
         let x = var[t][col];
         f.push(if x.is_finite() { num(x, if vi == mv.vars.len() - 1 { 2 } else { 5 }) } else { String::new() });
     }
     f.push(opt_num(saved, 1));
-    csv_line(&f)
-}
-
-fn write_str(out: &mut CsvOut, text: &str) -> Result<()> {
-    out.raw(text)
+    out.row(&f)
 }
 
 /// Draws a tornado figure of a ranking; returns 1 when drawn.

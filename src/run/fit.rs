@@ -14,12 +14,14 @@ use crate::input::scenario::Scenario;
 use crate::model::budyko::CoverCurves;
 use crate::model::fit::{Bound, CatchmentFit, Cover, FitError, FitSettings, GaugeRecord};
 use crate::model::skill::Skill;
+use crate::model::uncertainty::stable_hash;
 use crate::output::outdir::Staging;
 use crate::output::tables::{self, CsvOut};
 use crate::plot::fit::{BudykoChart, FitSeries, Mark, YieldFitChart};
 use crate::plot::{palette, save_figure, Formats};
-use crate::schema::file_stem;
 use crate::schema::numbers::{num, opt_num};
+use crate::schema::run_info::FitRunInfo;
+use crate::schema::{columns, file_stem};
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
@@ -104,14 +106,9 @@ pub fn parse_donor(text: &str) -> std::result::Result<Donor, Problem> {
 }
 
 /// Seed of one catchment's bootstrap: the run's seed mixed with the catchment id
-/// (FNV-1a), so a catchment's interval does not depend on which others are gauged.
+/// ([`stable_hash`]), so a catchment's interval does not depend on which others are gauged.
 pub fn catchment_seed(seed: u64, id: &str) -> u64 {
-    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
-    for b in id.bytes() {
-        h ^= b as u64;
-        h = h.wrapping_mul(0x0000_0100_0000_01b3);
-    }
-    seed ^ h
+    seed ^ stable_hash(id)
 }
 
 fn first_row(s: &ObservedSeries) -> usize {
@@ -239,7 +236,7 @@ pub fn run(scenario: &Scenario, observed: &ObservedFlows, opts: &FitOptions) -> 
     write_left_out_csv(&dir.join("left_out.csv"), &observed.left_out)?;
     let snippet = calibration_toml(scenario, observed, &fitted, &opts.donors, &opts.settings);
     let cal = dir.join("calibration.toml");
-    std::fs::write(&cal, snippet).map_err(|e| Error::io(format!("writing {}", cal.display()), e))?;
+    crate::output::outdir::write_atomic(&cal, snippet.as_bytes())?;
     let fig_dir = dir.join("figures");
     std::fs::create_dir_all(&fig_dir).map_err(|e| Error::io("creating figures/", e))?;
     let mut figures = 0;
@@ -251,49 +248,8 @@ pub fn run(scenario: &Scenario, observed: &ObservedFlows, opts: &FitOptions) -> 
     Ok(FitOutcome { out, fitted, ungauged, left_out: observed.left_out.len(), figures })
 }
 
-/// Header of `fit.csv`.
-pub const FIT_HEADER: [&str; 36] = [
-    "catchment",
-    "name",
-    "method",
-    "parameter",
-    "value_scenario",
-    "value_mean_fit",
-    "value_series_fit",
-    "interval_level",
-    "interval_low",
-    "interval_high",
-    "bootstrap_samples",
-    "bootstrap_at_bound",
-    "nse",
-    "kge",
-    "kge_r",
-    "kge_alpha",
-    "kge_beta",
-    "pbias_pct",
-    "rmse_mm",
-    "nse_scenario",
-    "kge_scenario",
-    "pbias_scenario_pct",
-    "rmse_scenario_mm",
-    "mean_observed_mm",
-    "mean_simulated_mm",
-    "mean_rain_mm",
-    "canopy_fraction",
-    "moving_average_yr",
-    "series_windows",
-    "first_year",
-    "last_year",
-    "years_used",
-    "years_left_out",
-    "years_mean_pet",
-    "series_fit_at_bound",
-    "notes",
-];
-
 fn write_fit_csv(path: &Path, s: &Scenario, fitted: &[FittedCatchment]) -> Result<()> {
-    let header: Vec<String> = FIT_HEADER.iter().map(|h| h.to_string()).collect();
-    let mut w = CsvOut::create(path, &header)?;
+    let mut w = CsvOut::create(path, &columns::fit::COLUMNS)?;
     for f in fitted {
         let c = &s.catchments[f.index];
         let years = f.record.years();
@@ -355,22 +311,7 @@ fn write_fit_csv(path: &Path, s: &Scenario, fitted: &[FittedCatchment]) -> Resul
 }
 
 fn write_years_csv(path: &Path, s: &Scenario, fitted: &[FittedCatchment]) -> Result<()> {
-    let header: Vec<String> = [
-        "catchment",
-        "year",
-        "rain_mm",
-        "pet_mm",
-        "observed_yield_mm",
-        "simulated_yield_mm",
-        "scenario_yield_mm",
-        "residual_mm",
-        "evaporative_ratio_observed",
-        "aridity_index",
-    ]
-    .iter()
-    .map(|h| h.to_string())
-    .collect();
-    let mut w = CsvOut::create(path, &header)?;
+    let mut w = CsvOut::create(path, &columns::fit_years::COLUMNS)?;
     for f in fitted {
         let id = &s.catchments[f.index].id;
         let sim = f.record.simulated_yield_mm(f.fit.mean.value);
@@ -395,8 +336,7 @@ fn write_years_csv(path: &Path, s: &Scenario, fitted: &[FittedCatchment]) -> Res
 }
 
 fn write_left_out_csv(path: &Path, left: &[LeftOut]) -> Result<()> {
-    let header: Vec<String> = ["catchment", "year", "row", "reason"].iter().map(|h| h.to_string()).collect();
-    let mut w = CsvOut::create(path, &header)?;
+    let mut w = CsvOut::create(path, &columns::left_out::COLUMNS)?;
     for l in left {
         let fields = [l.catchment.clone(), l.year.to_string(), l.row.to_string(), l.reason.to_string()];
         w.row(fields.iter().map(String::as_str))?;
@@ -404,18 +344,26 @@ fn write_left_out_csv(path: &Path, left: &[LeftOut]) -> Result<()> {
     w.finish()
 }
 
-/// A TOML float that reads back to exactly `v` (always with a decimal point).
+/// A TOML float as the toml crate's serializer writes it: reads back to
+/// exactly `v`, always with a decimal point.
 fn toml_float(v: f64) -> String {
-    let s = format!("{v}");
-    if s.contains(['.', 'e', 'E']) {
-        s
-    } else {
-        format!("{s}.0")
-    }
+    toml::Value::Float(v).to_string()
+}
+
+/// A TOML string as the toml crate's serializer writes it: quoted and escaped,
+/// so any id (with `"`, `\` or control characters) reads back as it is.
+fn toml_str(s: &str) -> String {
+    toml::Value::String(s.to_string()).to_string()
+}
+
+/// Text for a `#` comment: line breaks (which would end the comment) become spaces.
+fn comment(s: &str) -> String {
+    s.chars().map(|c| if c.is_control() { ' ' } else { c }).collect()
 }
 
 /// The `[[calibration]]` snippet: fitted values for gauged catchments, donor
 /// entries for `--donor` pairs, and commented hints for other ungauged catchments.
+// Over 100 lines on purpose: the snippet is written line by line in file order, comments included; the order of the code is the order of the file.
 pub fn calibration_toml(
     scenario: &Scenario,
     observed: &ObservedFlows,
@@ -427,8 +375,8 @@ pub fn calibration_toml(
     let method = scenario.params.curves.method_name();
     let key = fitted.first().map(|f| f.fit.key).unwrap_or("");
     let _ = writeln!(t, "# [[calibration]] entries written by yieldshift fit {}.", env!("CARGO_PKG_VERSION"));
-    let _ = writeln!(t, "# Scenario: {}", scenario.path.display());
-    let _ = writeln!(t, "# Observed flows: {}", observed.path.display());
+    let _ = writeln!(t, "# Scenario: {}", comment(&scenario.path.display().to_string()));
+    let _ = writeln!(t, "# Observed flows: {}", comment(&observed.path.display().to_string()));
     let _ = writeln!(
         t,
         "# Method {method}: {key} fitted so that each gauged catchment's mean simulated yield over its record equals the\n\
@@ -441,7 +389,7 @@ pub fn calibration_toml(
         let years = f.record.years();
         let _ = writeln!(t);
         let _ = writeln!(t, "[[calibration]]");
-        let _ = writeln!(t, "catchment = \"{}\"", c.id);
+        let _ = writeln!(t, "catchment = {}", toml_str(&c.id));
         let _ = writeln!(t, "{} = {}", f.fit.key, toml_float(f.fit.mean.value));
         // A held parameter that differs from [hydrology] (an earlier calibration) is kept.
         for (k, v, base) in parameter_pairs(&fitted_curves, &scenario.params.curves) {
@@ -452,7 +400,7 @@ pub fn calibration_toml(
         let _ = write!(
             t,
             "# {}: {} years used ({}–{}), {} left out; scenario value {}",
-            c.name,
+            comment(&c.name),
             years.len(),
             years.first().map(|y| y.year).unwrap_or(0),
             years.last().map(|y| y.year).unwrap_or(0),
@@ -498,8 +446,8 @@ pub fn calibration_toml(
     for d in donors {
         let _ = writeln!(t);
         let _ = writeln!(t, "[[calibration]]");
-        let _ = writeln!(t, "catchment = \"{}\"", d.ungauged);
-        let _ = writeln!(t, "donor = \"{}\"   # ungauged: takes {}'s fitted values", d.gauged, d.gauged);
+        let _ = writeln!(t, "catchment = {}", toml_str(&d.ungauged));
+        let _ = writeln!(t, "donor = {}   # ungauged: takes {}'s fitted values", toml_str(&d.gauged), comment(&d.gauged));
     }
     let rest: Vec<&crate::model::Catchment> = scenario
         .catchments
@@ -523,8 +471,8 @@ pub fn calibration_toml(
                 .min_by(|a, b| ((a.pet_mm / a.rain_mm) - phi).abs().total_cmp(&((b.pet_mm / b.rain_mm) - phi).abs()));
             if let Some(n) = nearest {
                 let _ = writeln!(t, "# [[calibration]]");
-                let _ = writeln!(t, "# catchment = \"{}\"", c.id);
-                let _ = writeln!(t, "# donor = \"{}\"", n.id);
+                let _ = writeln!(t, "# catchment = {}", toml_str(&c.id));
+                let _ = writeln!(t, "# donor = {}", toml_str(&n.id));
             }
         }
     }
@@ -540,39 +488,35 @@ fn parameter_pairs(c: &CoverCurves, base: &CoverCurves) -> Vec<(&'static str, f6
         .collect()
 }
 
-fn run_info(
-    s: &Scenario,
-    observed: &ObservedFlows,
-    opts: &FitOptions,
-    fitted: &[FittedCatchment],
-    ungauged: &[String],
-) -> serde_json::Value {
-    serde_json::json!({
-        "tool": "yieldshift",
-        "command": "fit",
-        "version": env!("CARGO_PKG_VERSION"),
-        "title": s.title,
-        "scenario": s.path.display().to_string(),
-        "observed_flows": observed.path.display().to_string(),
-        "climate_table": s.climate_path.as_ref().map(|p| p.display().to_string()),
-        "hydrology_method": s.params.curves.method_name(),
-        "parameter": fitted.first().map(|f| f.fit.key),
-        "cover_fitted": opts.cover.name(),
-        "value_written": "value_mean_fit (long-term mean fit)",
-        "moving_average_yr": opts.settings.moving_average_yr,
-        "bootstrap_samples": opts.settings.bootstrap_samples,
-        "interval_level": opts.settings.level,
-        "seed": opts.settings.seed,
-        "catchments_fitted": fitted.iter().map(|f| s.catchments[f.index].id.clone()).collect::<Vec<_>>(),
-        "catchments_ungauged": ungauged,
-        "donors": opts.donors.iter().map(|d| serde_json::json!({"ungauged": d.ungauged, "gauged": d.gauged})).collect::<Vec<_>>(),
-        "observations_left_out": observed.left_out.len(),
-        "pbias_convention": PBIAS_CONVENTION,
-        "statistics": "nse, kge, pbias_pct, rmse_mm compare annual yields simulated with value_mean_fit to the observed; *_scenario columns use the value before fitting",
-        "cautions": format!("{} {}", crate::schema::CAUTIONS, FIT_CAUTIONS),
-    })
+fn run_info(s: &Scenario, observed: &ObservedFlows, opts: &FitOptions, fitted: &[FittedCatchment], ungauged: &[String]) -> FitRunInfo {
+    use crate::schema::run_info as ri;
+    FitRunInfo {
+        bootstrap_samples: opts.settings.bootstrap_samples,
+        catchments_fitted: fitted.iter().map(|f| s.catchments[f.index].id.clone()).collect(),
+        catchments_ungauged: ungauged.to_vec(),
+        cautions: format!("{} {}", crate::schema::CAUTIONS, FIT_CAUTIONS),
+        climate_table: s.climate_path.as_ref().map(|p| p.display().to_string()),
+        command: ri::FIT_COMMAND.into(),
+        cover_fitted: opts.cover.name().into(),
+        donors: opts.donors.iter().map(|d| ri::DonorInfo { gauged: d.gauged.clone(), ungauged: d.ungauged.clone() }).collect(),
+        hydrology_method: s.params.curves.method_name().into(),
+        interval_level: opts.settings.level,
+        moving_average_yr: opts.settings.moving_average_yr,
+        observations_left_out: observed.left_out.len(),
+        observed_flows: observed.path.display().to_string(),
+        parameter: fitted.first().map(|f| f.fit.key.to_string()),
+        pbias_convention: PBIAS_CONVENTION.into(),
+        scenario: s.path.display().to_string(),
+        seed: opts.settings.seed,
+        statistics: "nse, kge, pbias_pct, rmse_mm compare annual yields simulated with value_mean_fit to the observed; *_scenario columns use the value before fitting".into(),
+        title: s.title.clone(),
+        tool: ri::TOOL.into(),
+        value_written: "value_mean_fit (long-term mean fit)".into(),
+        version: env!("CARGO_PKG_VERSION").into(),
+    }
 }
 
+// Over 100 lines on purpose: two figures of one catchment from the same series; the setup is shared.
 fn draw_figures(dir: &Path, s: &Scenario, f: &FittedCatchment, formats: Formats) -> Result<usize> {
     let c = &s.catchments[f.index];
     let stem = file_stem(&c.id);

@@ -4,8 +4,9 @@
 //! `sensitivity.csv`. Used for catchments ([`super::ensemble`]) and the basin
 //! ([`super::basin_totals`]).
 
+use crate::error::Result;
 use crate::model::stats::{spearman, src};
-use crate::output::tables::push_csv_line;
+use crate::output::tables::CsvOut;
 use crate::schema::numbers::opt_num;
 
 /// One sensitivity ranking: `(parameter label, ρ, SRC)` sorted by |ρ| descending.
@@ -23,28 +24,26 @@ pub fn rank(labels: &[String], xs: &[Vec<f64>], y: &[f64]) -> Ranking {
     r
 }
 
-/// `sensitivity.csv` rows of one ranking.
-pub fn sensitivity_rows(id: &str, strategy: &str, at: &str, year: i32, r: &Ranking) -> String {
-    r.iter()
-        .enumerate()
-        .map(|(k, (label, rho, srcv))| {
-            let mut line = String::new();
-            push_csv_line(
-                &mut line,
-                [
-                    id.into(),
-                    strategy.into(),
-                    at.into(),
-                    year.to_string(),
-                    label.clone(),
-                    opt_num(*rho, 4),
-                    opt_num(*srcv, 4),
-                    (k + 1).to_string(),
-                ]
-                .iter()
-                .map(String::as_str),
-            );
-            line
-        })
-        .collect()
+/// Writes the `sensitivity.csv` rows of one ranking.
+pub fn write_sensitivity_rows<W: std::io::Write>(
+    out: &mut CsvOut<W>,
+    id: &str,
+    strategy: &str,
+    at: &str,
+    year: i32,
+    r: &Ranking,
+) -> Result<()> {
+    for (k, (label, rho, srcv)) in r.iter().enumerate() {
+        out.row([
+            id.to_string(),
+            strategy.to_string(),
+            at.to_string(),
+            year.to_string(),
+            label.clone(),
+            opt_num(*rho, 4),
+            opt_num(*srcv, 4),
+            (k + 1).to_string(),
+        ])?;
+    }
+    Ok(())
 }

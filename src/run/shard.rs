@@ -15,8 +15,11 @@ use crate::model::network::Network;
 use crate::output::outdir::Staging;
 use crate::output::tables::CsvOut;
 use crate::run::basin_totals::Partials;
-use crate::schema::SHARD_FILE;
-use serde::{Deserialize, Serialize};
+use crate::schema::run_info::RunInfo;
+use crate::schema::{
+    BUDGET_FILE, ENSEMBLE_FILE, INPUTS_DIR, MEMBERS_FILE, NODES_FILE, RUN_INFO_FILE, SENSITIVITY_FILE, SHARD_FILE, SUMMARY_FILE,
+    YEARLY_FILE,
+};
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 
@@ -112,25 +115,13 @@ pub fn shard_scenario(full: &Scenario, k: usize, n: usize) -> Result<Scenario> {
     Ok(s)
 }
 
-#[derive(Debug, Serialize, Deserialize)]
-struct ShardInfo {
-    tool: String,
-    shard: usize,
-    of: usize,
-    /// Every catchment of the full table, in order (to sort merged rows).
-    table_order: Vec<String>,
-    /// The catchments in this shard.
-    catchments: Vec<String>,
-    /// Whether the run draws figures (maps are drawn at merge time).
-    #[serde(default)]
-    figures: bool,
-    partials: Partials,
-}
+/// `shard.json` of this run's shards.
+type ShardInfo = crate::schema::shard::ShardInfo<Partials>;
 
 /// Writes `shard.json` into a shard's output folder.
 pub fn write_shard_info(dir: &Path, full: &Scenario, sub: &Scenario, k: usize, n: usize, partials: &Partials, figures: bool) -> Result<()> {
     let info = ShardInfo {
-        tool: "yieldshift".into(),
+        tool: crate::schema::run_info::TOOL.into(),
         shard: k,
         of: n,
         table_order: full.catchments.iter().map(|c| c.id.clone()).collect(),
@@ -138,9 +129,7 @@ pub fn write_shard_info(dir: &Path, full: &Scenario, sub: &Scenario, k: usize, n
         figures,
         partials: partials.clone(),
     };
-    let text = serde_json::to_string(&info).map_err(|e| Error::Other(e.to_string()))?;
-    let path = dir.join(SHARD_FILE);
-    std::fs::write(&path, text).map_err(|e| Error::io(format!("writing {}", path.display()), e))
+    crate::output::outdir::write_atomic(&dir.join(SHARD_FILE), info.to_json()?.as_bytes())
 }
 
 /// What `merge` produced.
@@ -168,10 +157,17 @@ fn read_rows(path: &Path) -> Result<(Vec<String>, Vec<Vec<String>>)> {
         .flexible(true)
         .from_path(path)
         .map_err(|e| Error::invalid(Problem::in_file(path, format!("cannot read: {e}"))))?;
-    let header = r.headers().map_err(|e| Error::invalid(Problem::in_file(path, e.to_string())))?.iter().map(str::to_string).collect();
+    let header: Vec<String> =
+        r.headers().map_err(|e| Error::invalid(Problem::in_file(path, e.to_string())))?.iter().map(str::to_string).collect();
     let mut rows = Vec::new();
     for rec in r.records() {
         let rec = rec.map_err(|e| Error::invalid(Problem::in_file(path, e.to_string())))?;
+        if rec.len() != header.len() {
+            let line = rec.position().map_or(0, |p| p.line() as usize);
+            return Err(Error::invalid(
+                Problem::in_file(path, format!("has {} fields where the header has {}", rec.len(), header.len())).row(line),
+            ));
+        }
         rows.push(rec.iter().map(str::to_string).collect());
     }
     Ok((header, rows))
@@ -226,6 +222,7 @@ fn shard_count_problems(have: &[usize], n: usize) -> Vec<Problem> {
 }
 
 /// Merges shard folders into `out`.
+// Over 100 lines on purpose: the merge's steps in order (check the shards, merge the partial sums, concatenate the tables, finish the basin, commit); the order is the point.
 pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> {
     if dirs.is_empty() {
         return Err(Error::invalid(Problem::new("give the shard folders to merge")));
@@ -248,13 +245,11 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
         }
     }
     problems.extend(shard_count_problems(&infos.iter().map(|(_, i)| i.shard).collect::<Vec<_>>(), n));
-    let run_info = std::fs::read(infos[0].0.join(crate::schema::RUN_INFO_FILE)).unwrap_or_default();
+    let run_info = std::fs::read(infos[0].0.join(RUN_INFO_FILE)).unwrap_or_default();
     for (d, _) in &infos[1..] {
-        if std::fs::read(d.join(crate::schema::RUN_INFO_FILE)).unwrap_or_default() != run_info {
-            problems.push(Problem::in_file(
-                &d.join(crate::schema::RUN_INFO_FILE),
-                "differs from the first shard's: shards must come from the same scenario",
-            ));
+        if std::fs::read(d.join(RUN_INFO_FILE)).unwrap_or_default() != run_info {
+            problems
+                .push(Problem::in_file(&d.join(RUN_INFO_FILE), "differs from the first shard's: shards must come from the same scenario"));
         }
     }
     if !problems.is_empty() {
@@ -271,15 +266,17 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
 
     let staging = Staging::new(out, force)?;
     let dir = staging.dir().to_path_buf();
-    // Per-catchment tables: concatenate every shard's rows, stable-sorted into single-run order.
-    type Key = fn(&[String], &dyn Fn(&str) -> usize, &dyn Fn(&str) -> usize) -> (usize, usize, usize);
-    let tables: [(&str, Key); 6] = [
-        ("yearly.csv", |r, c, s| (s(&r[1]), c(&r[0]), 0)),
-        ("nodes.csv", |r, c, s| (s(&r[1]), c(&r[0]), 0)),
-        ("budget.csv", |r, c, s| (s(&r[0]), r[2].parse().unwrap_or(0), c(&r[1]))),
-        ("ensemble.csv", |r, c, s| (s(&r[1]), c(&r[0]), 0)),
-        ("members.csv", |r, c, s| (s(&r[1]), c(&r[0]), 0)),
-        ("sensitivity.csv", |r, c, s| (s(&r[1]), c(&r[0]), 0)),
+    // Per-catchment tables: concatenate every shard's rows, stable-sorted into
+    // single-run order: by strategy, then by the named columns (catchments in
+    // table order, years as numbers).
+    use crate::schema::columns::{budget, ensemble, members, nodes, sensitivity, yearly};
+    let tables: [(&str, [&str; 3]); 6] = [
+        (YEARLY_FILE, [yearly::STRATEGY, yearly::CATCHMENT, ""]),
+        (NODES_FILE, [nodes::STRATEGY, nodes::NODE, ""]),
+        (BUDGET_FILE, [budget::STRATEGY, budget::YEAR, budget::POOL]),
+        (ENSEMBLE_FILE, [ensemble::STRATEGY, ensemble::CATCHMENT, ""]),
+        (MEMBERS_FILE, [members::STRATEGY, members::CATCHMENT, ""]),
+        (SENSITIVITY_FILE, [sensitivity::STRATEGY, sensitivity::CATCHMENT, ""]),
     ];
     for (name, key) in tables {
         if !infos[0].0.join(name).exists() {
@@ -292,22 +289,50 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
             header = h;
             rows.extend(r);
         }
-        rows.sort_by_key(|r| key(r, &cat, &strat));
+        let path = infos[0].0.join(name);
+        let at = |c: &str| -> Result<Option<usize>> {
+            if c.is_empty() {
+                return Ok(None);
+            }
+            header.iter().position(|h| h == c).map(Some).ok_or_else(|| {
+                Error::invalid(Problem::in_file(&path, format!("has no column '{c}'; is this a yieldshift shard?")).row(1).column(c))
+            })
+        };
+        let (k0, k1, k2) = (at(key[0])?, at(key[1])?, at(key[2])?);
+        let rank = |r: &[String], k: Option<usize>, c: &str| -> usize {
+            let Some(v) = k.and_then(|k| r.get(k)) else { return 0 };
+            match c {
+                crate::schema::columns::STRATEGY => strat(v),
+                crate::schema::columns::YEAR => v.parse().unwrap_or(0),
+                _ => cat(v),
+            }
+        };
+        rows.sort_by_key(|r| (rank(r, k0, key[0]), rank(r, k1, key[1]), rank(r, k2, key[2])));
         let mut w = CsvOut::create(&dir.join(name), &header)?;
         for r in &rows {
-            w.row(r.iter().map(String::as_str))?;
+            w.row(r)?;
         }
         w.finish()?;
     }
     // summary.csv: catchment rows per strategy; finish_basin adds the basin rows.
     let mut summary: Vec<Vec<String>> = Vec::new();
+    let mut summary_header = Vec::new();
     for (d, _) in &infos {
-        summary.extend(read_rows(&d.join("summary.csv"))?.1);
+        let (h, r) = read_rows(&d.join(SUMMARY_FILE))?;
+        summary_header = h;
+        summary.extend(r);
     }
-    summary.sort_by_key(|r| (strat(&r[2]), cat(&r[0])));
+    let summary_path = infos[0].0.join(SUMMARY_FILE);
+    let col = |c: &str| {
+        summary_header.iter().position(|h| h == c).ok_or_else(|| {
+            Error::invalid(Problem::in_file(&summary_path, format!("has no column '{c}'; is this a yieldshift shard?")).row(1).column(c))
+        })
+    };
+    let (ci, si) = (col(crate::schema::columns::summary::CATCHMENT)?, col(crate::schema::columns::summary::STRATEGY)?);
+    summary.sort_by_key(|r| (strat(&r[si]), cat(&r[ci])));
     let mut grouped: Vec<Vec<Vec<String>>> = vec![Vec::new(); partials.meta.strategies.len()];
     for r in summary {
-        let k = strat(&r[2]);
+        let k = strat(&r[si]);
         if k < grouped.len() {
             grouped[k].push(r);
         }
@@ -318,14 +343,14 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
         copy_dir(&d.join("figures"), &dir.join("figures"))?;
     }
     copy_dir(&infos[0].0.join("inputs"), &dir.join("inputs"))?;
-    std::fs::write(dir.join(crate::schema::RUN_INFO_FILE), &run_info).map_err(|e| Error::io("writing run_info.json", e))?;
+    crate::output::outdir::write_atomic(&dir.join(RUN_INFO_FILE), &run_info)?;
     let formats = crate::plot::Formats::default_from(&infos[0].0);
     crate::run::finish::finish_basin(&dir, &partials, &grouped, formats)?;
     // Boundaries, when the run had them: re-read from inputs/ and write the GIS outputs.
-    let info: serde_json::Value = serde_json::from_slice(&run_info).unwrap_or_default();
-    if let (Some(file), Some(idp)) = (info["gis"]["boundaries"].as_str(), info["gis"]["id_property"].as_str()) {
+    let info = RunInfo::read(&dir)?;
+    if let Some((Some(file), idp)) = info.gis.as_ref().map(|g| (g.boundaries.as_ref(), &g.id_property)) {
         let ids: Vec<&str> = infos[0].1.table_order.iter().map(String::as_str).collect();
-        let b = crate::input::gis::read_boundaries(&dir.join("inputs").join(file), idp, &ids).map_err(Error::Invalid)?;
+        let b = crate::input::gis::read_boundaries(&dir.join(INPUTS_DIR).join(file), idp, &ids).map_err(Error::Invalid)?;
         crate::run::finish::gis_outputs(&dir, &b, infos[0].1.figures, formats)?;
     }
     crate::report::write_report_with(&dir, &crate::report::ReportOptions { figures: infos[0].1.figures, formats })?;

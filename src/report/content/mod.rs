@@ -1,0 +1,282 @@
+//! What the report says, section by section, built from [`RunData`] only.
+//!
+//! Every number shown is a cell of one of the run's files (its [`Source`] is kept)
+//! or a simple statistic of such cells (a mean of a climate column, a sum of a
+//! budget column, a maximum over years), described as such where it appears.
+
+mod catchments;
+mod cautions;
+mod economics;
+mod inputs;
+mod methods;
+mod sensitivity;
+mod summary;
+
+use super::doc::{Align, Doc, Figure, Source, Table, Text};
+use super::figures::{self as figs, Drawn};
+use super::fmt::{fixed, sig, signed, UNDEFINED};
+use crate::report::folder::{RunData, SummaryRow};
+use crate::schema::columns::summary as sc;
+use crate::schema::file_stem;
+use crate::schema::run_info::Curves;
+use crate::schema::{BASIN_ID, NO_CONTROL};
+
+pub use crate::report::folder::MAX_DETAILED;
+
+/// Most rows of an input table shown.
+pub const MAX_INPUT_ROWS: usize = 200;
+
+const SUMMARY: &str = "summary.csv";
+/// What `sensitivity.csv` ranks parameters against when it names no variable
+/// (its documented content: the yield change against the baseline).
+const RANKED_RESULT: &str = "yield change against the baseline";
+const MILLION: f64 = 1e6;
+
+fn s_src(catchment: &str, strategy: &str, col: &str) -> Source {
+    Source::new(SUMMARY, &[catchment, strategy], col)
+}
+
+fn undefined() -> Text {
+    Text::new().plain(UNDEFINED)
+}
+
+/// A summary value as a change in % (1 decimal, signed).
+fn pct_cell(r: &SummaryRow, col: &str, v: Option<f64>) -> Text {
+    match v {
+        Some(v) => Text::new().num(signed(v, 1), Some(s_src(&r.catchment, &r.strategy, col))),
+        None => undefined(),
+    }
+}
+
+/// The ensemble range of `variable` for a catchment, strategy and year as " (p5 to p95)".
+fn range_text(d: &RunData, catchment: &str, strategy: &str, variable: &str, year: i32, decimals: usize, signed_fmt: bool) -> Text {
+    let Some(e) = &d.ensemble else { return Text::new() };
+    let Some(q) = e.get(catchment, strategy, variable, year) else { return Text::new() };
+    let f = |v: f64| if signed_fmt { signed(v, decimals) } else { fixed(v, decimals) };
+    let key = [catchment, strategy, &year.to_string(), variable];
+    let src = |c: &str| Some(Source::new("ensemble.csv", &key, c));
+    Text::new().plain(" (").num(f(q.p5), src("p5")).plain(" to ").num(f(q.p95), src("p95")).plain(")")
+}
+
+fn offset_col(o: i32) -> String {
+    format!("yield_change_{o}y_pct")
+}
+
+/// Change cells at each offset and the horizon, with ensemble ranges when present.
+fn change_cells(d: &RunData, r: &SummaryRow) -> Vec<Text> {
+    let mut v: Vec<Text> = d
+        .offsets
+        .iter()
+        .zip(&r.at_offsets)
+        .map(|(&o, val)| {
+            pct_cell(r, &offset_col(o), *val).then(if val.is_some() {
+                range_text(d, &r.catchment, &r.strategy, "yield_change_pct", d.info.start_year + o, 1, true)
+            } else {
+                Text::new()
+            })
+        })
+        .collect();
+    v.push(pct_cell(r, sc::YIELD_CHANGE_HORIZON_PCT, r.get(sc::YIELD_CHANGE_HORIZON_PCT)).then(range_text(
+        d,
+        &r.catchment,
+        &r.strategy,
+        "yield_change_pct",
+        d.info.end_year(),
+        1,
+        true,
+    )));
+    v
+}
+
+fn change_heads(d: &RunData) -> Vec<String> {
+    let mut h: Vec<String> = d.offsets.iter().map(|&o| format!("Yield change at {o} y ({}), %", d.info.start_year + o)).collect();
+    h.push(format!("At horizon ({}), %", d.info.end_year()));
+    h
+}
+
+fn num_cell(r: &SummaryRow, col: &str, f: impl Fn(f64) -> String, scale: f64) -> Text {
+    match r.get(col) {
+        Some(v) => Text::new().num(f(v / scale), Some(s_src(&r.catchment, &r.strategy, col).scaled(scale))),
+        None => undefined(),
+    }
+}
+
+fn exceed_cell(r: &SummaryRow, k: usize, name: &str, has_guideline: bool) -> Text {
+    if !has_guideline {
+        return Text::new().plain("no guideline");
+    }
+    match r.first_exceedance.get(k).copied().flatten() {
+        Some(y) => Text::new().num(y.to_string(), Some(s_src(&r.catchment, &r.strategy, &format!("{name}_first_exceedance_year")))),
+        None => Text::new().plain("not exceeded"),
+    }
+}
+
+fn display_name(d: &RunData, id: &str) -> String {
+    if id == BASIN_ID {
+        return "Basin (all catchments)".into();
+    }
+    d.catchments.iter().find(|c| c.0 == id).map(|c| c.1.clone()).unwrap_or_else(|| id.to_string())
+}
+
+fn figure_if(d: &RunData, doc: &mut Doc, stem: &str, caption: Text) -> bool {
+    let png = Some(format!("{stem}.png")).filter(|f| d.has_figure(f));
+    let svg = Some(format!("{stem}.svg")).filter(|f| d.has_figure(f));
+    if png.is_none() && svg.is_none() {
+        return false;
+    }
+    doc.figure(Figure { png, svg, caption });
+    true
+}
+
+/// True when `figures/<stem>.png` or `.svg` exists.
+fn has_stem(d: &RunData, stem: &str) -> bool {
+    d.has_figure(&format!("{stem}.png")) || d.has_figure(&format!("{stem}.svg"))
+}
+
+fn method_name(m: &Curves) -> &'static str {
+    match m {
+        Curves::Zhang { .. } => "Zhang et al. (2001)",
+        Curves::Fu { .. } => "Fu (1981)",
+    }
+}
+
+fn num_plain(v: f64) -> String {
+    // Parameters as the scenario gave them: shortest exact decimal form.
+    let s = format!("{v:?}");
+    if s.contains('e') {
+        sig(v, 6)
+    } else {
+        s
+    }
+}
+
+/// A number of run_info.json (at the dotted `path`) as a reader would write it
+/// ([`super::fmt::param`]: whole numbers plainly, `2.0` as 2, `0.06`).
+fn info_num(path: &str, v: f64) -> Text {
+    Text::new().num(super::fmt::param(v), Some(Source::new(crate::schema::RUN_INFO_FILE, &[], path)))
+}
+
+/// Builds the report document.
+pub fn build(d: &RunData, drawn: &[Drawn]) -> Doc {
+    let i = &d.info;
+    let method = method_name(&i.hydrology.curves);
+    let mut doc = Doc::new(
+        i.title.clone(),
+        format!(
+            "Screening report · {} catchments · {}–{} · {} · yieldshift {}",
+            d.catchments.len(),
+            i.start_year,
+            i.end_year(),
+            method,
+            i.version
+        ),
+    );
+    doc.notice(
+        "Screening-level estimate",
+        vec![Text::new()
+            .plain(
+                "Mean-annual water-balance curves applied year by year: indicative, not a site hydrological assessment. \
+             Read section ",
+            )
+            .plain("“Cautions”")
+            .plain(" before using any number in this report.")],
+    );
+    summary_section(d, &mut doc);
+    inputs_section(d, &mut doc);
+    methods_section(d, &mut doc);
+    results_section(d, &mut doc, drawn);
+    limitations_section(d, &mut doc);
+    cautions_section(d, &mut doc);
+    references_section(d, &mut doc);
+    about_section(d, &mut doc, drawn);
+    doc
+}
+
+use catchments::{catchment_detail, catchment_overview, nodes_results};
+use cautions::{about_section, cautions_section, limitations_section, references_section};
+use economics::{delay_results, economics_results};
+use inputs::inputs_section;
+use methods::methods_section;
+use sensitivity::sensitivity_results;
+use summary::summary_section;
+
+// ---------------------------------------------------------------- 4. Results
+
+fn results_section(d: &RunData, doc: &mut Doc, drawn: &[Drawn]) {
+    let i = &d.info;
+    doc.heading(2, "Results");
+    let note_of = |stem: &str| drawn.iter().find(|x| x.stem == stem).map(|x| x.note.clone()).unwrap_or_default();
+
+    doc.heading(3, "The basin");
+    if let Some((_, o)) = figs::comparison_offset(d) {
+        figure_if(
+            d,
+            doc,
+            figs::COMPARISON,
+            Text::new().plain(format!(
+                "Yield change {o} years after the start ({}) without control, catchments sorted from the largest loss; the basin bar pools all catchments. {}{}",
+                i.start_year + o,
+                if d.ensemble.is_some() { "Whiskers: 5–95 % of ensemble members. " } else { "" },
+                note_of(figs::COMPARISON)
+            )),
+        );
+    }
+    figure_if(
+        d,
+        doc,
+        figs::BUDYKO,
+        Text::new().plain(format!(
+            "Each catchment's path in Budyko space without control, over the {} curves for forest and for grass/tussock this run used, with the energy and water limits. \
+             Hollow markers: start; filled markers: end. {} Moving up from the grass curve towards the forest curve is the invader's extra evapotranspiration; moving sideways is the climate record.{}",
+            method_name(&i.hydrology.curves),
+            note_of(figs::BUDYKO),
+            if i.hydrology.forest_pet_factor > 1.0 {
+                " The forest curve uses the forest evaporative demand (E0 times the forest PET factor), so it can lie above the ET = E0 line, which is drawn for grass/tussock PET."
+            } else {
+                ""
+            }
+        )),
+    );
+    // Maps, when the run had catchment boundaries (drawn by the run, not the report).
+    if let Some((_, o)) = figs::comparison_offset(d).filter(|(_, o)| *o == 20) {
+        figure_if(
+            d,
+            doc,
+            "map_yield_change_20y",
+            Text::new()
+                .plain(format!("Map of the yield change {o} years after the start ({}) without control, by catchment.", i.start_year + o)),
+        );
+    }
+    figure_if(
+        d,
+        doc,
+        "map_yield_change_horizon",
+        Text::new().plain(format!("Map of the yield change at the horizon ({}) without control, by catchment.", i.end_year())),
+    );
+    let basin_cover = format!("basin_{}_cover", file_stem(NO_CONTROL));
+    figure_if(
+        d,
+        doc,
+        &basin_cover,
+        Text::new().plain("Infested area of the whole basin by density class without control, against the vulnerable area."),
+    );
+
+    doc.heading(3, "Catchments");
+    catchment_overview(d, doc);
+    let order = d.detailed_catchments();
+    if order.len() < d.catchments.len() {
+        doc.para(format!(
+            "Detailed results follow for the {MAX_DETAILED} catchments with the largest yield loss at the horizon; every catchment is in the table above and in summary.csv."
+        ));
+    }
+    for (id, name, _) in order {
+        catchment_detail(d, doc, id, name);
+    }
+
+    nodes_results(d, doc);
+    if d.programmes().next().is_some() {
+        economics_results(d, doc);
+        delay_results(d, doc);
+    }
+    sensitivity_results(d, doc);
+}
