@@ -18,6 +18,7 @@ pub mod exact;
 pub mod fit;
 pub mod kernel;
 pub mod network;
+pub mod params;
 pub mod pet;
 pub mod projection;
 pub mod roots;
