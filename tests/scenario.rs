@@ -37,7 +37,7 @@ fn calibration_errors_name_the_key() {
     assert!(msg.contains("'zz' is not a catchment"), "{msg}");
     assert!(msg.contains("donor 'c' has no fitted values"), "{msg}");
     assert!(msg.contains("method is zhang"), "{msg}");
-    assert!(msg.contains("calibration[1].catchment") && msg.contains("row 5"), "{msg}");
+    assert!(msg.contains("line 5, key 'calibration[1].catchment'"), "{msg}");
 }
 
 const TREATMENTS: &str = "[[treatment]]\nname = \"ground\"\nclass = \"scattered\"\ncost_per_ha = 50\n\n\

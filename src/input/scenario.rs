@@ -160,7 +160,7 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
     if let (Some(e), Some(ClimateVariability::Bootstrap { .. })) = (&raw.ensemble, raw.ensemble.as_ref().map(|e| e.climate)) {
         if raw.climate_path.is_none() {
             let _ = e;
-            problems.push(Problem::in_file(path, "climate = \"bootstrap\" resamples the climate table's years, but the scenario has no [climate] table; use climate = \"stochastic\"").column("ensemble.climate"));
+            problems.push(Problem::in_file(path, "climate = \"bootstrap\" resamples the climate table's years, but the scenario has no [climate] table; use climate = \"stochastic\"").key("ensemble.climate"));
         }
     }
     if !problems.is_empty() {

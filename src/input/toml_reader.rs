@@ -25,7 +25,7 @@ pub fn read_toml_file(path: &Path) -> Result<String, Problem> {
         let bytes = e.as_bytes();
         let valid = e.utf8_error().valid_up_to();
         let line = bytes[..valid].iter().filter(|&&b| b == b'\n').count() + 1;
-        Problem::in_file(path, "is not UTF-8 text; save it as UTF-8").row(line)
+        Problem::in_file(path, "is not UTF-8 text; save it as UTF-8").line(line)
     })
 }
 
@@ -129,9 +129,11 @@ impl TomlDoc {
             Err(e) => {
                 let line = e.span().map(|s| text[..s.start.min(text.len())].matches('\n').count() + 1);
                 let msg = format!("is not valid TOML: {}", e.message());
-                let mut p = Problem::in_file(path, msg);
-                p.row = line;
-                Err(p)
+                let p = Problem::in_file(path, msg);
+                Err(match line {
+                    Some(l) => p.line(l),
+                    None => p,
+                })
             }
         }
     }
@@ -363,9 +365,11 @@ impl<'a> Section<'a> {
 
     /// A problem located at `key` of this section.
     pub fn problem(&self, key: &str, message: impl Into<String>) -> Problem {
-        let mut p = Problem::in_file(&self.doc.path, message).column(self.key_path(key));
-        p.row = self.doc.line_of(self.header.as_ref(), key);
-        p
+        let p = Problem::in_file(&self.doc.path, message).key(self.key_path(key));
+        match self.doc.line_of(self.header.as_ref(), key) {
+            Some(line) => p.line(line),
+            None => p,
+        }
     }
 
     /// Records a problem located at `key`.
