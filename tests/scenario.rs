@@ -92,3 +92,32 @@ fn strategy_errors_are_located() {
     let msg = load_scenario(&s2).unwrap_err().to_string();
     assert!(msg.contains("budget.csv") && msg.contains("row 2") && msg.contains("'budget_per_yr'"), "{msg}");
 }
+
+/// Problems are located by the TOML parser's spans, not by guessing from line text:
+/// a multi-line string holding lines that look like a header and a key does not
+/// move the problem away from the real key.
+#[test]
+fn problems_are_located_at_the_real_key_not_at_look_alike_text() {
+    let tmp = tempfile::tempdir().unwrap();
+    std::fs::write(tmp.path().join("c.csv"), TABLE).unwrap();
+    let s = tmp.path().join("s.toml");
+    std::fs::write(
+        &s,
+        "title = \"\"\"Upper\n[invasion]\nspread_rate_per_yr = 0.5\n[[contaminant]]\nbasin\"\"\"\n\
+         start_year = 2027\nhorizon_years = 10\ncatchments = \"c.csv\"\n\n\
+         [invasion]\nspread_rate_per_yr = 1.5\n\n\
+         [[contaminant]]\nname = \"n\"\nnote = '''\n[[contaminant]]\nopen_export_kg_per_ha_yr = 1\n'''\nopen_export_kg_per_ha_yr = 2\n",
+    )
+    .unwrap();
+    let e = load_scenario(&s).unwrap_err();
+    let lines: Vec<String> = e.problems().iter().map(|p| p.to_string()).collect();
+    let find = |key: &str| lines.iter().find(|l| l.contains(&format!("key '{key}'"))).unwrap_or_else(|| panic!("{key}: {lines:#?}"));
+    assert!(
+        find("invasion.spread_rate_per_yr").contains("line 11, key 'invasion.spread_rate_per_yr': 1.5 is out of range; allowed 0 to 1 1/yr"),
+        "{lines:#?}"
+    );
+    // A missing key points at its table's own header (line 13), not at a look-alike in a string.
+    assert!(find("contaminant[1].forest_export_kg_per_ha_yr").contains("line 13,"), "{lines:#?}");
+    assert!(find("contaminant[1].note").contains("line 15, key 'contaminant[1].note': unknown key"), "{lines:#?}");
+    assert_eq!(e.problems().len(), 3, "{lines:#?}");
+}
