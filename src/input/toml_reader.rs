@@ -5,13 +5,18 @@
 //! another section. Every problem is collected with the file, the line of the
 //! key (from the TOML parser's spans) and the dotted key path, and the allowed
 //! range; [`TomlDoc::take_problems`] returns them in file order.
+//!
+//! Numeric parameters are read by their [`ParamId`]: default, range and unit come
+//! from the parameter table ([`crate::model::params`]).
 
 use crate::error::Problem;
 use crate::input::table::{fmt_value, nearest, parse_number, percent_hint, range_text, read_limited, suggestion};
+use crate::model::params::{Absent, ParamId, ParamRef, ParamSpec, Range};
 use crate::model::uncertainty::{Distribution, UncertainParam};
 use serde::Deserialize;
 use std::cell::RefCell;
 use std::collections::{BTreeSet, HashMap};
+use std::ops::Bound;
 use std::path::{Path, PathBuf};
 use toml::de::{DeTable, DeValue};
 
@@ -38,6 +43,16 @@ const TOP_LEVEL: &str = "the top level";
 /// never comes near this; a generated or corrupted one could list millions.
 pub const MAX_PROBLEMS: usize = 1000;
 
+/// A scenario parameter given as a distribution, with the parameter it sets.
+#[derive(Debug, Clone, PartialEq)]
+pub struct UncertainKey {
+    /// The parameter (and entry of an array of tables) the drawn values set,
+    /// resolved once from the key path.
+    pub target: ParamRef,
+    /// The key path (which names the sampling dimension), distribution and drawing.
+    pub param: UncertainParam,
+}
+
 /// Shared state of one TOML file being read.
 #[derive(Debug)]
 pub struct TomlDoc {
@@ -49,7 +64,7 @@ pub struct TomlDoc {
     /// (index into `problems`, key, display name of its section).
     unknown: RefCell<Vec<(usize, String, String)>>,
     /// Parameters given as distributions, in reading order.
-    uncertain: RefCell<Vec<UncertainParam>>,
+    uncertain: RefCell<Vec<UncertainKey>>,
     /// Lines of the root table's keys and of everything below it.
     spans: Spans,
     /// Problems beyond [`MAX_PROBLEMS`], counted but not kept.
@@ -159,7 +174,7 @@ impl TomlDoc {
     }
 
     /// Every parameter given as a distribution, in reading order.
-    pub fn take_uncertain(&self) -> Vec<UncertainParam> {
+    pub fn take_uncertain(&self) -> Vec<UncertainKey> {
         std::mem::take(&mut self.uncertain.borrow_mut())
     }
 
@@ -256,6 +271,30 @@ fn strip_indices(path: &str) -> String {
     out
 }
 
+/// The allowed values of a range in words: `0 to 1 fraction`, `0 or more`,
+/// `more than 0 and at most 1`.
+fn range_words(r: Range, unit: &str) -> String {
+    let (lo, hi) = r.bounds();
+    match (r.min, r.max) {
+        (Bound::Included(_), Bound::Included(_) | Bound::Unbounded) => range_text(lo, hi, unit),
+        _ => {
+            let lower = match r.min {
+                Bound::Included(v) => Some(format!("at least {}", fmt_value(v))),
+                Bound::Excluded(v) => Some(format!("more than {}", fmt_value(v))),
+                Bound::Unbounded => None,
+            };
+            let upper = match r.max {
+                Bound::Included(v) => Some(format!("at most {}", fmt_value(v))),
+                Bound::Excluded(v) => Some(format!("less than {}", fmt_value(v))),
+                Bound::Unbounded => None,
+            };
+            let words: Vec<String> = lower.into_iter().chain(upper).collect();
+            let u = if unit.is_empty() { String::new() } else { format!(" {unit}") };
+            format!("{}{u}", if words.is_empty() { "any number".to_string() } else { words.join(" and ") })
+        }
+    }
+}
+
 impl<'a> Section<'a> {
     fn key_path(&self, key: &str) -> String {
         if self.path.is_empty() {
@@ -344,43 +383,104 @@ impl<'a> Section<'a> {
         }
     }
 
+    /// The table row of `id`, which must be a key of this section.
+    fn spec(&self, id: ParamId) -> &'static ParamSpec {
+        let spec = id.spec();
+        debug_assert_eq!(strip_indices(&self.path), spec.section, "{} read in the wrong table", spec.path());
+        spec
+    }
+
+    /// The number `id` of the parameter table: its default when absent (a problem
+    /// when required), within its range. A key that may vary may instead be
+    /// given as a distribution (see [`Section::param`]).
+    pub fn number(&self, id: ParamId) -> f64 {
+        let spec = self.spec(id);
+        let default = spec.absent.value();
+        if spec.may_vary {
+            self.param(spec.key, id, default)
+        } else {
+            self.f64_within(spec.key, default, spec.range, spec.message_unit())
+        }
+    }
+
+    /// The number `id` when its key is present.
+    pub fn opt_number(&self, id: ParamId) -> Option<f64> {
+        let spec = self.spec(id);
+        if self.has(spec.key) {
+            Some(self.number(id))
+        } else {
+            let _ = self.get(spec.key);
+            None
+        }
+    }
+
+    /// The whole number `id` of the parameter table: its default when absent (a
+    /// problem when required), within its range.
+    pub fn whole(&self, id: ParamId) -> i64 {
+        let spec = self.spec(id);
+        let default = spec.absent.value().map(|v| v as i64);
+        self.whole_within(spec.key, default, spec.range, spec.message_unit())
+    }
+
+    /// The whole number `id`, within its range and no less than `min` (a rule
+    /// between keys, e.g. `end_year` ≥ `start_year`); `min` when absent.
+    pub fn whole_from(&self, id: ParamId, min: i64) -> i64 {
+        let spec = self.spec(id);
+        let lo = (min as f64).max(spec.range.bounds().0);
+        let range = Range { min: Bound::Included(lo), max: spec.range.max };
+        self.whole_within(spec.key, Some(min), range, spec.message_unit())
+    }
+
+    /// The list `id` of the parameter table, each item within its range; `None` when absent.
+    pub fn list(&self, id: ParamId) -> Option<Vec<f64>> {
+        let spec = self.spec(id);
+        debug_assert!(matches!(spec.absent, Absent::Unset));
+        self.list_within(spec.key, spec.range, spec.message_unit())
+    }
+
     /// A number within `lo..=hi`; `default` when absent (a problem when no default).
     pub fn f64_in(&self, key: &str, default: Option<f64>, lo: f64, hi: f64, unit: &str) -> f64 {
+        self.f64_within(key, default, Range::closed(lo, hi), unit)
+    }
+
+    fn f64_within(&self, key: &str, default: Option<f64>, range: Range, unit: &str) -> f64 {
+        let (lo, hi) = range.bounds();
         let fallback = default.unwrap_or(lo.max(0.0).min(hi));
+        let allowed = range_words(range, unit);
         match self.get(key) {
             None => {
                 if default.is_none() {
-                    self.push(key, format!("required key is missing; expected a number in {}", range_text(lo, hi, unit)));
+                    self.push(key, format!("required key is missing; expected a number in {allowed}"));
                 }
                 fallback
             }
             Some(v) => match as_f64(v) {
-                Some(x) if x.is_finite() && x >= lo && x <= hi => x,
+                Some(x) if range.contains(x) => x,
                 Some(x) => {
-                    self.push(
-                        key,
-                        format!("{} is out of range; allowed {}{}", fmt_value(x), range_text(lo, hi, unit), percent_hint(x, unit)),
-                    );
+                    self.push(key, format!("{} is out of range; allowed {allowed}{}", fmt_value(x), percent_hint(x, unit)));
                     fallback
                 }
                 None => {
-                    self.push(key, format!("must be a number in {}{}", range_text(lo, hi, unit), quoted_number_hint(v)));
+                    self.push(key, format!("must be a number in {allowed}{}", quoted_number_hint(v)));
                     fallback
                 }
             },
         }
     }
 
-    /// A parameter that may be uncertain: a number within `lo..=hi`, or an inline
-    /// table giving a distribution, e.g. `{ dist = "triangular", min = 0.04, mode = 0.06, max = 0.08 }`
+    /// A parameter that may vary: a number within its range, or an inline table
+    /// giving a distribution, e.g. `{ dist = "triangular", min = 0.04, mode = 0.06, max = 0.08 }`
     /// with an optional `per = "catchment"` (default `"basin"`: one draw per member
     /// shared by all catchments). Returns the number, or the distribution's central
-    /// value, and records the distribution.
-    pub fn param(&self, key: &str, default: Option<f64>, lo: f64, hi: f64, unit: &str) -> f64 {
+    /// value, and records the distribution with the parameter its key path resolves to.
+    fn param(&self, key: &str, id: ParamId, default: Option<f64>) -> f64 {
+        let spec = id.spec();
+        let (range, unit) = (spec.range, spec.message_unit());
         let Some(toml::Value::Table(t)) = self.table.get(key) else {
-            return self.f64_in(key, default, lo, hi, unit);
+            return self.f64_within(key, default, range, unit);
         };
         self.used.borrow_mut().insert(key.to_string());
+        let (lo, hi) = range.bounds();
         let fallback = default.unwrap_or(lo.max(0.0).min(hi));
         let num = |k: &str| -> Option<f64> { t.get(k).and_then(as_f64) };
         let need = |k: &str, problems: &mut Vec<String>| -> f64 {
@@ -453,18 +553,23 @@ impl<'a> Section<'a> {
                     "the distribution reaches {}–{}, outside the allowed {}",
                     fmt_value(a),
                     fmt_value(b),
-                    range_text(lo, hi, unit)
+                    range_words(range, unit)
                 ));
             }
         }
-        if !msgs.is_empty() {
+        let path = self.key_path(key);
+        let target = ParamRef::resolve(&path).filter(|r| r.id() == id);
+        if msgs.is_empty() && target.is_none() {
+            msgs.push(format!("'{path}' cannot be given as a distribution; give a number in {}", range_words(range, unit)));
+        }
+        let (Some(target), true) = (target, msgs.is_empty()) else {
             for m in msgs {
                 self.push(key, m);
             }
             return fallback;
-        }
+        };
         let central = dist.central().clamp(lo, hi);
-        self.doc.uncertain.borrow_mut().push(UncertainParam { path: self.key_path(key), dist, per_catchment });
+        self.doc.uncertain.borrow_mut().push(UncertainKey { target, param: UncertainParam { path, dist, per_catchment } });
         central
     }
 
@@ -475,29 +580,32 @@ impl<'a> Section<'a> {
 
     /// A whole number within `lo..=hi`.
     pub fn int_in(&self, key: &str, default: Option<i64>, lo: i64, hi: i64, unit: &str) -> i64 {
-        let fallback = default.unwrap_or(lo);
+        self.whole_within(key, default, Range::closed(lo as f64, hi as f64), unit)
+    }
+
+    /// A whole number within `range` (and within the 64-bit integers TOML allows).
+    fn whole_within(&self, key: &str, default: Option<i64>, range: Range, unit: &str) -> i64 {
+        let (lo, _) = range.bounds();
+        let fallback = default.unwrap_or(if lo.is_finite() { lo.ceil() as i64 } else { 0 });
+        let allowed = range_words(range, unit);
+        // `i64::MAX as f64` is 2^63, one past the largest i64.
+        let fits = |f: f64| f >= i64::MIN as f64 && f < i64::MAX as f64;
         match self.get(key) {
             None => {
                 if default.is_none() {
-                    self.push(
-                        key,
-                        format!("required key is missing; expected a whole number in {}", range_text(lo as f64, hi as f64, unit)),
-                    );
+                    self.push(key, format!("required key is missing; expected a whole number in {allowed}"));
                 }
                 fallback
             }
-            Some(toml::Value::Integer(i)) if *i >= lo && *i <= hi => *i,
-            Some(toml::Value::Float(f)) if f.fract() == 0.0 && *f >= lo as f64 && *f <= hi as f64 => *f as i64,
+            Some(toml::Value::Integer(i)) if range.contains(*i as f64) => *i,
+            Some(toml::Value::Float(f)) if f.fract() == 0.0 && fits(*f) && range.contains(*f) => *f as i64,
             Some(v) => {
                 let shown = as_f64(v).map(fmt_value).unwrap_or_else(|| v.to_string());
-                self.push(
-                    key,
-                    format!(
-                        "{shown} is not allowed; expected a whole number in {}{}",
-                        range_text(lo as f64, hi as f64, unit),
-                        quoted_number_hint(v)
-                    ),
-                );
+                let why = match as_f64(v) {
+                    Some(f) if f.fract() == 0.0 && !fits(f) => " (too large for a whole number)",
+                    _ => "",
+                };
+                self.push(key, format!("{shown} is not allowed{why}; expected a whole number in {allowed}{}", quoted_number_hint(v)));
                 fallback
             }
         }
@@ -543,24 +651,22 @@ impl<'a> Section<'a> {
 
     /// A list of numbers each within `lo..=hi`.
     pub fn f64_list(&self, key: &str, lo: f64, hi: f64, unit: &str) -> Option<Vec<f64>> {
+        self.list_within(key, Range::closed(lo, hi), unit)
+    }
+
+    fn list_within(&self, key: &str, range: Range, unit: &str) -> Option<Vec<f64>> {
+        let allowed = range_words(range, unit);
         match self.get(key)? {
             toml::Value::Array(items) => {
                 let mut out = Vec::with_capacity(items.len());
                 for (i, v) in items.iter().enumerate() {
                     match as_f64(v) {
-                        Some(x) if x.is_finite() && x >= lo && x <= hi => out.push(x),
+                        Some(x) if range.contains(x) => out.push(x),
                         Some(x) => self.push(
                             key,
-                            format!(
-                                "item {} is {}; each must be a number in {}{}",
-                                i + 1,
-                                fmt_value(x),
-                                range_text(lo, hi, unit),
-                                percent_hint(x, unit)
-                            ),
+                            format!("item {} is {}; each must be a number in {allowed}{}", i + 1, fmt_value(x), percent_hint(x, unit)),
                         ),
-                        None => self
-                            .push(key, format!("item {} must be a number in {}{}", i + 1, range_text(lo, hi, unit), quoted_number_hint(v))),
+                        None => self.push(key, format!("item {} must be a number in {allowed}{}", i + 1, quoted_number_hint(v))),
                     }
                 }
                 Some(out)

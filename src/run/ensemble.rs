@@ -159,7 +159,7 @@ fn member_catchment(s: &Scenario, i: usize, draws: &[Vec<f64>], m: usize) -> Opt
     let entry = &s.calibration_links.iter().find(|(id, _)| *id == c.id)?.1;
     let mut out: Option<crate::model::Catchment> = None;
     for (u, d) in s.uncertain.iter().zip(draws) {
-        let Some(key) = u.path.strip_prefix(entry.as_str()).and_then(|k| k.strip_prefix('.')) else { continue };
+        let Some(key) = u.param.path.strip_prefix(entry.as_str()).and_then(|k| k.strip_prefix('.')) else { continue };
         let cm = out.get_or_insert_with(|| c.clone());
         let v = d[m];
         if let Some(curves) = cm.curves.as_mut() {
@@ -183,7 +183,7 @@ fn draws_for(s: &Scenario, cfg: &EnsembleConfig, shared: &[Option<Vec<f64>>], ca
         .zip(shared)
         .map(|(u, sh)| match sh {
             Some(v) => v.clone(),
-            None => draw_values(u, cfg, Some(catchment_id)),
+            None => draw_values(&u.param, cfg, Some(catchment_id)),
         })
         .collect()
 }
@@ -256,7 +256,7 @@ fn setup_for(s: &Scenario, draws: &[Vec<f64>], m: usize) -> MemberSetup {
     let mut setup =
         MemberSetup { params: s.params.clone(), strategies: s.strategies.clone(), rain_scale: s.rain_scale, pet_scale: s.pet_scale };
     for (u, d) in s.uncertain.iter().zip(draws) {
-        apply_param(s, &u.path, d[m], &mut setup);
+        apply_param(s, &u.param.path, d[m], &mut setup);
     }
     setup
 }
@@ -352,8 +352,9 @@ pub fn run_ensemble(
     let names = variable_names(s);
     let k = s.params.contaminants.len();
     let n_years = s.horizon_years + 1;
-    let labels: Vec<String> = s.uncertain.iter().map(|u| u.path.clone()).collect();
-    let shared: Vec<Option<Vec<f64>>> = s.uncertain.iter().map(|u| (!u.per_catchment).then(|| draw_values(u, cfg, None))).collect();
+    let labels: Vec<String> = s.uncertain.iter().map(|u| u.param.path.clone()).collect();
+    let shared: Vec<Option<Vec<f64>>> =
+        s.uncertain.iter().map(|u| (!u.param.per_catchment).then(|| draw_values(&u.param, cfg, None))).collect();
     let climates = member_climates(s, cfg);
     let points = sensitivity_points(s);
     let keep_reference = !s.strategies.is_empty();
@@ -500,7 +501,7 @@ fn draws_for_member(s: &Scenario, cfg: &EnsembleConfig, shared: &[Option<Vec<f64
         .map(|(u, sh)| match sh {
             Some(v) => vec![v[m]],
             None => {
-                let all = draw_values(u, cfg, Some(id));
+                let all = draw_values(&u.param, cfg, Some(id));
                 vec![all[m]]
             }
         })
@@ -537,7 +538,7 @@ fn no_control_catchment(
     for m in 0..m_count {
         // Every uncertain parameter is re-applied, so one setup serves all members.
         for (u, d) in s.uncertain.iter().zip(&draws) {
-            apply_param(s, &u.path, d[m], &mut setup);
+            apply_param(s, &u.param.path, d[m], &mut setup);
         }
         let climate = member_series(s, climates, i, m, setup.rain_scale, setup.pet_scale);
         let calibrated = member_catchment(s, i, &draws, m);
