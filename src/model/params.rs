@@ -358,6 +358,8 @@ const TOP: &str = "";
 const VARY: bool = true;
 const FIXED: bool = false;
 
+// One row per line, as a table reads.
+#[rustfmt::skip]
 const TABLE: [ParamSpec; 50] = [
     row(P::StartYear, TOP, false, "start_year", Whole, REQ, "year", Range::closed(1800.0, 2500.0), FIXED, "year 0: the current cover"),
     row(P::HorizonYears, TOP, false, "horizon_years", Whole, REQ, "years", Range::closed(1.0, 300.0), FIXED, "years projected after the start year"),
