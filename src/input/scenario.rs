@@ -623,7 +623,10 @@ fn read_ensemble(s: &Section<'_>) -> EnsembleConfig {
 }
 
 fn read_hydrology(s: Option<Section<'_>>) -> (CoverCurves, f64) {
-    let Some(s) = s else { return (CoverCurves::ZHANG_DEFAULT, default_of(ParamId::ForestPetFactor)) };
+    let Some(s) = s else {
+        let curves = CoverCurves::Zhang { w_forest: default_of(ParamId::WForest), w_grass: default_of(ParamId::WGrass) };
+        return (curves, default_of(ParamId::ForestPetFactor));
+    };
     let method = s.choice("method", "zhang", &["zhang", "fu"]);
     let w_forest = s.number(ParamId::WForest);
     let w_grass = s.number(ParamId::WGrass);

@@ -469,4 +469,10 @@ mod tests {
         assert_eq!(ParamId::WGrass.range(), ParamId::CalibrationWGrass.range());
         assert_eq!(ParamId::SpreadRate.default_value(), Some(0.06));
     }
+
+    #[test]
+    fn the_model_default_curves_are_the_table_defaults() {
+        let (Some(w_forest), Some(w_grass)) = (ParamId::WForest.default_value(), ParamId::WGrass.default_value()) else { panic!() };
+        assert_eq!(crate::model::budyko::CoverCurves::ZHANG_DEFAULT, crate::model::budyko::CoverCurves::Zhang { w_forest, w_grass });
+    }
 }
