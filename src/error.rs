@@ -3,7 +3,8 @@
 //! Input problems are collected, not thrown one at a time: a file with ten bad
 //! cells yields one [`Error::Invalid`] listing all ten [`Problem`]s, each naming
 //! the file, the spreadsheet-style row (header = row 1), the column and what is
-//! allowed. The command line maps [`Error::Invalid`] to exit code 2.
+//! allowed — or, for a scenario file (TOML), the line and the dotted key. The
+//! command line maps [`Error::Invalid`] to exit code 2.
 
 use std::fmt;
 use std::path::{Path, PathBuf};
@@ -19,17 +20,29 @@ pub struct Problem {
     pub column: Option<String>,
     /// What is wrong and what is allowed.
     pub message: String,
+    /// Whether `row` and `column` are a table's row and column or a text file's line and key.
+    pub place: Place,
+}
+
+/// How a problem's position reads.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Place {
+    /// A table cell: `row 3, column 'rain_mm'`.
+    #[default]
+    Cell,
+    /// A key of a scenario file: `line 8, key 'invasion.spread_rate_per_yr'`.
+    Key,
 }
 
 impl Problem {
     /// A problem with only a message.
     pub fn new(message: impl Into<String>) -> Self {
-        Problem { file: None, row: None, column: None, message: message.into() }
+        Problem { file: None, row: None, column: None, message: message.into(), place: Place::Cell }
     }
 
     /// A problem located in a file.
     pub fn in_file(file: &Path, message: impl Into<String>) -> Self {
-        Problem { file: Some(file.to_path_buf()), row: None, column: None, message: message.into() }
+        Problem { file: Some(file.to_path_buf()), row: None, column: None, message: message.into(), place: Place::Cell }
     }
 
     /// Sets the row (spreadsheet numbering).
@@ -41,6 +54,20 @@ impl Problem {
     /// Sets the column or key.
     pub fn column(mut self, column: impl Into<String>) -> Self {
         self.column = Some(column.into());
+        self
+    }
+
+    /// Sets the line of a text file (TOML); the problem then reads `line N`.
+    pub fn line(mut self, line: usize) -> Self {
+        self.row = Some(line);
+        self.place = Place::Key;
+        self
+    }
+
+    /// Sets the dotted key of a scenario file; the problem then reads `key '…'`.
+    pub fn key(mut self, key: impl Into<String>) -> Self {
+        self.column = Some(key.into());
+        self.place = Place::Key;
         self
     }
 
@@ -60,12 +87,16 @@ impl fmt::Display for Problem {
             write!(f, "{}", file.display())?;
             wrote = true;
         }
-        if let Some(row) = self.row {
-            write!(f, "{}row {}", if wrote { ", " } else { "" }, row)?;
+        let (row, column) = match self.place {
+            Place::Cell => ("row", "column"),
+            Place::Key => ("line", "key"),
+        };
+        if let Some(n) = self.row {
+            write!(f, "{}{row} {n}", if wrote { ", " } else { "" })?;
             wrote = true;
         }
         if let Some(col) = &self.column {
-            write!(f, "{}column '{}'", if wrote { ", " } else { "" }, col)?;
+            write!(f, "{}{column} '{col}'", if wrote { ", " } else { "" })?;
             wrote = true;
         }
         if wrote {

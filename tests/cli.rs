@@ -177,7 +177,7 @@ fn unknown_scenario_key_is_reported_with_a_suggestion() {
     assert_eq!(o.status.code(), Some(2));
     let t = text(&o);
     assert!(t.contains("invasion.spread_rate_per_year") && t.contains("did you mean 'spread_rate_per_yr'"), "{t}");
-    assert!(t.contains("row 7"), "line of the key: {t}");
+    assert!(t.contains("line 7, key 'invasion.spread_rate_per_year'"), "line of the key: {t}");
 }
 
 #[test]

@@ -305,3 +305,76 @@ fn calibrated_values_given_as_distributions_vary_only_their_catchments() {
     let sens = std::fs::read_to_string(out.join("sensitivity.csv")).unwrap();
     assert!(sens.lines().any(|l| l.starts_with("a,no-control,horizon,") && l.contains("calibration[1].w_grass")), "{sens}");
 }
+
+/// A scenario giving every key that may vary (apart from calibration entries) as
+/// a distribution, under Zhang's or Fu's method.
+fn every_varying_key(dir: &Path, method: &str) -> yieldshift::input::scenario::Scenario {
+    use yieldshift::model::params::PARAMS;
+    std::fs::write(dir.join("c.csv"), "id,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha\na,100,1000,800,80,5,5,5\n")
+        .unwrap();
+    let mut sections: Vec<(String, Vec<String>)> = vec![
+        ("hydrology".into(), vec![format!("method = \"{method}\"")]),
+        ("contaminant".into(), vec!["name = \"n\"".into()]),
+        ("treatment".into(), vec!["name = \"g\"".into(), "class = \"dense\"".into()]),
+        ("strategy".into(), vec!["name = \"s\"".into(), "start_year = 2027".into(), "budget_per_yr = 1000".into()]),
+    ];
+    for (i, p) in PARAMS.iter().filter(|p| p.may_vary && p.section != "calibration").enumerate() {
+        // A different central value for every key, so that one key's value in another's field shows.
+        let (lo, hi) = p.range.bounds();
+        let (a, b) = (lo + (0.2 + 0.01 * i as f64) * (hi - lo), lo + (0.4 + 0.02 * i as f64) * (hi - lo));
+        let line = format!("{} = {{ dist = \"uniform\", min = {a}, max = {b} }}", p.key);
+        match sections.iter_mut().find(|(s, _)| s == p.section) {
+            Some((_, keys)) => keys.push(line),
+            None => sections.push((p.section.to_string(), vec![line])),
+        }
+    }
+    let mut text = String::from("start_year = 2027\nhorizon_years = 5\ncatchments = \"c.csv\"\n\n");
+    text.push_str("[[treatment]]\nname = \"g\"\nclass = \"scattered\"\ncost_per_ha = 1\n\n[[treatment]]\nname = \"g\"\nclass = \"medium\"\ncost_per_ha = 1\n\n");
+    for (s, keys) in &sections {
+        let repeated = ["contaminant", "treatment", "strategy"].contains(&s.as_str());
+        text.push_str(&if repeated { format!("[[{s}]]\n") } else { format!("[{s}]\n") });
+        for k in keys {
+            text.push_str(k);
+            text.push('\n');
+        }
+        text.push('\n');
+    }
+    std::fs::write(dir.join("s.toml"), &text).unwrap();
+    yieldshift::input::scenario::load_scenario(&dir.join("s.toml")).unwrap_or_else(|e| panic!("{e}\n{text}"))
+}
+
+#[test]
+fn every_varying_parameter_is_applied_by_its_typed_id_and_nothing_else_changes() {
+    use yieldshift::model::params::ParamId;
+    use yieldshift::run::ensemble::{apply_param, MemberSetup};
+    for method in ["zhang", "fu"] {
+        let tmp = tempfile::tempdir().unwrap();
+        let s = every_varying_key(tmp.path(), method);
+        assert_eq!(s.uncertain.len(), 19, "{:#?}", s.uncertain.iter().map(|u| &u.param.path).collect::<Vec<_>>());
+        let fresh =
+            || MemberSetup { params: s.params.clone(), strategies: s.strategies.clone(), rain_scale: s.rain_scale, pet_scale: s.pet_scale };
+        let before = format!("{:?}", fresh());
+        for u in &s.uncertain {
+            let id = u.target.id();
+            let other_method = match method {
+                "zhang" => matches!(id, ParamId::OmegaForest | ParamId::OmegaGrass),
+                _ => matches!(id, ParamId::WForest | ParamId::WGrass),
+            };
+            let (lo, hi) = id.range().bounds();
+            // A value no other field holds (whole for the seed-bearing age, which is rounded).
+            let v = if id == ParamId::SeedBearingAge { 37.0 } else { lo + 0.123456789 * (hi - lo) };
+            let mut m = fresh();
+            apply_param(&s, u.target, v, &mut m);
+            let after = format!("{m:?}");
+            if other_method {
+                assert_eq!(after, before, "{}: the other method's parameter changes nothing", u.param.path);
+                continue;
+            }
+            let shown = if id == ParamId::SeedBearingAge { format!(": {v}") } else { format!("{v:?}") };
+            assert!(after.contains(&shown) && !before.contains(&shown), "{}: {v} not applied", u.param.path);
+            // Applying the central value again restores the deterministic setup exactly.
+            apply_param(&s, u.target, u.param.dist.central(), &mut m);
+            assert_eq!(format!("{m:?}"), before, "{}", u.param.path);
+        }
+    }
+}

@@ -2,6 +2,7 @@
 
 use std::path::Path;
 use yieldshift::input::scenario::load_scenario;
+use yieldshift::model::params::{Kind, ParamId, ParamSpec, PARAMS};
 use yieldshift::model::CoverCurves;
 
 const TABLE: &str = "id,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha\n\
@@ -37,7 +38,7 @@ fn calibration_errors_name_the_key() {
     assert!(msg.contains("'zz' is not a catchment"), "{msg}");
     assert!(msg.contains("donor 'c' has no fitted values"), "{msg}");
     assert!(msg.contains("method is zhang"), "{msg}");
-    assert!(msg.contains("calibration[1].catchment") && msg.contains("row 5"), "{msg}");
+    assert!(msg.contains("line 5, key 'calibration[1].catchment'"), "{msg}");
 }
 
 const TREATMENTS: &str = "[[treatment]]\nname = \"ground\"\nclass = \"scattered\"\ncost_per_ha = 50\n\n\
@@ -91,4 +92,139 @@ fn strategy_errors_are_located() {
     let s2 = write(tmp.path(), &format!("{TREATMENTS}[[strategy]]\nname = \"x\"\nstart_year = 2027\nbudget_table = \"budget.csv\"\n"));
     let msg = load_scenario(&s2).unwrap_err().to_string();
     assert!(msg.contains("budget.csv") && msg.contains("row 2") && msg.contains("'budget_per_yr'"), "{msg}");
+}
+
+/// Problems are located by the TOML parser's spans, not by guessing from line text:
+/// a multi-line string holding lines that look like a header and a key does not
+/// move the problem away from the real key.
+#[test]
+fn problems_are_located_at_the_real_key_not_at_look_alike_text() {
+    let tmp = tempfile::tempdir().unwrap();
+    std::fs::write(tmp.path().join("c.csv"), TABLE).unwrap();
+    let s = tmp.path().join("s.toml");
+    std::fs::write(
+        &s,
+        "title = \"\"\"Upper\n[invasion]\nspread_rate_per_yr = 0.5\n[[contaminant]]\nbasin\"\"\"\n\
+         start_year = 2027\nhorizon_years = 10\ncatchments = \"c.csv\"\n\n\
+         [invasion]\nspread_rate_per_yr = 1.5\n\n\
+         [[contaminant]]\nname = \"n\"\nnote = '''\n[[contaminant]]\nopen_export_kg_per_ha_yr = 1\n'''\nopen_export_kg_per_ha_yr = 2\n",
+    )
+    .unwrap();
+    let e = load_scenario(&s).unwrap_err();
+    let lines: Vec<String> = e.problems().iter().map(|p| p.to_string()).collect();
+    let find = |key: &str| lines.iter().find(|l| l.contains(&format!("key '{key}'"))).unwrap_or_else(|| panic!("{key}: {lines:#?}"));
+    assert!(
+        find("invasion.spread_rate_per_yr")
+            .contains("line 11, key 'invasion.spread_rate_per_yr': 1.5 is out of range; allowed 0 to 1 1/yr"),
+        "{lines:#?}"
+    );
+    // A missing key points at its table's own header (line 13), not at a look-alike in a string.
+    assert!(find("contaminant[1].forest_export_kg_per_ha_yr").contains("line 13,"), "{lines:#?}");
+    assert!(find("contaminant[1].note").contains("line 15, key 'contaminant[1].note': unknown key"), "{lines:#?}");
+    assert_eq!(e.problems().len(), 3, "{lines:#?}");
+}
+
+/// Keys of a section for a scenario that is valid apart from the key under test.
+fn section_keys(section: &str) -> Vec<(String, String)> {
+    let kv = |pairs: &[(&str, &str)]| pairs.iter().map(|(k, v)| (k.to_string(), v.to_string())).collect();
+    match section {
+        "" => kv(&[("start_year", "2027"), ("horizon_years", "10"), ("catchments", "\"c.csv\"")]),
+        "climate" => kv(&[("weather", "\"w.csv\""), ("latitude_deg", "-45"), ("elevation_m", "300")]),
+        "gis" => kv(&[("boundaries", "\"b.geojson\"")]),
+        "contaminant" => kv(&[("name", "\"n\""), ("open_export_kg_per_ha_yr", "1"), ("forest_export_kg_per_ha_yr", "1")]),
+        "calibration" => kv(&[("catchment", "\"a\"")]),
+        "treatment" => kv(&[("name", "\"g\""), ("class", "\"scattered\""), ("cost_per_ha", "1")]),
+        "strategy" => kv(&[("name", "\"s\""), ("start_year", "2027"), ("budget_per_yr", "1")]),
+        _ => Vec::new(),
+    }
+}
+
+/// A scenario with `key = value` in the table of `spec` (replacing the base value).
+fn scenario_text(spec: &ParamSpec, value: &str) -> String {
+    let mut keys = section_keys(spec.section);
+    keys.retain(|(k, _)| k != spec.key && !(spec.key == "area_ha_per_yr" && k == "budget_per_yr"));
+    if spec.section == "climate" && spec.may_vary {
+        keys.clear(); // the scales need no weather table
+    }
+    keys.push((spec.key.to_string(), value.to_string()));
+    let body: String = keys.iter().map(|(k, v)| format!("{k} = {v}\n")).collect();
+    let treatments = "[[treatment]]\nname = \"g\"\nclass = \"scattered\"\ncost_per_ha = 1\n\n\
+                      [[treatment]]\nname = \"g\"\nclass = \"medium\"\ncost_per_ha = 1\n\n\
+                      [[treatment]]\nname = \"g\"\nclass = \"dense\"\ncost_per_ha = 1\n\n";
+    // Fu's omega of a calibration entry needs the Fu method.
+    let method = if spec.section == "calibration" && spec.key.starts_with("omega") { "[hydrology]\nmethod = \"fu\"\n\n" } else { "" };
+    match (spec.section, spec.repeated) {
+        ("", _) => body,
+        (s, false) => format!("{}\n{method}[{s}]\n{body}", scenario_text_top()),
+        ("strategy", true) => format!("{}\n{treatments}[[strategy]]\n{body}", scenario_text_top()),
+        (s, true) => format!("{}\n{method}[[{s}]]\n{body}", scenario_text_top()),
+    }
+}
+
+fn scenario_text_top() -> String {
+    section_keys("").iter().map(|(k, v)| format!("{k} = {v}\n")).collect()
+}
+
+#[test]
+fn every_key_of_the_parameter_table_is_read_with_its_range_unit_and_line() {
+    use yieldshift::input::table::range_text;
+    let tmp = tempfile::tempdir().unwrap();
+    std::fs::write(tmp.path().join("c.csv"), TABLE).unwrap();
+    let s = tmp.path().join("s.toml");
+    for spec in PARAMS.iter() {
+        let (lo, hi) = spec.range.bounds();
+        let whole = spec.kind == Kind::Whole;
+        let bad = if hi.is_finite() {
+            if whole {
+                hi + 1.0
+            } else {
+                hi * 1.5 + 1.0
+            }
+        } else {
+            lo - 1.0
+        };
+        let value = if spec.kind == Kind::List { format!("[{bad}]") } else { format!("{bad}") };
+        let text = scenario_text(spec, &value);
+        std::fs::write(&s, &text).unwrap();
+        let e = load_scenario(&s).unwrap_err();
+        let path = if spec.repeated { format!("{}[1].{}", spec.section, spec.key) } else { spec.path() };
+        let line = text.lines().collect::<Vec<_>>().iter().rposition(|l| l.starts_with(&format!("{} = ", spec.key))).unwrap() + 1;
+        // `end_year` must also be no earlier than the strategy's `start_year` (2027).
+        let lo = if spec.id == ParamId::StrategyEndYear { 2027.0 } else { lo };
+        let allowed = range_text(lo, hi, spec.message_unit());
+        let expected = format!("line {line}, key '{path}': ");
+        let msg = e.problems().iter().map(|p| p.to_string()).find(|m| m.contains(&expected));
+        let msg = msg.unwrap_or_else(|| panic!("{path}: no problem at {expected}\n{e}\n{text}"));
+        assert!(msg.contains(&format!(" in {allowed}")) || msg.contains(&format!("allowed {allowed}")), "{path}: {msg}");
+    }
+}
+
+#[test]
+fn keys_that_may_vary_record_a_typed_target_and_others_refuse_a_distribution() {
+    let tmp = tempfile::tempdir().unwrap();
+    std::fs::write(tmp.path().join("c.csv"), TABLE).unwrap();
+    let s = tmp.path().join("s.toml");
+    for spec in PARAMS.iter().filter(|p| p.kind != Kind::List && p.section != "climate" || p.key.ends_with("_scale")) {
+        let (lo, hi) = spec.range.bounds();
+        let (a, b) = if hi.is_finite() { (lo + 0.25 * (hi - lo), lo + 0.5 * (hi - lo)) } else { (lo + 1.0, lo + 2.0) };
+        let text = scenario_text(spec, &format!("{{ dist = \"uniform\", min = {a}, max = {b} }}"));
+        std::fs::write(&s, &text).unwrap();
+        let path = if spec.repeated { format!("{}[1].{}", spec.section, spec.key) } else { spec.path() };
+        match load_scenario(&s) {
+            Ok(sc) => {
+                assert!(spec.may_vary, "{path} accepted a distribution");
+                assert_eq!(sc.uncertain.len(), 1, "{path}");
+                let u = &sc.uncertain[0];
+                assert_eq!((u.target.id(), u.target.entry()), (spec.id, spec.repeated.then_some(0)), "{path}");
+                assert_eq!(u.param.path, path);
+                assert_eq!(u.target.path(), path);
+            }
+            Err(e) => {
+                assert!(!spec.may_vary, "{path}: {e}\n{text}");
+                let m = e.to_string();
+                let refused = [": must be a number in", ": { dist = \"uniform\""].iter().any(|r| m.contains(&format!("key '{path}'{r}")));
+                assert!(refused, "{path}: {m}");
+            }
+        }
+    }
 }

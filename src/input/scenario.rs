@@ -9,6 +9,7 @@
 use crate::error::{Error, Problem, Result};
 use crate::input::catchments::read_catchments;
 use crate::input::climate::{read_climate, BeyondRecord, ClimateTable};
+pub use crate::input::toml_reader::UncertainKey;
 use crate::input::toml_reader::{Section, TomlDoc};
 use crate::model::budyko::CoverCurves;
 use crate::model::catchment::{Catchment, ClimateYear, Contaminant, ModelParams};
@@ -17,7 +18,8 @@ use crate::model::control::{Effort, PriorityRule, Strategy, TreatmentMethod};
 use crate::model::cover::DensityClass;
 use crate::model::cover::InvasionParams;
 use crate::model::network::{Network, NetworkError};
-use crate::model::uncertainty::{Sampling, UncertainParam};
+use crate::model::params::ParamId;
+use crate::model::uncertainty::Sampling;
 use std::path::{Path, PathBuf};
 
 /// A scenario with all its inputs read and validated.
@@ -55,8 +57,8 @@ pub struct Scenario {
     pub rain_scale: f64,
     /// Multiplier on every year's PET (`[climate] pet_scale`).
     pub pet_scale: f64,
-    /// Parameters given as distributions.
-    pub uncertain: Vec<UncertainParam>,
+    /// Parameters given as distributions, each with the typed parameter it sets.
+    pub uncertain: Vec<UncertainKey>,
     /// `(catchment id, calibration entry path)`: which `[[calibration]]` entry sets each
     /// calibrated catchment's curves (its own, or its donor's).
     pub calibration_links: Vec<(String, String)>,
@@ -157,11 +159,10 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
     let mut raw = read_keys(&doc, &table, &base);
     raw.uncertain = doc.take_uncertain();
     let mut problems = doc.take_problems();
-    if let (Some(e), Some(ClimateVariability::Bootstrap { .. })) = (&raw.ensemble, raw.ensemble.as_ref().map(|e| e.climate)) {
-        if raw.climate_path.is_none() {
-            let _ = e;
-            problems.push(Problem::in_file(path, "climate = \"bootstrap\" resamples the climate table's years, but the scenario has no [climate] table; use climate = \"stochastic\"").column("ensemble.climate"));
-        }
+    if let (Some(ClimateVariability::Bootstrap { .. }), None) = (raw.ensemble.as_ref().map(|e| e.climate), &raw.climate_path) {
+        let msg = "climate = \"bootstrap\" resamples the climate table's years, but the scenario has no [climate] table; use climate = \"stochastic\"";
+        let at = doc.root(&table).section("ensemble").map(|e| e.problem("climate", msg));
+        problems.push(at.unwrap_or_else(|| Problem::in_file(path, msg).key("ensemble.climate")));
     }
     if !problems.is_empty() {
         return Err(Error::Invalid(problems));
@@ -351,7 +352,7 @@ struct RawScenario {
     rain_scale: f64,
     pet_scale: f64,
     ensemble: Option<EnsembleConfig>,
-    uncertain: Vec<UncertainParam>,
+    uncertain: Vec<UncertainKey>,
     weather: Option<WeatherSpec>,
     gis: Option<GisSpec>,
 }
@@ -392,16 +393,15 @@ fn read_calibration(root: &Section<'_>) -> Vec<RawCalibration> {
         .map(|s| {
             let r = RawCalibration {
                 catchment: s.string("catchment", None).unwrap_or_default(),
-                w_forest: s.has("w_forest").then(|| s.param("w_forest", Some(2.0), 0.01, 20.0, "")),
-                w_grass: s.has("w_grass").then(|| s.param("w_grass", Some(0.5), 0.01, 20.0, "")),
-                omega_forest: s.has("omega_forest").then(|| s.param("omega_forest", Some(2.97), 1.01, 20.0, "")),
-                omega_grass: s.has("omega_grass").then(|| s.param("omega_grass", Some(2.16), 1.01, 20.0, "")),
+                w_forest: s.opt_number(ParamId::CalibrationWForest),
+                w_grass: s.opt_number(ParamId::CalibrationWGrass),
+                omega_forest: s.opt_number(ParamId::CalibrationOmegaForest),
+                omega_grass: s.opt_number(ParamId::CalibrationOmegaGrass),
                 donor: s.opt_string("donor"),
                 at_catchment: s.problem("catchment", ""),
                 at_donor: s.problem("donor", ""),
                 path: s.path.clone(),
             };
-            let _ = (s.get("w_forest"), s.get("w_grass"), s.get("omega_forest"), s.get("omega_grass"));
             let n_values = [r.w_forest, r.w_grass, r.omega_forest, r.omega_grass].iter().filter(|v| v.is_some()).count();
             if r.donor.is_some() && n_values > 0 {
                 s.push("donor", "give either fitted values or a donor catchment, not both");
@@ -492,8 +492,8 @@ fn apply_calibration(
 fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
     let root = doc.root(table);
     let title = root.string("title", Some("Untitled scenario")).unwrap_or_default();
-    let start_year = root.int_in("start_year", None, 1800, 2500, "") as i32;
-    let horizon_years = root.int_in("horizon_years", None, 1, 300, "years") as usize;
+    let start_year = root.whole(ParamId::StartYear) as i32;
+    let horizon_years = root.whole(ParamId::HorizonYears) as usize;
     let catchments_path = base.join(root.string("catchments", None).unwrap_or_default());
 
     let (climate_path, beyond_record, (rain_scale, pet_scale), weather) = match root.section("climate") {
@@ -504,12 +504,12 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
                 "error" => BeyondRecord::Error,
                 _ => BeyondRecord::Cycle,
             };
-            let scales = (s.param("rain_scale", Some(1.0), 0.1, 3.0, ""), s.param("pet_scale", Some(1.0), 0.1, 3.0, ""));
+            let scales = (s.number(ParamId::RainScale), s.number(ParamId::PetScale));
             let weather = s.opt_string("weather").map(|w| {
-                let lat = s.f64_in("latitude_deg", None, -90.0, 90.0, "degrees (south negative)");
-                let elev = s.f64_in("elevation_m", None, -500.0, 9000.0, "m");
+                let lat = s.number(ParamId::LatitudeDeg);
+                let elev = s.number(ParamId::ElevationM);
                 let mut site = crate::input::weather::SiteMeta::new(lat, elev);
-                site.wind_height_m = s.f64_in("wind_height_m", Some(2.0), 0.5, 100.0, "m");
+                site.wind_height_m = s.number(ParamId::WindHeightM);
                 let method = s.choice("pet_method", "auto", &["auto", "penman-monteith", "hargreaves", "priestley-taylor"]);
                 let choice = method.parse().unwrap_or_default();
                 WeatherSpec { path: base.join(w), site, choice }
@@ -520,13 +520,13 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
             s.finish();
             (p, b, scales, weather)
         }
-        None => (None, BeyondRecord::Cycle, (1.0, 1.0), None),
+        None => (None, BeyondRecord::Cycle, (default_of(ParamId::RainScale), default_of(ParamId::PetScale)), None),
     };
     let gis = root.section("gis").map(|s| {
         let g = GisSpec {
             path: base.join(s.string("boundaries", None).unwrap_or_default()),
             id_property: s.string("id_property", Some(crate::input::gis::DEFAULT_ID_PROPERTY)).unwrap_or_default(),
-            area_tolerance: s.f64_in("area_tolerance", Some(crate::input::gis::DEFAULT_AREA_TOLERANCE), 0.0, 1.0, "fraction"),
+            area_tolerance: s.number(ParamId::AreaTolerance),
             area_from_geometry: match s.get("area_from_geometry") {
                 None => false,
                 Some(toml::Value::Boolean(b)) => *b,
@@ -549,24 +549,21 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
     let invasion = read_invasion(root.section("invasion"), root.section("canopy_closure"));
     let min_runoff_mm = match root.section("dilution") {
         Some(s) => {
-            let v = s.f64_in("min_runoff_mm", Some(1.0), 0.0, 1000.0, "mm/yr");
+            let v = s.number(ParamId::MinRunoff);
             s.finish();
             v
         }
-        None => 1.0,
+        None => default_of(ParamId::MinRunoff),
     };
     let contaminants = read_contaminants(&root);
     let calibration = read_calibration(&root);
     let economics = match root.section("economics") {
         Some(s) => {
-            let e = Economics {
-                discount_rate: s.f64_in("discount_rate", Some(0.05), 0.0, 0.5, "per year"),
-                water_value_per_m3: s.opt_f64_in("water_value_per_m3", 0.0, 1000.0, "$/m³"),
-            };
+            let e = Economics { discount_rate: s.number(ParamId::DiscountRate), water_value_per_m3: s.opt_number(ParamId::WaterValue) };
             s.finish();
             e
         }
-        None => Economics { discount_rate: 0.05, water_value_per_m3: None },
+        None => Economics { discount_rate: default_of(ParamId::DiscountRate), water_value_per_m3: None },
     };
     let treatments = read_treatments(&root);
     let strategies = read_strategies(&root, base, &treatments);
@@ -592,18 +589,23 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
     }
 }
 
+/// The table default of a parameter that has one (used when its whole section is absent).
+fn default_of(id: ParamId) -> f64 {
+    id.default_value().unwrap_or_else(|| id.range().bounds().0.max(0.0))
+}
+
 fn read_ensemble(s: &Section<'_>) -> EnsembleConfig {
-    let members = s.int_in("members", Some(100), 1, 100_000, "members") as usize;
+    let members = s.whole(ParamId::Members) as usize;
     let sampling = match s.choice("sampling", "latin-hypercube", &["latin-hypercube", "monte-carlo"]).as_str() {
         "monte-carlo" => Sampling::MonteCarlo,
         _ => Sampling::LatinHypercube,
     };
-    let seed = s.int_in("seed", Some(1), 0, i64::MAX, "") as u64;
+    let seed = s.whole(ParamId::Seed) as u64;
     let mode = s.choice("climate", "none", &["none", "bootstrap", "stochastic"]);
-    let block_years = s.int_in("block_years", Some(5), 1, 100, "years") as usize;
-    let rain_cv = s.f64_in("rain_cv", Some(0.15), 0.0, 2.0, "");
-    let rain_lag1 = s.f64_in("rain_lag1", Some(0.2), -0.95, 0.95, "");
-    let pet_cv = s.f64_in("pet_cv", Some(0.0), 0.0, 1.0, "");
+    let block_years = s.whole(ParamId::BlockYears) as usize;
+    let rain_cv = s.number(ParamId::RainCv);
+    let rain_lag1 = s.number(ParamId::RainLag1);
+    let pet_cv = s.number(ParamId::PetCv);
     let write_members = match s.get("write_members") {
         None => false,
         Some(toml::Value::Boolean(b)) => *b,
@@ -621,13 +623,16 @@ fn read_ensemble(s: &Section<'_>) -> EnsembleConfig {
 }
 
 fn read_hydrology(s: Option<Section<'_>>) -> (CoverCurves, f64) {
-    let Some(s) = s else { return (CoverCurves::ZHANG_DEFAULT, 1.0) };
+    let Some(s) = s else {
+        let curves = CoverCurves::Zhang { w_forest: default_of(ParamId::WForest), w_grass: default_of(ParamId::WGrass) };
+        return (curves, default_of(ParamId::ForestPetFactor));
+    };
     let method = s.choice("method", "zhang", &["zhang", "fu"]);
-    let w_forest = s.param("w_forest", Some(2.0), 0.01, 20.0, "");
-    let w_grass = s.param("w_grass", Some(0.5), 0.01, 20.0, "");
-    let omega_forest = s.param("omega_forest", Some(2.97), 1.01, 20.0, "");
-    let omega_grass = s.param("omega_grass", Some(2.16), 1.01, 20.0, "");
-    let factor = s.param("forest_pet_factor", Some(1.0), 0.5, 2.0, "");
+    let w_forest = s.number(ParamId::WForest);
+    let w_grass = s.number(ParamId::WGrass);
+    let omega_forest = s.number(ParamId::OmegaForest);
+    let omega_grass = s.number(ParamId::OmegaGrass);
+    let factor = s.number(ParamId::ForestPetFactor);
     s.finish();
     let curves = if method == "fu" { CoverCurves::Fu { omega_forest, omega_grass } } else { CoverCurves::Zhang { w_forest, w_grass } };
     (curves, factor)
@@ -636,33 +641,44 @@ fn read_hydrology(s: Option<Section<'_>>) -> (CoverCurves, f64) {
 fn read_invasion(inv: Option<Section<'_>>, closure: Option<Section<'_>>) -> InvasionParams {
     let (spread, seed_age, seed_rain, medium, dense, span) = match &inv {
         Some(s) => {
-            let spread = s.param("spread_rate_per_yr", Some(0.06), 0.0, 1.0, "1/yr");
+            let spread = s.number(ParamId::SpreadRate);
             let seed_age = if matches!(s.get("seed_bearing_age_yr"), Some(toml::Value::Table(_))) {
-                s.param("seed_bearing_age_yr", Some(8.0), 0.0, 100.0, "years").round() as u32
+                s.number(ParamId::SeedBearingAge).round() as u32
             } else {
-                s.int_in("seed_bearing_age_yr", Some(8), 0, 100, "years") as u32
+                s.whole(ParamId::SeedBearingAge) as u32
             };
-            let seed_rain = s.param("seed_rain_ha_per_yr", Some(0.0), 0.0, 1e7, "ha/yr");
-            let medium = s.int_in("medium_age_yr", Some(10), 1, 100, "years") as u32;
-            let dense = s.int_in("dense_age_yr", Some(20), 2, 200, "years") as u32;
-            let span = s.int_in("initial_dense_span_yr", Some(10), 1, 100, "years") as u32;
+            let seed_rain = s.number(ParamId::SeedRain);
+            let medium = s.whole(ParamId::MediumAge) as u32;
+            let dense = s.whole(ParamId::DenseAge) as u32;
+            let span = s.whole(ParamId::InitialDenseSpan) as u32;
             if dense <= medium {
                 s.push("dense_age_yr", format!("must be greater than medium_age_yr ({medium})"));
             }
             s.finish();
             (spread, seed_age, seed_rain, medium, dense, span)
         }
-        None => (0.06, 8, 0.0, 10, 20, 10),
+        None => (
+            default_of(ParamId::SpreadRate),
+            default_of(ParamId::SeedBearingAge) as u32,
+            default_of(ParamId::SeedRain),
+            default_of(ParamId::MediumAge) as u32,
+            default_of(ParamId::DenseAge) as u32,
+            default_of(ParamId::InitialDenseSpan) as u32,
+        ),
     };
     let closure = match closure {
-        None => ClosureCurve::Logistic { half_closure_age_yr: 12.0, steepness_per_yr: 0.35, max_fraction: 1.0 },
+        None => ClosureCurve::Logistic {
+            half_closure_age_yr: default_of(ParamId::HalfClosureAge),
+            steepness_per_yr: default_of(ParamId::ClosureSteepness),
+            max_fraction: default_of(ParamId::ClosureMaxFraction),
+        },
         Some(s) => {
             let kind = s.choice("curve", "logistic", &["logistic", "table"]);
-            let half = s.param("half_closure_age_yr", Some(12.0), 0.5, 200.0, "years");
-            let k = s.param("steepness_per_yr", Some(0.35), 0.01, 10.0, "1/yr");
-            let max = s.param("max_fraction", Some(1.0), 0.0, 1.0, "fraction");
-            let ages = s.f64_list("ages_yr", 0.0, 500.0, "years");
-            let fractions = s.f64_list("fractions", 0.0, 1.0, "fraction");
+            let half = s.number(ParamId::HalfClosureAge);
+            let k = s.number(ParamId::ClosureSteepness);
+            let max = s.number(ParamId::ClosureMaxFraction);
+            let ages = s.list(ParamId::ClosureAges);
+            let fractions = s.list(ParamId::ClosureFractions);
             let c = if kind == "table" {
                 match (ages, fractions) {
                     (Some(a), Some(f)) => {
@@ -706,9 +722,9 @@ fn read_contaminants(root: &Section<'_>) -> Vec<Contaminant> {
         if out.iter().any(|c| c.name == name) {
             s.push("name", format!("contaminant '{name}' is defined twice"));
         }
-        let open = s.param("open_export_kg_per_ha_yr", None, 0.0, 1e4, "kg/ha/yr");
-        let forest = s.param("forest_export_kg_per_ha_yr", None, 0.0, 1e4, "kg/ha/yr");
-        let guideline = s.opt_f64_in("guideline_mg_per_l", 0.0, 1e6, "mg/L");
+        let open = s.number(ParamId::OpenExport);
+        let forest = s.number(ParamId::ForestExport);
+        let guideline = s.opt_number(ParamId::Guideline);
         s.finish();
         out.push(Contaminant { name, open_export_kg_per_ha_yr: open, forest_export_kg_per_ha_yr: forest, guideline_mg_per_l: guideline });
     }
@@ -770,7 +786,7 @@ fn read_treatments(root: &Section<'_>) -> Vec<TreatmentMethod> {
         if !s.has("class") {
             s.push("class", "required key is missing; choose one of: scattered, medium, dense");
         }
-        let cost = s.param("cost_per_ha", None, 0.0, 1e7, "$/ha");
+        let cost = s.number(ParamId::TreatmentCost);
         let class = class_from_name(&class).unwrap_or(DensityClass::Scattered);
         if out.iter().any(|m| m.name == name && m.class == class) {
             s.push("name", format!("treatment '{name}' for class {} is defined twice", class.name()));
@@ -807,8 +823,8 @@ fn read_strategies(root: &Section<'_>, base: &Path, treatments: &[TreatmentMetho
         if out.iter().any(|r| r.strategy.name == name) {
             s.push("name", format!("strategy '{name}' is defined twice"));
         }
-        let start_year = s.int_in("start_year", None, 1800, 2800, "") as i32;
-        let end_year = s.has("end_year").then(|| s.int_in("end_year", Some(start_year as i64), start_year as i64, 2800, "") as i32);
+        let start_year = s.whole(ParamId::StrategyStartYear) as i32;
+        let end_year = s.has("end_year").then(|| s.whole_from(ParamId::StrategyEndYear, start_year as i64) as i32);
         if !s.has("end_year") {
             let _ = s.get("end_year");
         }
@@ -831,14 +847,14 @@ fn read_strategies(root: &Section<'_>, base: &Path, treatments: &[TreatmentMetho
         let budget = match given.as_slice() {
             ["budget_per_yr"] => match s.get("budget_per_yr") {
                 Some(toml::Value::String(t)) if t == "unlimited" => RawBudget::Unlimited,
-                _ => RawBudget::Constant(s.f64_in("budget_per_yr", Some(0.0), 0.0, 1e12, "$/yr"), per_catchment),
+                _ => RawBudget::Constant(s.opt_number(ParamId::BudgetPerYr).unwrap_or(0.0), per_catchment),
             },
             ["budget_table"] => RawBudget::Table(base.join(s.string("budget_table", Some("")).unwrap_or_default()), per_catchment),
             ["area_ha_per_yr"] => {
                 if per_catchment {
                     s.push("budget_scope", "a fixed-area programme (area_ha_per_yr) treats the basin as one pool; remove budget_scope");
                 }
-                RawBudget::Area(s.f64_in("area_ha_per_yr", Some(0.0), 0.0, 1e9, "ha/yr"))
+                RawBudget::Area(s.opt_number(ParamId::AreaPerYr).unwrap_or(0.0))
             }
             [] => {
                 s.push("name", "needs one of budget_per_yr ($/yr or \"unlimited\"), budget_table (CSV) or area_ha_per_yr (ha/yr)");
@@ -850,11 +866,11 @@ fn read_strategies(root: &Section<'_>, base: &Path, treatments: &[TreatmentMetho
             }
         };
         let _ = (s.get("budget_per_yr"), s.get("budget_table"), s.get("area_ha_per_yr"));
-        let efficacy = s.param("efficacy", Some(0.95), 0.0, 1.0, "fraction");
-        let regrowth_fraction = s.param("regrowth_fraction", Some(0.0), 0.0, 1.0, "fraction");
-        let regrowth_years = s.int_in("regrowth_years", Some(5), 1, 50, "years") as u32;
-        let follow_up = s.param("follow_up_cost_per_ha", Some(0.0), 0.0, 1e6, "$/ha/yr");
-        let delays: Vec<u32> = s.f64_list("delays_yr", 0.0, 300.0, "years").unwrap_or_default().into_iter().map(|d| d as u32).collect();
+        let efficacy = s.number(ParamId::Efficacy);
+        let regrowth_fraction = s.number(ParamId::RegrowthFraction);
+        let regrowth_years = s.whole(ParamId::RegrowthYears) as u32;
+        let follow_up = s.number(ParamId::FollowUpCost);
+        let delays: Vec<u32> = s.list(ParamId::Delays).unwrap_or_default().into_iter().map(|d| d as u32).collect();
         let mut fixed: [Option<String>; 3] = [None, None, None];
         if let Some(m) = s.section("methods") {
             for (k, class) in DensityClass::ALL.iter().enumerate() {

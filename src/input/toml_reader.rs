@@ -3,15 +3,22 @@
 //! Every key read is recorded; keys never read are reported as unknown with the
 //! nearest valid name, or with the section they belong in when they were read in
 //! another section. Every problem is collected with the file, the line of the
-//! key (found in the source text) and the dotted key path, and the allowed range;
-//! [`TomlDoc::take_problems`] returns them in file order.
+//! key (from the TOML parser's spans) and the dotted key path, and the allowed
+//! range; [`TomlDoc::take_problems`] returns them in file order.
+//!
+//! Numeric parameters are read by their [`ParamId`]: default, range and unit come
+//! from the parameter table ([`crate::model::params`]).
 
 use crate::error::Problem;
 use crate::input::table::{fmt_value, nearest, parse_number, percent_hint, range_text, read_limited, suggestion};
+use crate::model::params::{Absent, ParamId, ParamRef, ParamSpec, Range};
 use crate::model::uncertainty::{Distribution, UncertainParam};
-use std::cell::{OnceCell, RefCell};
+use serde::Deserialize;
+use std::cell::RefCell;
 use std::collections::{BTreeSet, HashMap};
+use std::ops::Bound;
 use std::path::{Path, PathBuf};
+use toml::de::{DeTable, DeValue};
 
 /// Largest scenario file accepted, bytes (16 MiB; real scenarios are a few KiB).
 pub const MAX_TOML_BYTES: u64 = 16 * 1024 * 1024;
@@ -25,7 +32,7 @@ pub fn read_toml_file(path: &Path) -> Result<String, Problem> {
         let bytes = e.as_bytes();
         let valid = e.utf8_error().valid_up_to();
         let line = bytes[..valid].iter().filter(|&&b| b == b'\n').count() + 1;
-        Problem::in_file(path, "is not UTF-8 text; save it as UTF-8").row(line)
+        Problem::in_file(path, "is not UTF-8 text; save it as UTF-8").line(line)
     })
 }
 
@@ -36,11 +43,20 @@ const TOP_LEVEL: &str = "the top level";
 /// never comes near this; a generated or corrupted one could list millions.
 pub const MAX_PROBLEMS: usize = 1000;
 
+/// A scenario parameter given as a distribution, with the parameter it sets.
+#[derive(Debug, Clone, PartialEq)]
+pub struct UncertainKey {
+    /// The parameter (and entry of an array of tables) the drawn values set,
+    /// resolved once from the key path.
+    pub target: ParamRef,
+    /// The key path (which names the sampling dimension), distribution and drawing.
+    pub param: UncertainParam,
+}
+
 /// Shared state of one TOML file being read.
 #[derive(Debug)]
 pub struct TomlDoc {
     path: PathBuf,
-    text: String,
     problems: RefCell<Vec<Problem>>,
     /// Keys read in each section, by the section's display name (`[invasion]`).
     known: RefCell<Vec<(String, BTreeSet<String>)>>,
@@ -48,53 +64,75 @@ pub struct TomlDoc {
     /// (index into `problems`, key, display name of its section).
     unknown: RefCell<Vec<(usize, String, String)>>,
     /// Parameters given as distributions, in reading order.
-    uncertain: RefCell<Vec<UncertainParam>>,
-    /// Where headers and keys are in the text, built on the first lookup.
-    index: OnceCell<LineIndex>,
+    uncertain: RefCell<Vec<UncertainKey>>,
+    /// Lines of the root table's keys and of everything below it.
+    spans: Spans,
     /// Problems beyond [`MAX_PROBLEMS`], counted but not kept.
     dropped: RefCell<usize>,
 }
 
-/// Lines of the headers and keys of the source text, so that locating a key is
-/// a lookup rather than a scan (a file with many problems stays fast).
+/// Where one table and its keys are in the text, from the parser's spans.
 #[derive(Debug, Default)]
-struct LineIndex {
-    /// Header name (quotes and spaces removed) → its 0-based lines, in order.
-    headers: HashMap<String, Vec<usize>>,
-    /// Every dotted prefix of every header name → the first 0-based line with it.
-    prefixes: HashMap<String, usize>,
-    /// (0-based line of the table's header, or `usize::MAX` for the top level,
-    /// first segment of the key) → the first 0-based line assigning it.
-    keys: HashMap<(usize, String), usize>,
+struct Spans {
+    /// Line (1-based) of the table itself: its `[header]`, inline table or
+    /// dotted key; `None` for the root.
+    line: Option<usize>,
+    /// Each key of the table.
+    keys: HashMap<String, KeySpans>,
 }
 
-/// Block id of the top level in [`LineIndex::keys`].
-const TOP: usize = usize::MAX;
+/// Where one key and its value are.
+#[derive(Debug, Default)]
+struct KeySpans {
+    /// Line (1-based) of the key (of an array of tables: its first header).
+    line: usize,
+    /// The value, when it is a table.
+    table: Option<Spans>,
+    /// The items, when the value is an array (for an array of tables, each entry's header).
+    items: Vec<Spans>,
+}
 
-/// Largest file searched line by line for keys of inline tables.
-const SCAN_LIMIT_LINES: usize = 20_000;
+/// Byte offsets at which the lines of `text` start.
+fn line_starts(text: &str) -> Vec<usize> {
+    std::iter::once(0).chain(text.match_indices('\n').map(|(i, _)| i + 1)).collect()
+}
 
-impl LineIndex {
-    fn build(text: &str) -> LineIndex {
-        let mut ix = LineIndex::default();
-        let mut block = TOP;
-        for (i, line) in text.lines().enumerate() {
-            if let Some(name) = header_name(line) {
-                block = i;
-                let mut prefix = String::new();
-                for part in name.split('.') {
-                    if !prefix.is_empty() {
-                        prefix.push('.');
+/// The 1-based line holding byte `offset`.
+fn line_at(starts: &[usize], offset: usize) -> usize {
+    starts.partition_point(|&s| s <= offset).max(1)
+}
+
+impl Spans {
+    fn of(table: &DeTable<'_>, line: Option<usize>, starts: &[usize]) -> Spans {
+        let keys = table
+            .iter()
+            .map(|(k, v)| {
+                let mut at = KeySpans { line: line_at(starts, k.span().start), ..KeySpans::default() };
+                match v.get_ref() {
+                    DeValue::Table(t) => at.table = Some(Spans::of(t, Some(line_at(starts, v.span().start)), starts)),
+                    DeValue::Array(items) => {
+                        at.items = items
+                            .iter()
+                            .map(|item| {
+                                let line = Some(line_at(starts, item.span().start));
+                                match item.get_ref() {
+                                    DeValue::Table(t) => Spans::of(t, line, starts),
+                                    _ => Spans { line, keys: HashMap::new() },
+                                }
+                            })
+                            .collect()
                     }
-                    prefix.push_str(part);
-                    ix.prefixes.entry(prefix.clone()).or_insert(i);
+                    _ => {}
                 }
-                ix.headers.entry(name).or_default().push(i);
-            } else if let Some(key) = leading_key(line) {
-                ix.keys.entry((block, key)).or_insert(i);
-            }
-        }
-        ix
+                (k.get_ref().to_string(), at)
+            })
+            .collect();
+        Spans { line, keys }
+    }
+
+    /// Line of `key`, or of this table when the key is absent.
+    fn line_of(&self, key: &str) -> Option<usize> {
+        self.keys.get(key).map(|k| k.line).or(self.line)
     }
 }
 
@@ -103,7 +141,7 @@ pub struct Section<'a> {
     doc: &'a TomlDoc,
     /// Dotted path of this table (`""` for the root, `invasion`, `contaminant[2]`).
     pub path: String,
-    header: Option<(String, usize)>,
+    spans: Option<&'a Spans>,
     table: &'a toml::Table,
     used: RefCell<BTreeSet<String>>,
 }
@@ -111,33 +149,32 @@ pub struct Section<'a> {
 impl TomlDoc {
     /// Parses TOML text; a syntax error becomes a located problem.
     pub fn parse(path: &Path, text: String) -> Result<(TomlDoc, toml::Table), Problem> {
-        let text = text.strip_prefix('\u{feff}').map(str::to_string).unwrap_or(text);
-        match text.parse::<toml::Table>() {
-            Ok(t) => Ok((
-                TomlDoc {
-                    path: path.to_path_buf(),
-                    text,
-                    problems: RefCell::new(Vec::new()),
-                    known: RefCell::new(Vec::new()),
-                    unknown: RefCell::new(Vec::new()),
-                    uncertain: RefCell::new(Vec::new()),
-                    index: OnceCell::new(),
-                    dropped: RefCell::new(0),
-                },
-                t,
-            )),
-            Err(e) => {
-                let line = e.span().map(|s| text[..s.start.min(text.len())].matches('\n').count() + 1);
-                let msg = format!("is not valid TOML: {}", e.message());
-                let mut p = Problem::in_file(path, msg);
-                p.row = line;
-                Err(p)
+        let text = text.strip_prefix('\u{feff}').unwrap_or(&text);
+        let starts = line_starts(text);
+        let invalid = |e: toml::de::Error| {
+            let p = Problem::in_file(path, format!("is not valid TOML: {}", e.message()));
+            match e.span() {
+                Some(s) => p.line(line_at(&starts, s.start)),
+                None => p,
             }
-        }
+        };
+        let document = DeTable::parse(text).map_err(invalid)?;
+        let spans = Spans::of(document.get_ref(), None, &starts);
+        let table = toml::Table::deserialize(toml::de::Deserializer::from(document)).map_err(invalid)?;
+        let doc = TomlDoc {
+            path: path.to_path_buf(),
+            problems: RefCell::new(Vec::new()),
+            known: RefCell::new(Vec::new()),
+            unknown: RefCell::new(Vec::new()),
+            uncertain: RefCell::new(Vec::new()),
+            spans,
+            dropped: RefCell::new(0),
+        };
+        Ok((doc, table))
     }
 
     /// Every parameter given as a distribution, in reading order.
-    pub fn take_uncertain(&self) -> Vec<UncertainParam> {
+    pub fn take_uncertain(&self) -> Vec<UncertainKey> {
         std::mem::take(&mut self.uncertain.borrow_mut())
     }
 
@@ -146,9 +183,9 @@ impl TomlDoc {
         &self.path
     }
 
-    /// The root table as a section.
+    /// The root table as a section (`table` is the one [`TomlDoc::parse`] returned).
     pub fn root<'a>(&'a self, table: &'a toml::Table) -> Section<'a> {
-        Section { doc: self, path: String::new(), header: None, table, used: RefCell::new(BTreeSet::new()) }
+        Section { doc: self, path: String::new(), spans: Some(&self.spans), table, used: RefCell::new(BTreeSet::new()) }
     }
 
     /// Records a problem (beyond [`MAX_PROBLEMS`] only counts it).
@@ -217,93 +254,6 @@ impl TomlDoc {
             None => known.push((section, keys.clone())),
         }
     }
-
-    /// Line (1-based) of `key` inside the table with header `[name]` / `[[name]]`
-    /// (its `nth` occurrence), or at the top of the file when `header` is `None`.
-    ///
-    /// Falls back, in order, to a sub-table header `[name.key]`, to the first
-    /// `key =` anywhere when the table has no header of its own (an inline or
-    /// dotted-key table), and to the table's header line (for a missing key).
-    fn line_of(&self, header: Option<&(String, usize)>, key: &str) -> Option<usize> {
-        let ix = self.index.get_or_init(|| LineIndex::build(&self.text));
-        let block = match header {
-            None => TOP,
-            Some((name, nth)) => match find_header(ix, name, *nth) {
-                Some(i) => i,
-                None => {
-                    // No header of its own: an inline table or dotted keys.
-                    let lines = self.text.lines();
-                    if self.text.len() / 16 > SCAN_LIMIT_LINES && lines.clone().count() > SCAN_LIMIT_LINES {
-                        return None;
-                    }
-                    return lines.enumerate().find(|(_, l)| assigns(l, key, true)).map(|(i, _)| i + 1);
-                }
-            },
-        };
-        if let Some(&i) = ix.keys.get(&(block, key.to_string())) {
-            return Some(i + 1);
-        }
-        let full = match header {
-            Some((name, _)) => format!("{}.{key}", strip_indices(name)),
-            None => key.to_string(),
-        };
-        if let Some(&i) = ix.prefixes.get(&full) {
-            return Some(i + 1);
-        }
-        (block != TOP).then(|| block + 1)
-    }
-}
-
-/// The first segment of the key a line assigns (`key`, `"key"`, `key.sub`),
-/// when the line is `key = …` or `key.sub = …`.
-fn leading_key(line: &str) -> Option<String> {
-    let t = line.trim_start();
-    let (key, rest) = if let Some(q) = t.strip_prefix('"') {
-        let end = q.find('"')?;
-        (&q[..end], &q[end + 1..])
-    } else if let Some(q) = t.strip_prefix('\'') {
-        let end = q.find('\'')?;
-        (&q[..end], &q[end + 1..])
-    } else {
-        let end = t.find(|c: char| !(c.is_ascii_alphanumeric() || c == '_' || c == '-')).unwrap_or(t.len());
-        (&t[..end], &t[end..])
-    };
-    let rest = rest.trim_start();
-    (!key.is_empty() && (rest.starts_with('=') || rest.starts_with('.'))).then(|| key.to_string())
-}
-
-/// The dotted name of a `[table]` or `[[array]]` header line (spaces and quotes
-/// removed), or `None` when the line is not a header.
-fn header_name(line: &str) -> Option<String> {
-    let t = line.trim();
-    if !t.starts_with('[') {
-        return None;
-    }
-    let close = t.rfind(']')?;
-    let after = t[close + 1..].trim_start();
-    if !(after.is_empty() || after.starts_with('#')) {
-        return None;
-    }
-    let inner = t[..=close].trim_start_matches('[').trim_end_matches(']');
-    let name: String = inner.chars().filter(|c| !c.is_whitespace() && *c != '"' && *c != '\'').collect();
-    (!name.is_empty()).then_some(name)
-}
-
-/// Index (0-based) of the line holding the `nth` header of the table at dotted
-/// `path`. Inside an array entry (`strategy[2].methods`) the search starts at
-/// that entry's own `[[strategy]]` header.
-fn find_header(ix: &LineIndex, path: &str, nth: usize) -> Option<usize> {
-    let want = strip_indices(path);
-    let mut from = 0;
-    if let Some(pos) = path.rfind("].") {
-        let parent = &path[..=pos];
-        let open = parent.rfind('[')?;
-        let k: usize = parent[open + 1..parent.len() - 1].parse().ok()?;
-        from = find_header(ix, &parent[..open], k.checked_sub(1)?)? + 1;
-    }
-    let lines = ix.headers.get(&want)?;
-    let first = lines.partition_point(|&l| l < from);
-    lines.get(first + nth).copied()
 }
 
 /// `contaminant[2].x` → `contaminant.x`.
@@ -321,35 +271,28 @@ fn strip_indices(path: &str) -> String {
     out
 }
 
-/// True when `line` assigns `key` (`key =`, `"key" =`, or `key.sub =`); with
-/// `anywhere`, also inside an inline table or after a dotted prefix.
-fn assigns(line: &str, key: &str, anywhere: bool) -> bool {
-    let t = line.trim_start();
-    let matches_at = |s: &str| -> bool {
-        for k in [key.to_string(), format!("\"{key}\""), format!("'{key}'")] {
-            if let Some(rest) = s.strip_prefix(k.as_str()) {
-                let rest = rest.trim_start();
-                if rest.starts_with('=') || rest.starts_with('.') {
-                    return true;
-                }
-            }
+/// The allowed values of a range in words: `0 to 1 fraction`, `0 or more`,
+/// `more than 0 and at most 1`.
+fn range_words(r: Range, unit: &str) -> String {
+    let (lo, hi) = r.bounds();
+    match (r.min, r.max) {
+        (Bound::Included(_), Bound::Included(_) | Bound::Unbounded) => range_text(lo, hi, unit),
+        _ => {
+            let lower = match r.min {
+                Bound::Included(v) => Some(format!("at least {}", fmt_value(v))),
+                Bound::Excluded(v) => Some(format!("more than {}", fmt_value(v))),
+                Bound::Unbounded => None,
+            };
+            let upper = match r.max {
+                Bound::Included(v) => Some(format!("at most {}", fmt_value(v))),
+                Bound::Excluded(v) => Some(format!("less than {}", fmt_value(v))),
+                Bound::Unbounded => None,
+            };
+            let words: Vec<String> = lower.into_iter().chain(upper).collect();
+            let u = if unit.is_empty() { String::new() } else { format!(" {unit}") };
+            format!("{}{u}", if words.is_empty() { "any number".to_string() } else { words.join(" and ") })
         }
-        false
-    };
-    if matches_at(t) {
-        return true;
     }
-    if !anywhere {
-        return false;
-    }
-    let is_key_char = |c: char| c.is_ascii_alphanumeric() || c == '_' || c == '-';
-    t.char_indices().any(|(i, _)| {
-        let after_boundary = match t[..i].chars().next_back() {
-            None => true,
-            Some(c) => !is_key_char(c),
-        };
-        after_boundary && matches_at(&t[i..])
-    })
 }
 
 impl<'a> Section<'a> {
@@ -361,11 +304,14 @@ impl<'a> Section<'a> {
         }
     }
 
-    /// A problem located at `key` of this section.
+    /// A problem located at `key` of this section (at the table itself when the
+    /// key is absent; at no line for an absent key of the top level).
     pub fn problem(&self, key: &str, message: impl Into<String>) -> Problem {
-        let mut p = Problem::in_file(&self.doc.path, message).column(self.key_path(key));
-        p.row = self.doc.line_of(self.header.as_ref(), key);
-        p
+        let p = Problem::in_file(&self.doc.path, message).key(self.key_path(key));
+        match self.spans.and_then(|s| s.line_of(key)) {
+            Some(line) => p.line(line),
+            None => p,
+        }
     }
 
     /// Records a problem located at `key`.
@@ -388,13 +334,17 @@ impl<'a> Section<'a> {
         self.table.contains_key(key)
     }
 
+    fn key_spans(&self, key: &str) -> Option<&'a KeySpans> {
+        self.spans.and_then(|s| s.keys.get(key))
+    }
+
     /// A sub-table `[name]` (empty when absent).
     pub fn section(&self, key: &str) -> Option<Section<'a>> {
         match self.get(key)? {
             toml::Value::Table(t) => Some(Section {
                 doc: self.doc,
                 path: self.key_path(key),
-                header: Some((self.key_path(key), 0)),
+                spans: self.key_spans(key).and_then(|k| k.table.as_ref()),
                 table: t,
                 used: RefCell::new(BTreeSet::new()),
             }),
@@ -416,7 +366,7 @@ impl<'a> Section<'a> {
                     toml::Value::Table(t) => Some(Section {
                         doc: self.doc,
                         path: format!("{}[{}]", self.key_path(key), i + 1),
-                        header: Some((self.key_path(key), i)),
+                        spans: self.key_spans(key).and_then(|k| k.items.get(i)),
                         table: t,
                         used: RefCell::new(BTreeSet::new()),
                     }),
@@ -433,43 +383,104 @@ impl<'a> Section<'a> {
         }
     }
 
+    /// The table row of `id`, which must be a key of this section.
+    fn spec(&self, id: ParamId) -> &'static ParamSpec {
+        let spec = id.spec();
+        debug_assert_eq!(strip_indices(&self.path), spec.section, "{} read in the wrong table", spec.path());
+        spec
+    }
+
+    /// The number `id` of the parameter table: its default when absent (a problem
+    /// when required), within its range. A key that may vary may instead be
+    /// given as a distribution (see [`Section::param`]).
+    pub fn number(&self, id: ParamId) -> f64 {
+        let spec = self.spec(id);
+        let default = spec.absent.value();
+        if spec.may_vary {
+            self.param(spec.key, id, default)
+        } else {
+            self.f64_within(spec.key, default, spec.range, spec.message_unit())
+        }
+    }
+
+    /// The number `id` when its key is present.
+    pub fn opt_number(&self, id: ParamId) -> Option<f64> {
+        let spec = self.spec(id);
+        if self.has(spec.key) {
+            Some(self.number(id))
+        } else {
+            let _ = self.get(spec.key);
+            None
+        }
+    }
+
+    /// The whole number `id` of the parameter table: its default when absent (a
+    /// problem when required), within its range.
+    pub fn whole(&self, id: ParamId) -> i64 {
+        let spec = self.spec(id);
+        let default = spec.absent.value().map(|v| v as i64);
+        self.whole_within(spec.key, default, spec.range, spec.message_unit())
+    }
+
+    /// The whole number `id`, within its range and no less than `min` (a rule
+    /// between keys, e.g. `end_year` ≥ `start_year`); `min` when absent.
+    pub fn whole_from(&self, id: ParamId, min: i64) -> i64 {
+        let spec = self.spec(id);
+        let lo = (min as f64).max(spec.range.bounds().0);
+        let range = Range { min: Bound::Included(lo), max: spec.range.max };
+        self.whole_within(spec.key, Some(min), range, spec.message_unit())
+    }
+
+    /// The list `id` of the parameter table, each item within its range; `None` when absent.
+    pub fn list(&self, id: ParamId) -> Option<Vec<f64>> {
+        let spec = self.spec(id);
+        debug_assert!(matches!(spec.absent, Absent::Unset));
+        self.list_within(spec.key, spec.range, spec.message_unit())
+    }
+
     /// A number within `lo..=hi`; `default` when absent (a problem when no default).
     pub fn f64_in(&self, key: &str, default: Option<f64>, lo: f64, hi: f64, unit: &str) -> f64 {
+        self.f64_within(key, default, Range::closed(lo, hi), unit)
+    }
+
+    fn f64_within(&self, key: &str, default: Option<f64>, range: Range, unit: &str) -> f64 {
+        let (lo, hi) = range.bounds();
         let fallback = default.unwrap_or(lo.max(0.0).min(hi));
+        let allowed = range_words(range, unit);
         match self.get(key) {
             None => {
                 if default.is_none() {
-                    self.push(key, format!("required key is missing; expected a number in {}", range_text(lo, hi, unit)));
+                    self.push(key, format!("required key is missing; expected a number in {allowed}"));
                 }
                 fallback
             }
             Some(v) => match as_f64(v) {
-                Some(x) if x.is_finite() && x >= lo && x <= hi => x,
+                Some(x) if range.contains(x) => x,
                 Some(x) => {
-                    self.push(
-                        key,
-                        format!("{} is out of range; allowed {}{}", fmt_value(x), range_text(lo, hi, unit), percent_hint(x, unit)),
-                    );
+                    self.push(key, format!("{} is out of range; allowed {allowed}{}", fmt_value(x), percent_hint(x, unit)));
                     fallback
                 }
                 None => {
-                    self.push(key, format!("must be a number in {}{}", range_text(lo, hi, unit), quoted_number_hint(v)));
+                    self.push(key, format!("must be a number in {allowed}{}", quoted_number_hint(v)));
                     fallback
                 }
             },
         }
     }
 
-    /// A parameter that may be uncertain: a number within `lo..=hi`, or an inline
-    /// table giving a distribution, e.g. `{ dist = "triangular", min = 0.04, mode = 0.06, max = 0.08 }`
+    /// A parameter that may vary: a number within its range, or an inline table
+    /// giving a distribution, e.g. `{ dist = "triangular", min = 0.04, mode = 0.06, max = 0.08 }`
     /// with an optional `per = "catchment"` (default `"basin"`: one draw per member
     /// shared by all catchments). Returns the number, or the distribution's central
-    /// value, and records the distribution.
-    pub fn param(&self, key: &str, default: Option<f64>, lo: f64, hi: f64, unit: &str) -> f64 {
+    /// value, and records the distribution with the parameter its key path resolves to.
+    fn param(&self, key: &str, id: ParamId, default: Option<f64>) -> f64 {
+        let spec = id.spec();
+        let (range, unit) = (spec.range, spec.message_unit());
         let Some(toml::Value::Table(t)) = self.table.get(key) else {
-            return self.f64_in(key, default, lo, hi, unit);
+            return self.f64_within(key, default, range, unit);
         };
         self.used.borrow_mut().insert(key.to_string());
+        let (lo, hi) = range.bounds();
         let fallback = default.unwrap_or(lo.max(0.0).min(hi));
         let num = |k: &str| -> Option<f64> { t.get(k).and_then(as_f64) };
         let need = |k: &str, problems: &mut Vec<String>| -> f64 {
@@ -542,18 +553,23 @@ impl<'a> Section<'a> {
                     "the distribution reaches {}–{}, outside the allowed {}",
                     fmt_value(a),
                     fmt_value(b),
-                    range_text(lo, hi, unit)
+                    range_words(range, unit)
                 ));
             }
         }
-        if !msgs.is_empty() {
+        let path = self.key_path(key);
+        let target = ParamRef::resolve(&path).filter(|r| r.id() == id);
+        if msgs.is_empty() && target.is_none() {
+            msgs.push(format!("'{path}' cannot be given as a distribution; give a number in {}", range_words(range, unit)));
+        }
+        let (Some(target), true) = (target, msgs.is_empty()) else {
             for m in msgs {
                 self.push(key, m);
             }
             return fallback;
-        }
+        };
         let central = dist.central().clamp(lo, hi);
-        self.doc.uncertain.borrow_mut().push(UncertainParam { path: self.key_path(key), dist, per_catchment });
+        self.doc.uncertain.borrow_mut().push(UncertainKey { target, param: UncertainParam { path, dist, per_catchment } });
         central
     }
 
@@ -564,29 +580,32 @@ impl<'a> Section<'a> {
 
     /// A whole number within `lo..=hi`.
     pub fn int_in(&self, key: &str, default: Option<i64>, lo: i64, hi: i64, unit: &str) -> i64 {
-        let fallback = default.unwrap_or(lo);
+        self.whole_within(key, default, Range::closed(lo as f64, hi as f64), unit)
+    }
+
+    /// A whole number within `range` (and within the 64-bit integers TOML allows).
+    fn whole_within(&self, key: &str, default: Option<i64>, range: Range, unit: &str) -> i64 {
+        let (lo, _) = range.bounds();
+        let fallback = default.unwrap_or(if lo.is_finite() { lo.ceil() as i64 } else { 0 });
+        let allowed = range_words(range, unit);
+        // `i64::MAX as f64` is 2^63, one past the largest i64.
+        let fits = |f: f64| f >= i64::MIN as f64 && f < i64::MAX as f64;
         match self.get(key) {
             None => {
                 if default.is_none() {
-                    self.push(
-                        key,
-                        format!("required key is missing; expected a whole number in {}", range_text(lo as f64, hi as f64, unit)),
-                    );
+                    self.push(key, format!("required key is missing; expected a whole number in {allowed}"));
                 }
                 fallback
             }
-            Some(toml::Value::Integer(i)) if *i >= lo && *i <= hi => *i,
-            Some(toml::Value::Float(f)) if f.fract() == 0.0 && *f >= lo as f64 && *f <= hi as f64 => *f as i64,
+            Some(toml::Value::Integer(i)) if range.contains(*i as f64) => *i,
+            Some(toml::Value::Float(f)) if f.fract() == 0.0 && fits(*f) && range.contains(*f) => *f as i64,
             Some(v) => {
                 let shown = as_f64(v).map(fmt_value).unwrap_or_else(|| v.to_string());
-                self.push(
-                    key,
-                    format!(
-                        "{shown} is not allowed; expected a whole number in {}{}",
-                        range_text(lo as f64, hi as f64, unit),
-                        quoted_number_hint(v)
-                    ),
-                );
+                let why = match as_f64(v) {
+                    Some(f) if f.fract() == 0.0 && !fits(f) => " (too large for a whole number)",
+                    _ => "",
+                };
+                self.push(key, format!("{shown} is not allowed{why}; expected a whole number in {allowed}{}", quoted_number_hint(v)));
                 fallback
             }
         }
@@ -632,24 +651,22 @@ impl<'a> Section<'a> {
 
     /// A list of numbers each within `lo..=hi`.
     pub fn f64_list(&self, key: &str, lo: f64, hi: f64, unit: &str) -> Option<Vec<f64>> {
+        self.list_within(key, Range::closed(lo, hi), unit)
+    }
+
+    fn list_within(&self, key: &str, range: Range, unit: &str) -> Option<Vec<f64>> {
+        let allowed = range_words(range, unit);
         match self.get(key)? {
             toml::Value::Array(items) => {
                 let mut out = Vec::with_capacity(items.len());
                 for (i, v) in items.iter().enumerate() {
                     match as_f64(v) {
-                        Some(x) if x.is_finite() && x >= lo && x <= hi => out.push(x),
+                        Some(x) if range.contains(x) => out.push(x),
                         Some(x) => self.push(
                             key,
-                            format!(
-                                "item {} is {}; each must be a number in {}{}",
-                                i + 1,
-                                fmt_value(x),
-                                range_text(lo, hi, unit),
-                                percent_hint(x, unit)
-                            ),
+                            format!("item {} is {}; each must be a number in {allowed}{}", i + 1, fmt_value(x), percent_hint(x, unit)),
                         ),
-                        None => self
-                            .push(key, format!("item {} must be a number in {}{}", i + 1, range_text(lo, hi, unit), quoted_number_hint(v))),
+                        None => self.push(key, format!("item {} must be a number in {allowed}{}", i + 1, quoted_number_hint(v))),
                     }
                 }
                 Some(out)
@@ -748,6 +765,20 @@ mod tests {
         assert_eq!(c[1].problem("name", "").row, Some(12), "quoted key in the second entry");
         let s = root.array_of_tables("strategy");
         assert_eq!(s[1].section("methods").unwrap().problem("dense", "").row, Some(19), "sub-table of the second entry");
+    }
+
+    #[test]
+    fn keys_are_located_by_the_parser_inside_strings_and_multi_line_values() {
+        let text = "note = \"\"\"\n[hydrology]\nw_grass = 1\n\"\"\"\nhydrology = {\n  method = \"fu\",\n  w_grass = 0.5,\n}\n\
+                    list = [\n  1,\n  2,\n]\n'x' = 'a = 1'\n";
+        let (d, t) = doc(text);
+        let root = d.root(&t);
+        let h = root.section("hydrology").unwrap();
+        assert_eq!(h.problem("w_grass", "").row, Some(7), "a key of a multi-line inline table");
+        assert_eq!(h.problem("omega_grass", "").row, Some(5), "a missing key points at the inline table");
+        assert_eq!(root.problem("list", "").row, Some(9));
+        assert_eq!(root.problem("x", "").row, Some(13));
+        assert_eq!(root.problem("a", "").row, None, "text inside a value is not a key");
     }
 
     #[test]

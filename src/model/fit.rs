@@ -83,6 +83,7 @@
 
 use super::budyko::{mixed_et_mm, CoverCurves};
 use super::catchment::{Catchment, ClimateYear, ModelParams};
+use super::params::ParamId;
 use super::projection::starting_canopy_fraction;
 use super::roots::{brent_minimum, brent_root, RootError};
 use super::stats::percentile_sorted;
@@ -90,10 +91,10 @@ use super::uncertainty::{stable_hash, stream};
 use rand::RngExt;
 use std::fmt;
 
-/// Allowed range of Zhang's `w` for fitting (the scenario file's range, `docs/scenario.md`).
-pub const ZHANG_W_RANGE: (f64, f64) = (0.01, 20.0);
-/// Allowed range of Fu's `ω` for fitting (the scenario file's range, `docs/scenario.md`).
-pub const FU_OMEGA_RANGE: (f64, f64) = (1.01, 20.0);
+/// Allowed range of Zhang's `w` for fitting (the scenario file's range, from the parameter table).
+pub const ZHANG_W_RANGE: (f64, f64) = ParamId::WGrass.range().bounds();
+/// Allowed range of Fu's `ω` for fitting (the scenario file's range, from the parameter table).
+pub const FU_OMEGA_RANGE: (f64, f64) = ParamId::OmegaGrass.range().bounds();
 /// Fewest record years (and moving-average windows) a fit accepts.
 pub const MIN_YEARS: usize = 3;
 /// Longest moving-average window, years.
@@ -160,10 +161,13 @@ impl Cover {
 
     /// Allowed range of the parameter under `curves`' method.
     pub fn bounds(self, curves: &CoverCurves) -> (f64, f64) {
-        match curves {
-            CoverCurves::Zhang { .. } => ZHANG_W_RANGE,
-            CoverCurves::Fu { .. } => FU_OMEGA_RANGE,
-        }
+        let id = match (curves, self) {
+            (CoverCurves::Zhang { .. }, Cover::Grass) => ParamId::WGrass,
+            (CoverCurves::Zhang { .. }, Cover::Forest) => ParamId::WForest,
+            (CoverCurves::Fu { .. }, Cover::Grass) => ParamId::OmegaGrass,
+            (CoverCurves::Fu { .. }, Cover::Forest) => ParamId::OmegaForest,
+        };
+        id.range().bounds()
     }
 }
 

@@ -37,6 +37,7 @@ pub mod fit;
 pub mod interception;
 pub mod kernel;
 pub mod network;
+pub mod params;
 pub mod pet;
 pub mod projection;
 pub mod roots;

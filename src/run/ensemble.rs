@@ -22,6 +22,7 @@ use crate::model::climate_gen::{block_bootstrap, lognormal_ar1_multipliers};
 use crate::model::closure::ClosureCurve;
 use crate::model::control::Strategy;
 use crate::model::kernel::{concentration, project_lean, LeanYears};
+use crate::model::params::{ParamId, ParamRef};
 use crate::model::stats::{mean, percentile_sorted};
 use crate::model::uncertainty::{stable_hash, stream, uniforms, UncertainParam};
 use crate::model::CoverCurves;
@@ -75,62 +76,53 @@ pub struct MemberSetup {
     pub pet_scale: f64,
 }
 
-/// Sets the scenario parameter at `path` (as recorded by the scenario reader) to `v`.
-/// Unknown paths are ignored (they cannot occur for paths recorded by the reader).
-pub fn apply_param(s: &Scenario, path: &str, v: f64, m: &mut MemberSetup) {
-    let (head, key) = path.split_once('.').unwrap_or((path, ""));
-    let index = |h: &str, name: &str| -> Option<usize> {
-        h.strip_prefix(name)?.strip_prefix('[')?.strip_suffix(']')?.parse::<usize>().ok()?.checked_sub(1)
-    };
+/// Sets the parameter `target` to the drawn value `v` in a member's setup.
+///
+/// Every parameter that may vary is set here, except the curve parameters of a
+/// `[[calibration]]` entry, which [`member_catchment`] sets on the calibrated
+/// catchment. A curve parameter of the method not in use changes nothing.
+pub fn apply_param(s: &Scenario, target: ParamRef, v: f64, m: &mut MemberSetup) {
     let p = &mut m.params;
-    match (head, key) {
-        ("hydrology", "w_forest") => {
-            if let CoverCurves::Zhang { w_forest, .. } = &mut p.curves {
-                *w_forest = v
+    let entry = target.entry();
+    match target.id() {
+        ParamId::WForest | ParamId::WGrass | ParamId::OmegaForest | ParamId::OmegaGrass => {
+            if let Some(x) = curve_value(&mut p.curves, target.id()) {
+                *x = v;
             }
         }
-        ("hydrology", "w_grass") => {
-            if let CoverCurves::Zhang { w_grass, .. } = &mut p.curves {
-                *w_grass = v
+        ParamId::ForestPetFactor => p.forest_pet_factor = v,
+        ParamId::SpreadRate => p.invasion.spread_rate_per_yr = v,
+        ParamId::SeedBearingAge => p.invasion.seed_bearing_age_yr = v.round().max(0.0) as u32,
+        ParamId::SeedRain => p.invasion.seed_rain_ha_per_yr = v,
+        ParamId::HalfClosureAge => {
+            if let ClosureCurve::Logistic { half_closure_age_yr, .. } = &mut p.invasion.closure {
+                *half_closure_age_yr = v;
             }
         }
-        ("hydrology", "omega_forest") => {
-            if let CoverCurves::Fu { omega_forest, .. } = &mut p.curves {
-                *omega_forest = v
+        ParamId::ClosureSteepness => {
+            if let ClosureCurve::Logistic { steepness_per_yr, .. } = &mut p.invasion.closure {
+                *steepness_per_yr = v;
             }
         }
-        ("hydrology", "omega_grass") => {
-            if let CoverCurves::Fu { omega_grass, .. } = &mut p.curves {
-                *omega_grass = v
+        ParamId::ClosureMaxFraction => {
+            if let ClosureCurve::Logistic { max_fraction, .. } = &mut p.invasion.closure {
+                *max_fraction = v;
             }
         }
-        ("hydrology", "forest_pet_factor") => p.forest_pet_factor = v,
-        ("invasion", "spread_rate_per_yr") => p.invasion.spread_rate_per_yr = v,
-        ("invasion", "seed_bearing_age_yr") => p.invasion.seed_bearing_age_yr = v.round().max(0.0) as u32,
-        ("invasion", "seed_rain_ha_per_yr") => p.invasion.seed_rain_ha_per_yr = v,
-        ("canopy_closure", k) => {
-            if let ClosureCurve::Logistic { half_closure_age_yr, steepness_per_yr, max_fraction } = &mut p.invasion.closure {
-                match k {
-                    "half_closure_age_yr" => *half_closure_age_yr = v,
-                    "steepness_per_yr" => *steepness_per_yr = v,
-                    "max_fraction" => *max_fraction = v,
-                    _ => {}
-                }
+        ParamId::RainScale => m.rain_scale = v,
+        ParamId::PetScale => m.pet_scale = v,
+        ParamId::OpenExport => {
+            if let Some(c) = entry.and_then(|i| p.contaminants.get_mut(i)) {
+                c.open_export_kg_per_ha_yr = v;
             }
         }
-        ("climate", "rain_scale") => m.rain_scale = v,
-        ("climate", "pet_scale") => m.pet_scale = v,
-        (h, k) if h.starts_with("contaminant[") => {
-            if let Some(c) = index(h, "contaminant").and_then(|i| p.contaminants.get_mut(i)) {
-                match k {
-                    "open_export_kg_per_ha_yr" => c.open_export_kg_per_ha_yr = v,
-                    "forest_export_kg_per_ha_yr" => c.forest_export_kg_per_ha_yr = v,
-                    _ => {}
-                }
+        ParamId::ForestExport => {
+            if let Some(c) = entry.and_then(|i| p.contaminants.get_mut(i)) {
+                c.forest_export_kg_per_ha_yr = v;
             }
         }
-        (h, "cost_per_ha") if h.starts_with("treatment[") => {
-            if let Some(t) = index(h, "treatment").and_then(|i| s.treatments.get(i)) {
+        ParamId::TreatmentCost => {
+            if let Some(t) = entry.and_then(|i| s.treatments.get(i)) {
                 let class = t.class as usize;
                 for st in &mut m.strategies {
                     if st.method_names[class] == t.name {
@@ -139,17 +131,63 @@ pub fn apply_param(s: &Scenario, path: &str, v: f64, m: &mut MemberSetup) {
                 }
             }
         }
-        (h, k) if h.starts_with("strategy[") => {
-            if let Some(st) = index(h, "strategy").and_then(|i| m.strategies.get_mut(i)) {
-                match k {
-                    "efficacy" => st.efficacy = v,
-                    "regrowth_fraction" => st.regrowth_fraction = v,
-                    "follow_up_cost_per_ha" => st.follow_up_cost_per_ha = v,
-                    _ => {}
-                }
+        ParamId::Efficacy => {
+            if let Some(st) = entry.and_then(|i| m.strategies.get_mut(i)) {
+                st.efficacy = v;
             }
         }
-        _ => {}
+        ParamId::RegrowthFraction => {
+            if let Some(st) = entry.and_then(|i| m.strategies.get_mut(i)) {
+                st.regrowth_fraction = v;
+            }
+        }
+        ParamId::FollowUpCost => {
+            if let Some(st) = entry.and_then(|i| m.strategies.get_mut(i)) {
+                st.follow_up_cost_per_ha = v;
+            }
+        }
+        // Set on the calibrated catchment by `member_catchment`.
+        ParamId::CalibrationWForest | ParamId::CalibrationWGrass | ParamId::CalibrationOmegaForest | ParamId::CalibrationOmegaGrass => {}
+        // Keys that cannot vary: `ParamRef::resolve` gives no target for them.
+        ParamId::StartYear
+        | ParamId::HorizonYears
+        | ParamId::LatitudeDeg
+        | ParamId::ElevationM
+        | ParamId::WindHeightM
+        | ParamId::AreaTolerance
+        | ParamId::MediumAge
+        | ParamId::DenseAge
+        | ParamId::InitialDenseSpan
+        | ParamId::ClosureAges
+        | ParamId::ClosureFractions
+        | ParamId::MinRunoff
+        | ParamId::Guideline
+        | ParamId::DiscountRate
+        | ParamId::WaterValue
+        | ParamId::StrategyStartYear
+        | ParamId::StrategyEndYear
+        | ParamId::BudgetPerYr
+        | ParamId::AreaPerYr
+        | ParamId::RegrowthYears
+        | ParamId::Delays
+        | ParamId::Members
+        | ParamId::Seed
+        | ParamId::BlockYears
+        | ParamId::RainCv
+        | ParamId::RainLag1
+        | ParamId::PetCv => {}
+    }
+}
+
+/// The value in `curves` that the curve parameter `id` sets (in `[hydrology]` or
+/// a `[[calibration]]` entry); `None` when `curves` uses the other method.
+fn curve_value(curves: &mut CoverCurves, id: ParamId) -> Option<&mut f64> {
+    match (curves, id) {
+        (CoverCurves::Zhang { w_forest, .. }, ParamId::WForest | ParamId::CalibrationWForest) => Some(w_forest),
+        (CoverCurves::Zhang { w_grass, .. }, ParamId::WGrass | ParamId::CalibrationWGrass) => Some(w_grass),
+        (CoverCurves::Fu { omega_forest, .. }, ParamId::OmegaForest | ParamId::CalibrationOmegaForest) => Some(omega_forest),
+        (CoverCurves::Fu { omega_grass, .. }, ParamId::OmegaGrass | ParamId::CalibrationOmegaGrass) => Some(omega_grass),
+        _ => None,
     }
 }
 
@@ -160,17 +198,12 @@ fn member_catchment(s: &Scenario, i: usize, draws: &[Vec<f64>], m: usize) -> Opt
     let entry = &s.calibration_links.iter().find(|(id, _)| *id == c.id)?.1;
     let mut out: Option<crate::model::Catchment> = None;
     for (u, d) in s.uncertain.iter().zip(draws) {
-        let Some(key) = u.path.strip_prefix(entry.as_str()).and_then(|k| k.strip_prefix('.')) else { continue };
+        if u.target.table_path() != *entry {
+            continue;
+        }
         let cm = out.get_or_insert_with(|| c.clone());
-        let v = d[m];
-        if let Some(curves) = cm.curves.as_mut() {
-            match (curves, key) {
-                (CoverCurves::Zhang { w_grass, .. }, "w_grass") => *w_grass = v,
-                (CoverCurves::Zhang { w_forest, .. }, "w_forest") => *w_forest = v,
-                (CoverCurves::Fu { omega_grass, .. }, "omega_grass") => *omega_grass = v,
-                (CoverCurves::Fu { omega_forest, .. }, "omega_forest") => *omega_forest = v,
-                _ => {}
-            }
+        if let Some(x) = cm.curves.as_mut().and_then(|curves| curve_value(curves, u.target.id())) {
+            *x = d[m];
         }
     }
     out
@@ -184,7 +217,7 @@ fn draws_for(s: &Scenario, cfg: &EnsembleConfig, shared: &[Option<Vec<f64>>], ca
         .zip(shared)
         .map(|(u, sh)| match sh {
             Some(v) => v.clone(),
-            None => draw_values(u, cfg, Some(catchment_id)),
+            None => draw_values(&u.param, cfg, Some(catchment_id)),
         })
         .collect()
 }
@@ -257,7 +290,7 @@ fn setup_for(s: &Scenario, draws: &[Vec<f64>], m: usize) -> MemberSetup {
     let mut setup =
         MemberSetup { params: s.params.clone(), strategies: s.strategies.clone(), rain_scale: s.rain_scale, pet_scale: s.pet_scale };
     for (u, d) in s.uncertain.iter().zip(draws) {
-        apply_param(s, &u.path, d[m], &mut setup);
+        apply_param(s, u.target, d[m], &mut setup);
     }
     setup
 }
@@ -352,8 +385,9 @@ pub fn run_ensemble(
     let names = variable_names(s);
     let k = s.params.contaminants.len();
     let n_years = s.horizon_years + 1;
-    let labels: Vec<String> = s.uncertain.iter().map(|u| u.path.clone()).collect();
-    let shared: Vec<Option<Vec<f64>>> = s.uncertain.iter().map(|u| (!u.per_catchment).then(|| draw_values(u, cfg, None))).collect();
+    let labels: Vec<String> = s.uncertain.iter().map(|u| u.param.path.clone()).collect();
+    let shared: Vec<Option<Vec<f64>>> =
+        s.uncertain.iter().map(|u| (!u.param.per_catchment).then(|| draw_values(&u.param, cfg, None))).collect();
     let climates = member_climates(s, cfg);
     let points = sensitivity_points(s);
     let keep_reference = !s.strategies.is_empty();
@@ -498,7 +532,7 @@ fn draws_for_member(s: &Scenario, cfg: &EnsembleConfig, shared: &[Option<Vec<f64
         .map(|(u, sh)| match sh {
             Some(v) => vec![v[m]],
             None => {
-                let all = draw_values(u, cfg, Some(id));
+                let all = draw_values(&u.param, cfg, Some(id));
                 vec![all[m]]
             }
         })
@@ -535,7 +569,7 @@ fn no_control_catchment(
     for m in 0..m_count {
         // Every uncertain parameter is re-applied, so one setup serves all members.
         for (u, d) in s.uncertain.iter().zip(&draws) {
-            apply_param(s, &u.path, d[m], &mut setup);
+            apply_param(s, u.target, d[m], &mut setup);
         }
         let climate = member_series(s, climates, i, m, setup.rain_scale, setup.pet_scale);
         let calibrated = member_catchment(s, i, &draws, m);

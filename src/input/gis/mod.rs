@@ -43,8 +43,12 @@ use std::path::{Path, PathBuf};
 pub const DEFAULT_ID_PROPERTY: &str = "id";
 
 /// Default tolerance of the area check: warn when the geodesic area differs
-/// from the table's `area_ha` by more than this fraction.
-pub const DEFAULT_AREA_TOLERANCE: f64 = 0.05;
+/// from the table's `area_ha` by more than this fraction (the scenario default
+/// of `[gis] area_tolerance`, from the parameter table).
+pub const DEFAULT_AREA_TOLERANCE: f64 = match crate::model::params::ParamId::AreaTolerance.default_value() {
+    Some(v) => v,
+    None => 0.0,
+};
 
 /// The boundary of one catchment, as read from the GeoJSON file.
 #[derive(Debug, Clone)]
