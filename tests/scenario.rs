@@ -228,3 +228,19 @@ fn keys_that_may_vary_record_a_typed_target_and_others_refuse_a_distribution() {
         }
     }
 }
+
+#[test]
+fn log_normal_draws_never_exceed_the_allowed_maximum() {
+    // Regression: a log-normal max_fraction drew values above 1, giving yields below
+    // what any allowed closure can give. docs/scenario.md: truncated to the allowed range.
+    let tmp = tempfile::tempdir().unwrap();
+    let s = write(tmp.path(), "[canopy_closure]\nmax_fraction = { dist = \"lognormal\", median = 0.9, sigma_log = 0.4 }\n");
+    let sc = load_scenario(&s).unwrap();
+    let u = sc.uncertain.iter().find(|k| k.param.path.ends_with("max_fraction")).expect("max_fraction is uncertain");
+    let (lo, hi) = ParamId::ClosureMaxFraction.range().bounds();
+    let draws: Vec<f64> = (1..1000).map(|i| u.param.dist.quantile(i as f64 / 1000.0)).collect();
+    assert!(draws.iter().all(|&v| v >= lo && v <= hi), "a draw left {lo}..={hi}");
+    // Truncation, not clamping: no mass piles up on the bound, and the median stays below it.
+    assert!(draws.iter().filter(|&&v| v == hi).count() <= 1);
+    assert!(u.param.dist.quantile(0.5) < 0.9 && u.param.dist.quantile(0.999) < hi);
+}

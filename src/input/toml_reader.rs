@@ -557,6 +557,18 @@ impl<'a> Section<'a> {
                 ));
             }
         }
+        // A log-normal reaches beyond any finite upper bound: draw it truncated to the
+        // allowed range (by inverse CDF, so no probability piles up on the bound).
+        let dist = match (&dist, msgs.is_empty()) {
+            (Distribution::LogNormal { .. }, true) if dist.support().1 > hi => match dist.truncated(lo, hi) {
+                Ok(d) => d,
+                Err(m) => {
+                    msgs.push(format!("{kind} distribution cannot be truncated to {}: {m}", range_words(range, unit)));
+                    dist
+                }
+            },
+            _ => dist,
+        };
         let path = self.key_path(key);
         let target = ParamRef::resolve(&path).filter(|r| r.id() == id);
         if msgs.is_empty() && target.is_none() {
