@@ -327,7 +327,7 @@ fn documented_ranges_are_enforced_at_their_bounds() {
                     let located = e.problems().iter().any(|p| {
                         p.column.as_deref() == Some(key_path.as_str())
                             && p.row.is_some()
-                            && d.range_text.as_ref().map_or(true, |r| p.message.contains(r.as_str()))
+                            && d.range_text.as_ref().is_none_or(|r| p.message.contains(r.as_str()))
                     });
                     if !located {
                         wrong.push(format!(

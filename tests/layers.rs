@@ -173,9 +173,9 @@ fn paths_after(code: &str, root: &str) -> Vec<Vec<String>> {
             .map(|s| s.chars().take_while(|c| c.is_ascii_alphanumeric() || *c == '_').collect::<String>())
             .take_while(|s| !s.is_empty())
             .collect();
-        if rest.starts_with('{') {
+        if let Some(group) = rest.strip_prefix('{') {
             // `crate::{a, b::c}`: one path per item.
-            let inner: String = rest[1..].chars().take_while(|c| *c != '}').collect();
+            let inner: String = group.chars().take_while(|c| *c != '}').collect();
             for item in inner.split(',') {
                 let first: String = item.trim().chars().take_while(|c| c.is_ascii_alphanumeric() || *c == '_').collect();
                 if !first.is_empty() {

@@ -28,10 +28,13 @@ pub enum BeyondRecord {
     Error,
 }
 
+/// One year of a record: rainfall and PET, mm/yr (`None`: the long-term mean).
+pub type RecordYear = (Option<f64>, Option<f64>);
+
 /// Annual climate records per catchment.
 #[derive(Debug, Clone, Default)]
 pub struct ClimateTable {
-    series: HashMap<String, (i32, Vec<(Option<f64>, Option<f64>)>)>,
+    series: HashMap<String, (i32, Vec<RecordYear>)>,
 }
 
 impl ClimateTable {
@@ -65,7 +68,7 @@ impl ClimateTable {
     /// keeping each catchment's rainfall; years between records stay at the means.
     pub fn with_pet(self, records: &[(String, i32, f64)]) -> ClimateTable {
         use std::collections::BTreeMap;
-        let mut by_id: HashMap<String, BTreeMap<i32, (Option<f64>, Option<f64>)>> = HashMap::new();
+        let mut by_id: HashMap<String, BTreeMap<i32, RecordYear>> = HashMap::new();
         for (id, (first, vals)) in self.series {
             let m = by_id.entry(id).or_default();
             for (t, v) in vals.into_iter().enumerate() {
@@ -88,7 +91,7 @@ impl ClimateTable {
     }
 
     /// Builds a table from in-memory records `(catchment, first year, [(rain, pet)])`.
-    pub fn from_series(series: Vec<(String, i32, Vec<(Option<f64>, Option<f64>)>)>) -> ClimateTable {
+    pub fn from_series(series: Vec<(String, i32, Vec<RecordYear>)>) -> ClimateTable {
         ClimateTable { series: series.into_iter().map(|(id, f, v)| (id, (f, v))).collect() }
     }
 }
@@ -240,7 +243,7 @@ fn check_years(path: &Path, id: &str, list: &[Record]) -> Vec<Problem> {
                 );
             }
         }
-        if last.map_or(true, |p| r.year > p.year) {
+        if last.is_none_or(|p| r.year > p.year) {
             last = Some(r);
         }
     }

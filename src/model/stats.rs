@@ -144,8 +144,9 @@ pub fn src(xs: &[Vec<f64>], y: &[f64]) -> Option<Vec<Option<f64>>> {
         for r in 0..p {
             if r != col {
                 let f = a[r][col] / a[col][col];
-                for c in col..=p {
-                    a[r][c] -= f * a[col][c];
+                let pivot_row = a[col].clone();
+                for (x, &pv) in a[r][col..=p].iter_mut().zip(&pivot_row[col..=p]) {
+                    *x -= f * pv;
                 }
             }
         }

@@ -245,7 +245,8 @@ impl Figure for CoverChart {
         let mut ax = Axes::new(x.clone(), 0.0..top, "Year", "Infested area (ha)");
         ax.x_decimals = Some(0);
         ax.x_grouping = false;
-        let layers: [(&str, RGBColor, fn(&[f64; 3]) -> f64); 3] = [
+        type Layer = (&'static str, RGBColor, fn(&[f64; 3]) -> f64);
+        let layers: [Layer; 3] = [
             ("Scattered", palette::SCATTERED, |c| c[0] + c[1] + c[2]),
             ("Medium", palette::MEDIUM, |c| c[1] + c[2]),
             ("Dense", palette::DENSE, |c| c[2]),

@@ -116,7 +116,7 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
     }
 
     // 2. Budyko space: moving-window means of each catchment's own years.
-    let n_years = (d.info.horizon_years + 1) as usize;
+    let n_years = d.info.horizon_years + 1;
     let window = BUDYKO_WINDOW_YR.min(n_years).max(1);
     let mut cands: Vec<Trajectory> = Vec::new();
     for (id, name, _) in d.catchments.iter().filter(|c| d.budyko.contains(&c.0)) {

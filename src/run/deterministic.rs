@@ -309,8 +309,7 @@ fn delay_sums(s: &Scenario, climates: &[Vec<crate::model::ClimateYear>], referen
                 final_infested_ha: Default::default(),
             };
             for (i, c) in s.catchments.iter().enumerate() {
-                for t in 0..n_years {
-                    let y = &run.years[i][t];
+                for (t, y) in run.years[i].iter().enumerate().take(n_years) {
                     row.cost[t].add(run.control[i][t].cost());
                     row.saved[t].add(y.yield_m3 - reference[i][t]);
                     row.lost.add(dilution::volume_m3(y.baseline_yield_mm - y.yield_mm, c.area_ha));

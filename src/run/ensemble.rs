@@ -456,7 +456,9 @@ pub fn run_ensemble(
     }
     // Control strategies: member by member over the whole basin.
     for (si, st) in s.strategies.iter().enumerate() {
-        let per_member: Vec<(Vec<Vec<Vec<f64>>>, Vec<Vec<f64>>)> = (0..m_count)
+        // Per member: values[catchment][variable][year] and yield volumes[catchment][year], m³.
+        type MemberRun = (Vec<Vec<Vec<f64>>>, Vec<Vec<f64>>);
+        let per_member: Vec<MemberRun> = (0..m_count)
             .into_par_iter()
             .map(|m| {
                 let draws: Vec<Vec<Vec<f64>>> = s.catchments.iter().map(|c| draws_for_member(s, cfg, &shared, &c.id, m)).collect();
