@@ -59,6 +59,7 @@ const MAX_AREA_HA: f64 = 1e9;
 
 /// Reads and validates the catchment table. Returns the catchments and the
 /// spreadsheet row of each; on failure every problem found in the file.
+// Over 100 lines on purpose: one pass over the rows checks every column of a row and collects every problem in file order; splitting it would pass the row state through many small functions.
 pub fn read_catchments(path: &Path, contaminants: &[Contaminant]) -> Result<(Vec<Catchment>, Vec<usize>), Vec<Problem>> {
     let table = read_table(path)?;
     let point_cols: Vec<String> = contaminants.iter().map(|c| format!("{}{POINT_SUFFIX}", c.name)).collect();

@@ -473,6 +473,7 @@ impl<'a> Section<'a> {
     /// with an optional `per = "catchment"` (default `"basin"`: one draw per member
     /// shared by all catchments). Returns the number, or the distribution's central
     /// value, and records the distribution with the parameter its key path resolves to.
+    // Over 100 lines on purpose: every distribution kind's keys read, validated and bounded in one place, so a distribution's problems are reported together at its key.
     fn param(&self, key: &str, id: ParamId, default: Option<f64>) -> f64 {
         let spec = id.spec();
         let (range, unit) = (spec.range, spec.message_unit());

@@ -97,6 +97,7 @@ struct Slot {
 /// `climates[i][t]` is catchment `i`'s climate in year `start_year + t`; all series
 /// must have the same length. `params` holds one set shared by all catchments, or
 /// one per catchment (ensemble members with per-catchment draws).
+// Over 100 lines on purpose: one year of the basin in order (follow-up, treatment by the rule's priority, spread, water), where the budget couples every catchment; the steps share the per-catchment state.
 pub fn project_basin(
     catchments: &[Catchment],
     climates: &[Vec<ClimateYear>],

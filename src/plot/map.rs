@@ -294,6 +294,7 @@ pub fn scale_bar_km(max_km: f64) -> f64 {
 }
 
 impl Figure for ChoroplethMap {
+    // Over 100 lines on purpose: the map's layers drawn back to front (polygons, arrows, labels, legend, scale bar, notes) on one drawing area; each layer is short and needs the same projection and pixel frame.
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> Result<(), String> {
         root.fill(&WHITE).map_err(err)?;
         let (w, h) = root.dim_in_pixel();

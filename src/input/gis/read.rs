@@ -33,6 +33,7 @@ pub fn read_boundaries(path: &Path, id_property: &str, catchment_ids: &[&str]) -
 }
 
 /// Parses GeoJSON bytes as [`read_boundaries`] does.
+// Over 100 lines on purpose: one pass over the features, each checked in the order a reader fixes them (JSON shape, geometry, rings, ids), collecting every problem with its feature and line.
 pub(crate) fn parse_boundaries(path: &Path, bytes: &[u8], id_property: &str, catchment_ids: &[&str]) -> Result<Boundaries, Vec<Problem>> {
     let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
     let text = std::str::from_utf8(bytes).map_err(|e| {
