@@ -296,3 +296,23 @@ fn boundaries_in_and_results_out_and_bad_geojson_exits_2() {
     let t = text(&o);
     assert!(t.contains("catchments.geojson") && t.contains("feature 1"), "{t}");
 }
+
+#[test]
+fn a_closed_output_pipe_exits_quietly_with_zero() {
+    // Regression: `yieldshift check ... | true` panicked ("failed printing to stdout")
+    // with exit code 101. The reader closes the pipe before the program writes.
+    let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data/scenario.toml");
+    for args in [vec!["check", demo.to_str().unwrap()], vec!["curve", "--rain-mm", "1400", "--pet-mm", "800"]] {
+        let mut child = Command::new(env!("CARGO_BIN_EXE_yieldshift"))
+            .args(&args)
+            .stdout(std::process::Stdio::piped())
+            .stderr(std::process::Stdio::piped())
+            .spawn()
+            .unwrap();
+        drop(child.stdout.take());
+        let out = child.wait_with_output().unwrap();
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(0), "{args:?}: {stderr}");
+        assert!(!stderr.contains("panicked") && !stderr.contains("error"), "{args:?}: {stderr}");
+    }
+}
