@@ -8,6 +8,7 @@ fn main() {
     let params = ModelParams {
         curves: CoverCurves::ZHANG_DEFAULT,
         forest_pet_factor: 1.15,
+        interception: yieldshift::model::interception::CanopyInterception::DEFAULT,
         invasion: InvasionParams {
             spread_rate_per_yr: 0.06,
             seed_bearing_age_yr: 8,

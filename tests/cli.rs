@@ -183,11 +183,23 @@ fn unknown_scenario_key_is_reported_with_a_suggestion() {
 #[test]
 fn curve_json_and_table() {
     // Source: Zhang et al. (2001) eq. 8 at E0 = P: ET/P = (1 + w)/(2 + w) = 0.75 for w = 2.
-    let o = run(&["curve", "--rain-mm", "1000", "--pet-mm", "1000", "--canopy-fraction", "1", "--json"]);
+    let o = run(&["curve", "--rain-mm", "1000", "--pet-mm", "1000", "--canopy-fraction", "1", "--interception-fraction", "0", "--json"]);
     assert!(o.status.success());
     let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert!((v["et_mm"].as_f64().unwrap() - 750.0).abs() < 1e-9);
     assert!((v["yield_mm"].as_f64().unwrap() - 250.0).abs() < 1e-9);
+    // With the default canopy interception (c = 0.25, β = 0.6; src/model/interception.rs):
+    // I = 250 mm; the rest, 750 mm, meets E0 − β·I = 850 mm in Zhang's curve with w = 2.
+    let o = run(&["curve", "--rain-mm", "1000", "--pet-mm", "1000", "--canopy-fraction", "1", "--json"]);
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let (p, e0): (f64, f64) = (750.0, 850.0);
+    let zhang = p * (1.0 + 2.0 * e0 / p) / (1.0 + 2.0 * e0 / p + p / e0);
+    assert!((v["et_mm"].as_f64().unwrap() - (250.0 + zhang)).abs() < 1e-9, "{v}");
+    assert!((v["interception_forest_mm"].as_f64().unwrap() - 250.0).abs() < 1e-9);
+    // Regression: no rain has no evaporative ratio; refused, not ET/P = 0.
+    let o = run(&["curve", "--rain-mm", "0", "--pet-mm", "800"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(text(&o).contains("undefined without rain"), "{}", text(&o));
     let o = run(&["curve", "--rain-mm", "1000", "--pet-mm", "1000", "--method", "fu", "--omega-grass", "2"]);
     assert!(o.status.success());
     // Source: Fu (1981): ω = 2, φ = 1 → ET/P = 2 − √2 = 0.5858.

@@ -350,7 +350,7 @@ fn every_varying_parameter_is_applied_by_its_typed_id_and_nothing_else_changes()
     for method in ["zhang", "fu"] {
         let tmp = tempfile::tempdir().unwrap();
         let s = every_varying_key(tmp.path(), method);
-        assert_eq!(s.uncertain.len(), 19, "{:#?}", s.uncertain.iter().map(|u| &u.param.path).collect::<Vec<_>>());
+        assert_eq!(s.uncertain.len(), 21, "{:#?}", s.uncertain.iter().map(|u| &u.param.path).collect::<Vec<_>>());
         let fresh =
             || MemberSetup { params: s.params.clone(), strategies: s.strategies.clone(), rain_scale: s.rain_scale, pet_scale: s.pet_scale };
         let before = format!("{:?}", fresh());

@@ -12,6 +12,7 @@ use proptest::prelude::*;
 use yieldshift::model::budyko::{mixed_et_mm, Budyko1974, CoverCurves, Fu1981, WaterBalance, Zhang2001};
 use yieldshift::model::cover::{new_infestation_ha, Cohorts};
 use yieldshift::model::dilution::{concentration_mg_per_l, load_kg_per_yr, volume_m3, ConcentrationFlag, M3_PER_MM_HA};
+use yieldshift::model::interception::CanopyInterception;
 use yieldshift::model::{project_catchment, Catchment, ClassAreas, ClimateYear, ClosureCurve, Contaminant, InvasionParams, ModelParams};
 
 /// Every curve of `model::budyko`, each with a parameter in its documented range
@@ -133,10 +134,12 @@ fn catchment() -> impl Strategy<Value = Catchment> {
 }
 
 fn params(curves: impl Strategy<Value = CoverCurves>, factor: std::ops::RangeInclusive<f64>) -> impl Strategy<Value = ModelParams> {
-    (curves, factor, invasion(), proptest::collection::vec((0.0f64..=1e4, 0.0f64..=1e4), 2), 0.0f64..=1000.0).prop_map(
-        |(curves, forest_pet_factor, invasion, exports, min_runoff_mm)| ModelParams {
+    (curves, factor, invasion(), proptest::collection::vec((0.0f64..=1e4, 0.0f64..=1e4), 2), 0.0f64..=1000.0, (0.0f64..=0.6, 0.0f64..=1.0))
+        .prop_map(|(curves, forest_pet_factor, invasion, exports, min_runoff_mm, (fraction, share))| ModelParams {
             curves,
             forest_pet_factor,
+            // Any allowed interception (the ranges are the constructor's).
+            interception: CanopyInterception::new(fraction, share).unwrap_or(CanopyInterception::DEFAULT),
             invasion,
             contaminants: exports
                 .iter()
@@ -149,8 +152,7 @@ fn params(curves: impl Strategy<Value = CoverCurves>, factor: std::ops::RangeInc
                 })
                 .collect(),
             min_runoff_mm,
-        },
-    )
+        })
 }
 
 /// A climate record in the climate-table ranges (rain 0–30 000, PET 0–6 000 mm/yr).

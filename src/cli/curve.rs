@@ -1,6 +1,7 @@
 //! `yieldshift curve`: one-point evaluation of the water-balance curves.
 
-use yieldshift::model::budyko::{mixed_et_mm, CoverCurves};
+use yieldshift::model::budyko::CoverCurves;
+use yieldshift::model::interception::{mixed_et_mm, CanopyInterception};
 use yieldshift::Error;
 use yieldshift::Problem;
 
@@ -34,6 +35,12 @@ pub struct CurveArgs {
     /// Fu's ω for grass.
     #[arg(long, default_value_t = 2.16)]
     pub omega_grass: f64,
+    /// Annual rainfall interception loss of a closed conifer canopy, fraction of rain (0–0.6).
+    #[arg(long, default_value_t = CanopyInterception::DEFAULT_FRACTION)]
+    pub interception_fraction: f64,
+    /// Share of the interception loss taken from the transpiration demand (0–1).
+    #[arg(long, default_value_t = CanopyInterception::DEFAULT_DEMAND_SHARE)]
+    pub interception_demand_share: f64,
     /// Print one JSON object instead of a table.
     #[arg(long)]
     pub json: bool,
@@ -57,7 +64,14 @@ fn check_range(problems: &mut Vec<Problem>, name: &str, v: f64, lo: f64, hi: f64
 /// Runs `yieldshift curve`.
 pub fn run(a: &CurveArgs) -> anyhow::Result<()> {
     let mut p = Vec::new();
-    check_range(&mut p, "--rain-mm", a.rain_mm, 0.0, 30_000.0);
+    if !(a.rain_mm > 0.0) {
+        p.push(
+            Problem::new(format!("{} mm/yr: the evaporative ratio is undefined without rain; give more than 0", a.rain_mm))
+                .column("--rain-mm"),
+        );
+    } else {
+        check_range(&mut p, "--rain-mm", a.rain_mm, 0.0, 30_000.0);
+    }
     check_range(&mut p, "--pet-mm", a.pet_mm, 0.0, 6_000.0);
     if let Some(v) = a.pet_forest_mm {
         check_range(&mut p, "--pet-forest-mm", v, 0.0, 6_000.0);
@@ -73,17 +87,22 @@ pub fn run(a: &CurveArgs) -> anyhow::Result<()> {
             check_range(&mut p, "--omega-grass", a.omega_grass, 1.01, 20.0);
         }
     }
+    check_range(&mut p, "--interception-fraction", a.interception_fraction, 0.0, CanopyInterception::MAX_FRACTION);
+    check_range(&mut p, "--interception-demand-share", a.interception_demand_share, 0.0, 1.0);
     if !p.is_empty() {
         return Err(Error::Invalid(p).into());
     }
+    let interception = CanopyInterception::new(a.interception_fraction, a.interception_demand_share)
+        .map_err(|e| Error::Invalid(vec![Problem::new(e.to_string()).column("--interception-fraction")]))?;
     let curves = match a.method {
         Method::Zhang => CoverCurves::Zhang { w_forest: a.w_forest, w_grass: a.w_grass },
         Method::Fu => CoverCurves::Fu { omega_forest: a.omega_forest, omega_grass: a.omega_grass },
     };
     let pet_f = a.pet_forest_mm.unwrap_or(a.pet_mm);
-    let et_forest = curves.forest_et_mm(a.rain_mm, pet_f);
+    let et_forest = interception.forest_et_mm(&curves, a.rain_mm, pet_f);
+    let intercepted = interception.interception_mm(a.rain_mm);
     let et_grass = curves.grass_et_mm(a.rain_mm, a.pet_mm);
-    let et = mixed_et_mm(&curves, a.rain_mm, pet_f, a.pet_mm, a.canopy_fraction);
+    let et = mixed_et_mm(&curves, &interception, a.rain_mm, pet_f, a.pet_mm, a.canopy_fraction);
     let q = (a.rain_mm - et).max(0.0);
     let ratio = if a.rain_mm > 0.0 { et / a.rain_mm } else { 0.0 };
     let aridity = if a.rain_mm > 0.0 { a.pet_mm / a.rain_mm } else { f64::INFINITY };
@@ -95,6 +114,9 @@ pub fn run(a: &CurveArgs) -> anyhow::Result<()> {
             "pet_forest_mm": pet_f,
             "canopy_fraction": a.canopy_fraction,
             "aridity_index": if aridity.is_finite() { Some(aridity) } else { None },
+            "interception_fraction": a.interception_fraction,
+            "interception_demand_share": a.interception_demand_share,
+            "interception_forest_mm": intercepted,
             "et_forest_mm": et_forest,
             "et_grass_mm": et_grass,
             "et_mm": et,
@@ -103,12 +125,13 @@ pub fn run(a: &CurveArgs) -> anyhow::Result<()> {
         });
         say!("{v}")?;
     } else {
-        let rows: [(&str, String); 10] = [
+        let rows: [(&str, String); 11] = [
             ("method", curves.method_name().to_string()),
             ("rain_mm", format!("{:.1}", a.rain_mm)),
             ("pet_mm (grass)", format!("{:.1}", a.pet_mm)),
             ("pet_mm (forest)", format!("{:.1}", pet_f)),
             ("canopy_fraction", format!("{:.3}", a.canopy_fraction)),
+            ("interception (forest)", format!("{:.1}", intercepted)),
             ("et_mm forest", format!("{:.1}", et_forest)),
             ("et_mm grass", format!("{:.1}", et_grass)),
             ("et_mm", format!("{:.1}", et)),
@@ -116,7 +139,7 @@ pub fn run(a: &CurveArgs) -> anyhow::Result<()> {
             ("ET/P", format!("{:.4}", ratio)),
         ];
         for (k, v) in rows {
-            say!("{k:<18} {v:>10}")?;
+            say!("{k:<21} {v:>10}")?;
         }
     }
     Ok(())

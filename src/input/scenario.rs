@@ -15,8 +15,10 @@ use crate::model::budyko::CoverCurves;
 use crate::model::catchment::{Catchment, ClimateYear, Contaminant, ModelParams};
 use crate::model::closure::ClosureCurve;
 use crate::model::control::{Effort, PriorityRule, Strategy, TreatmentMethod};
+use crate::model::cover::spread_rate_for_areal_growth;
 use crate::model::cover::DensityClass;
 use crate::model::cover::InvasionParams;
+use crate::model::interception::CanopyInterception;
 use crate::model::network::{Network, NetworkError};
 use crate::model::params::ParamId;
 use crate::model::uncertainty::Sampling;
@@ -37,6 +39,8 @@ pub struct Scenario {
     pub catchments_path: PathBuf,
     /// The climate table's path, if any.
     pub climate_path: Option<PathBuf>,
+    /// The stand table's path (dated cohorts), if any.
+    pub stands_path: Option<PathBuf>,
     /// Model parameters.
     pub params: ModelParams,
     /// Catchments in table order.
@@ -175,7 +179,30 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
             (Vec::new(), Vec::new())
         }
     };
+    if let (Some(sp), false) = (&raw.stands_path, catchments.is_empty()) {
+        match crate::input::stands::read_stands(sp, &catchments, raw.start_year) {
+            Ok(st) => crate::input::stands::apply_stands(&mut catchments, st, &raw.params.invasion),
+            Err(p) => problems.extend(p),
+        }
+    }
     let mut warnings = Vec::new();
+    if raw.params.interception.fraction_of_rain() > 0.0 {
+        let given_forest_pet = catchments.iter().filter(|c| c.pet_forest_mm.is_some()).count();
+        if raw.params.forest_pet_factor != 1.0 || given_forest_pet > 0 {
+            warnings.push(format!(
+                "{}: canopy interception (interception_fraction = {}) already adds the conifer canopy's extra water use; \
+                 a forest PET above grass PET ({}) counts part of it twice. Set forest_pet_factor = 1 and drop pet_forest_mm, \
+                 or set interception_fraction = 0",
+                path.display(),
+                raw.params.interception.fraction_of_rain(),
+                if given_forest_pet > 0 {
+                    format!("pet_forest_mm in {given_forest_pet} catchments")
+                } else {
+                    format!("forest_pet_factor = {}", raw.params.forest_pet_factor)
+                }
+            ));
+        }
+    }
     let mut gis = None;
     if let (Some(g), false) = (&raw.gis, catchments.is_empty()) {
         let ids: Vec<&str> = catchments.iter().map(|c| c.id.as_str()).collect();
@@ -318,6 +345,7 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
         start_year: raw.start_year,
         horizon_years: raw.horizon_years,
         catchments_path: raw.catchments_path,
+        stands_path: raw.stands_path,
         climate_path: raw.climate_path,
         params: raw.params,
         catchments,
@@ -343,6 +371,7 @@ struct RawScenario {
     start_year: i32,
     horizon_years: usize,
     catchments_path: PathBuf,
+    stands_path: Option<PathBuf>,
     climate_path: Option<PathBuf>,
     beyond_record: BeyondRecord,
     params: ModelParams,
@@ -496,6 +525,7 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
     let start_year = root.whole(ParamId::StartYear) as i32;
     let horizon_years = root.whole(ParamId::HorizonYears) as usize;
     let catchments_path = base.join(root.string("catchments", None).unwrap_or_default());
+    let stands_path = root.opt_string("stands").map(|t| base.join(t));
 
     let (climate_path, beyond_record, (rain_scale, pet_scale), weather) = match root.section("climate") {
         Some(s) => {
@@ -546,7 +576,7 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
         e
     });
 
-    let (curves, forest_pet_factor) = read_hydrology(root.section("hydrology"));
+    let (curves, forest_pet_factor, interception) = read_hydrology(root.section("hydrology"));
     let invasion = read_invasion(root.section("invasion"), root.section("canopy_closure"));
     let min_runoff_mm = match root.section("dilution") {
         Some(s) => {
@@ -574,9 +604,10 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
         start_year,
         horizon_years,
         catchments_path,
+        stands_path,
         climate_path,
         beyond_record,
-        params: ModelParams { curves, forest_pet_factor, invasion, contaminants, min_runoff_mm },
+        params: ModelParams { curves, forest_pet_factor, interception, invasion, contaminants, min_runoff_mm },
         calibration,
         economics,
         strategies,
@@ -623,10 +654,14 @@ fn read_ensemble(s: &Section<'_>) -> EnsembleConfig {
     EnsembleConfig { members, sampling, seed, climate, write_members }
 }
 
-fn read_hydrology(s: Option<Section<'_>>) -> (CoverCurves, f64) {
+fn read_hydrology(s: Option<Section<'_>>) -> (CoverCurves, f64, CanopyInterception) {
+    let default_interception = || {
+        CanopyInterception::new(default_of(ParamId::InterceptionFraction), default_of(ParamId::InterceptionDemandShare))
+            .unwrap_or(CanopyInterception::DEFAULT)
+    };
     let Some(s) = s else {
         let curves = CoverCurves::Zhang { w_forest: default_of(ParamId::WForest), w_grass: default_of(ParamId::WGrass) };
-        return (curves, default_of(ParamId::ForestPetFactor));
+        return (curves, default_of(ParamId::ForestPetFactor), default_interception());
     };
     let method = s.choice("method", "zhang", &["zhang", "fu"]);
     let w_forest = s.number(ParamId::WForest);
@@ -634,9 +669,13 @@ fn read_hydrology(s: Option<Section<'_>>) -> (CoverCurves, f64) {
     let omega_forest = s.number(ParamId::OmegaForest);
     let omega_grass = s.number(ParamId::OmegaGrass);
     let factor = s.number(ParamId::ForestPetFactor);
+    let fraction = s.number(ParamId::InterceptionFraction);
+    let share = s.number(ParamId::InterceptionDemandShare);
     s.finish();
     let curves = if method == "fu" { CoverCurves::Fu { omega_forest, omega_grass } } else { CoverCurves::Zhang { w_forest, w_grass } };
-    (curves, factor)
+    // The table's ranges are the constructor's; a value already refused falls back to the default.
+    let interception = CanopyInterception::new(fraction, share).unwrap_or_else(|_| default_interception());
+    (curves, factor, interception)
 }
 
 fn read_invasion(inv: Option<Section<'_>>, closure: Option<Section<'_>>) -> InvasionParams {
@@ -655,6 +694,32 @@ fn read_invasion(inv: Option<Section<'_>>, closure: Option<Section<'_>>) -> Inva
             if dense <= medium {
                 s.push("dense_age_yr", format!("must be greater than medium_age_yr ({medium})"));
             }
+            let spread = match s.opt_number(ParamId::ArealGrowth) {
+                None => spread,
+                Some(_) if s.has("spread_rate_per_yr") => {
+                    s.push(
+                        "areal_growth_rate_per_yr",
+                        "give either areal_growth_rate_per_yr (what is observed) or spread_rate_per_yr (r), not both",
+                    );
+                    spread
+                }
+                Some(g) => match spread_rate_for_areal_growth(g, seed_age) {
+                    Ok(r) if ParamId::SpreadRate.range().contains(r) => r,
+                    Ok(r) => {
+                        s.push(
+                            "areal_growth_rate_per_yr",
+                            format!(
+                                "{g} per year with seed_bearing_age_yr = {seed_age} needs a spread rate r = {r:.3} per seed-bearing hectare, above the allowed 1"
+                            ),
+                        );
+                        spread
+                    }
+                    Err(e) => {
+                        s.push("areal_growth_rate_per_yr", e.to_string());
+                        spread
+                    }
+                },
+            };
             s.finish();
             (spread, seed_age, seed_rain, medium, dense, span)
         }

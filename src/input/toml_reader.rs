@@ -273,7 +273,7 @@ fn strip_indices(path: &str) -> String {
 
 /// The allowed values of a range in words: `0 to 1 fraction`, `0 or more`,
 /// `more than 0 and at most 1`.
-fn range_words(r: Range, unit: &str) -> String {
+pub fn range_words(r: Range, unit: &str) -> String {
     let (lo, hi) = r.bounds();
     match (r.min, r.max) {
         (Bound::Included(_), Bound::Included(_) | Bound::Unbounded) => range_text(lo, hi, unit),

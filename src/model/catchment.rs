@@ -35,6 +35,7 @@
 
 use super::budyko::CoverCurves;
 use super::cover::{ClassAreas, Cohorts, InvasionParams};
+use super::interception::CanopyInterception;
 
 /// One catchment, with its starting cover.
 #[derive(Debug, Clone, PartialEq)]
@@ -101,6 +102,9 @@ pub struct ModelParams {
     pub curves: CoverCurves,
     /// Forest PET as a multiple of grass PET where a catchment gives no forest PET.
     pub forest_pet_factor: f64,
+    /// Rainfall interception by a closed conifer canopy, added to the forest curve
+    /// ([`super::interception`]).
+    pub interception: CanopyInterception,
     /// Spread, density and closure.
     pub invasion: InvasionParams,
     /// Contaminants tracked.

@@ -81,8 +81,9 @@
 //! Hyndman, R. J., & Fan, Y. (1996). Sample quantiles in statistical packages.
 //! *The American Statistician*, 50(4), 361–365.
 
-use super::budyko::{mixed_et_mm, CoverCurves};
+use super::budyko::CoverCurves;
 use super::catchment::{Catchment, ClimateYear, ModelParams};
+use super::interception::{mixed_et_mm, CanopyInterception};
 use super::params::ParamId;
 use super::projection::starting_canopy_fraction;
 use super::roots::{brent_minimum, brent_root, RootError};
@@ -316,6 +317,7 @@ pub struct GaugeRecord {
     curves: CoverCurves,
     cover: Cover,
     canopy_fraction: f64,
+    interception: CanopyInterception,
     years: Vec<GaugeYear>,
 }
 
@@ -438,7 +440,7 @@ impl GaugeRecord {
         if years.len() < MIN_YEARS {
             return Err(FitError::TooFewYears { available: years.len(), needed: MIN_YEARS, window_yr: 1 });
         }
-        Ok(GaugeRecord { id: None, curves, cover, canopy_fraction, years })
+        Ok(GaugeRecord { id: None, curves, cover, canopy_fraction, interception: CanopyInterception::NONE, years })
     }
 
     /// The record of catchment `c` under `params`: its curves (with any earlier
@@ -460,7 +462,15 @@ impl GaugeRecord {
                 observed_yield_mm: q,
             })
             .collect();
-        Ok(GaugeRecord::new(*c.curves(params), cover, starting_canopy_fraction(c, params), years)?.with_id(&c.id))
+        Ok(GaugeRecord::new(*c.curves(params), cover, starting_canopy_fraction(c, params), years)?
+            .with_id(&c.id)
+            .with_interception(params.interception))
+    }
+
+    /// The same record with canopy interception on its forest share (a record made
+    /// by [`Self::new`] has none; [`Self::for_catchment`] takes the scenario's).
+    pub fn with_interception(self, interception: CanopyInterception) -> GaugeRecord {
+        GaugeRecord { interception, ..self }
     }
 
     /// The same record labelled with catchment id `id`, which names the bootstrap's
@@ -524,7 +534,7 @@ impl GaugeRecord {
     }
 
     fn yield_with(&self, curves: &CoverCurves, y: &GaugeYear) -> f64 {
-        let et = mixed_et_mm(curves, y.rain_mm, y.pet_forest_mm, y.pet_mm, self.canopy_fraction);
+        let et = mixed_et_mm(curves, &self.interception, y.rain_mm, y.pet_forest_mm, y.pet_mm, self.canopy_fraction);
         (y.rain_mm - et).max(0.0)
     }
 
@@ -553,7 +563,7 @@ impl GaugeRecord {
         };
         let rain = 1000.0;
         let pet = phi.max(0.0) * rain;
-        mixed_et_mm(&self.curves_with(value), rain, pet * ratio, pet, self.canopy_fraction) / rain
+        mixed_et_mm(&self.curves_with(value), &self.interception, rain, pet * ratio, pet, self.canopy_fraction) / rain
     }
 
     fn check_sensitivity(&self) -> Result<(), FitError> {
@@ -748,7 +758,7 @@ mod tests {
             .map(|t| {
                 let rain_mm = 900.0 + 90.0 * ((t * 7) % 11) as f64;
                 let pet_mm = 850.0 - 4.0 * t as f64;
-                let et = mixed_et_mm(&truth, rain_mm, pet_mm * 1.1, pet_mm, f);
+                let et = mixed_et_mm(&truth, &CanopyInterception::NONE, rain_mm, pet_mm * 1.1, pet_mm, f);
                 GaugeYear { year: 2000 + t, rain_mm, pet_mm, pet_forest_mm: pet_mm * 1.1, observed_yield_mm: rain_mm - et }
             })
             .collect();
@@ -799,7 +809,7 @@ mod tests {
             .map(|t| {
                 let rain_mm = 900.0 + 90.0 * ((t * 7) % 11) as f64;
                 let pet_mm = 850.0 - 4.0 * t as f64;
-                let et = mixed_et_mm(&truth, rain_mm, pet_mm * 1.1, pet_mm, 0.2);
+                let et = mixed_et_mm(&truth, &CanopyInterception::NONE, rain_mm, pet_mm * 1.1, pet_mm, 0.2);
                 let wiggle_mm = 40.0 * (((t * 5) % 7) as f64 - 3.0) / 3.0;
                 GaugeYear { year: 2000 + t, rain_mm, pet_mm, pet_forest_mm: pet_mm * 1.1, observed_yield_mm: rain_mm - et + wiggle_mm }
             })

@@ -68,7 +68,7 @@ impl LeanYears {
 #[inline]
 fn et_pair(curves: &CoverCurves, c: &Catchment, p: &ModelParams, cl: ClimateYear) -> (f64, f64) {
     let pet_forest = c.forest_pet_mm(cl.pet_mm, p.forest_pet_factor);
-    (curves.forest_et_mm(cl.rain_mm, pet_forest), curves.grass_et_mm(cl.rain_mm, cl.pet_mm))
+    (p.interception.forest_et_mm(curves, cl.rain_mm, pet_forest), curves.grass_et_mm(cl.rain_mm, cl.pet_mm))
 }
 
 /// Projects one catchment with no control, filling `out`.

@@ -170,8 +170,14 @@ pub enum ParamId {
     OmegaGrass,
     /// `hydrology.forest_pet_factor`.
     ForestPetFactor,
+    /// `hydrology.interception_fraction`.
+    InterceptionFraction,
+    /// `hydrology.interception_demand_share`.
+    InterceptionDemandShare,
     /// `invasion.spread_rate_per_yr`.
     SpreadRate,
+    /// `invasion.areal_growth_rate_per_yr`.
+    ArealGrowth,
     /// `invasion.seed_bearing_age_yr`.
     SeedBearingAge,
     /// `invasion.seed_rain_ha_per_yr`.
@@ -327,7 +333,7 @@ impl ParamRef {
 }
 
 /// Every row, in [`ParamId`] order.
-pub static PARAMS: [ParamSpec; 50] = TABLE;
+pub static PARAMS: [ParamSpec; 53] = TABLE;
 
 /// Zhang's `w`, for forest and for grass (in `[hydrology]` and `[[calibration]]`).
 const W_RANGE: Range = Range::closed(0.01, 20.0);
@@ -360,7 +366,7 @@ const FIXED: bool = false;
 
 // One row per line, as a table reads.
 #[rustfmt::skip]
-const TABLE: [ParamSpec; 50] = [
+const TABLE: [ParamSpec; 53] = [
     row(P::StartYear, TOP, false, "start_year", Whole, REQ, "year", Range::closed(1800.0, 2500.0), FIXED, "year 0: the current cover"),
     row(P::HorizonYears, TOP, false, "horizon_years", Whole, REQ, "years", Range::closed(1.0, 300.0), FIXED, "years projected after the start year"),
     row(P::RainScale, "climate", false, "rain_scale", NUM, D(1.0), "–", Range::closed(0.1, 3.0), VARY, "multiplier on every year's rainfall"),
@@ -374,7 +380,10 @@ const TABLE: [ParamSpec; 50] = [
     row(P::OmegaForest, "hydrology", false, "omega_forest", NUM, D(2.97), "–", OMEGA_RANGE, VARY, "Fu's omega for forest"),
     row(P::OmegaGrass, "hydrology", false, "omega_grass", NUM, D(2.16), "–", OMEGA_RANGE, VARY, "Fu's omega for grass"),
     row(P::ForestPetFactor, "hydrology", false, "forest_pet_factor", NUM, D(1.0), "–", Range::closed(0.5, 2.0), VARY, "forest PET as a multiple of grass PET"),
-    row(P::SpreadRate, "invasion", false, "spread_rate_per_yr", NUM, D(0.06), "1/yr", Range::closed(0.0, 1.0), VARY, "compounding spread rate from seed-bearing area"),
+    row(P::InterceptionFraction, "hydrology", false, "interception_fraction", NUM, D(0.25), "fraction of rain", Range::closed(0.0, 0.6), VARY, "annual rainfall interception loss of a closed conifer canopy"),
+    row(P::InterceptionDemandShare, "hydrology", false, "interception_demand_share", NUM, D(0.6), "fraction", Range::closed(0.0, 1.0), VARY, "share of interception loss taken from the demand that drives transpiration"),
+    row(P::SpreadRate, "invasion", false, "spread_rate_per_yr", NUM, D(0.06), "1/yr", Range::closed(0.0, 1.0), VARY, "compounding spread rate r from seed-bearing area"),
+    row(P::ArealGrowth, "invasion", false, "areal_growth_rate_per_yr", NUM, NONE, "1/yr", Range { min: Bound::Excluded(0.0), max: Bound::Included(0.5) }, FIXED, "observed areal growth of an unchecked infestation; replaces spread_rate_per_yr by the r that gives it"),
     row(P::SeedBearingAge, "invasion", false, "seed_bearing_age_yr", Whole, D(8.0), "years", Range::closed(0.0, 100.0), VARY, "age from which cohorts produce seed (draws are rounded)"),
     row(P::SeedRain, "invasion", false, "seed_rain_ha_per_yr", NUM, D(0.0), "ha/yr", Range::closed(0.0, 1e7), VARY, "new infestation from seed blown in from outside"),
     row(P::MediumAge, "invasion", false, "medium_age_yr", Whole, D(10.0), "years", Range::closed(1.0, 100.0), FIXED, "age at which scattered becomes medium density"),
@@ -385,7 +394,7 @@ const TABLE: [ParamSpec; 50] = [
     row(P::ClosureMaxFraction, "canopy_closure", false, "max_fraction", NUM, D(1.0), "fraction", Range::closed(0.0, 1.0), VARY, "logistic closure: forest fraction of a mature stand"),
     row(P::ClosureAges, "canopy_closure", false, "ages_yr", List, NONE, "years", Range::closed(0.0, 500.0), FIXED, "closure table: stand ages"),
     row(P::ClosureFractions, "canopy_closure", false, "fractions", List, NONE, "fraction", Range::closed(0.0, 1.0), FIXED, "closure table: closure at those ages"),
-    row(P::MinRunoff, "dilution", false, "min_runoff_mm", NUM, D(1.0), "mm/yr", Range::closed(0.0, 1000.0), FIXED, "runoff depth below which no concentration is stated"),
+    row(P::MinRunoff, "dilution", false, "min_runoff_mm", NUM, D(1.0), "mm/yr", Range { min: Bound::Excluded(0.0), max: Bound::Included(1000.0) }, FIXED, "runoff depth below which no concentration is stated"),
     row(P::OpenExport, "contaminant", true, "open_export_kg_per_ha_yr", NUM, REQ, "kg/ha/yr", Range::closed(0.0, 1e4), VARY, "export coefficient of open land"),
     row(P::ForestExport, "contaminant", true, "forest_export_kg_per_ha_yr", NUM, REQ, "kg/ha/yr", Range::closed(0.0, 1e4), VARY, "export coefficient under conifer canopy"),
     row(P::Guideline, "contaminant", true, "guideline_mg_per_l", NUM, NONE, "mg/L", Range::closed(0.0, 1e6), FIXED, "guideline concentration for first-exceedance years"),

@@ -32,10 +32,10 @@
 //! Research*, 37(3), 701–708. doi:10.1029/2000WR900325 (cover mixing, step 3).
 //! The sources of the other steps are given in the files they link to.
 
-use super::budyko::mixed_et_mm;
 use super::catchment::{Catchment, ClimateYear, ModelParams};
 use super::cover::{ClassAreas, Cohorts};
 use super::dilution::{self, ConcentrationFlag};
+use super::interception::mixed_et_mm;
 
 /// Results of one catchment in one year.
 #[derive(Debug, Clone, PartialEq)]
@@ -90,7 +90,7 @@ pub fn percent_change(value: f64, reference: f64) -> Option<f64> {
 #[inline]
 pub fn et_and_yield_mm(c: &Catchment, p: &ModelParams, climate: ClimateYear, canopy_fraction: f64) -> (f64, f64) {
     let pet_forest = c.forest_pet_mm(climate.pet_mm, p.forest_pet_factor);
-    let et = mixed_et_mm(c.curves(p), climate.rain_mm, pet_forest, climate.pet_mm, canopy_fraction);
+    let et = mixed_et_mm(c.curves(p), &p.interception, climate.rain_mm, pet_forest, climate.pet_mm, canopy_fraction);
     (et, (climate.rain_mm - et).max(0.0))
 }
 

@@ -372,7 +372,12 @@ fn run_info(s: &Scenario) -> RunInfo {
             id_property: g.boundaries.id_property().to_string(),
         }),
         horizon_years: s.horizon_years,
-        hydrology: ri::Hydrology { forest_pet_factor: s.params.forest_pet_factor, curves: s.params.curves.into() },
+        hydrology: ri::Hydrology {
+            forest_pet_factor: s.params.forest_pet_factor,
+            interception_demand_share: Some(s.params.interception.demand_share()),
+            interception_fraction: Some(s.params.interception.fraction_of_rain()),
+            curves: s.params.curves.into(),
+        },
         hydrology_method: s.params.curves.method_name().into(),
         inputs_copied_to: ri::INPUTS_COPIED_TO.into(),
         invasion: (&s.params.invasion).into(),
@@ -382,6 +387,7 @@ fn run_info(s: &Scenario) -> RunInfo {
             .as_ref()
             .map(|(p, m)| ri::PetFromWeather { method: m.clone(), weather_table: p.display().to_string() }),
         scenario: s.path.display().to_string(),
+        stand_table: s.stands_path.as_ref().map(|p| p.display().to_string()),
         start_year: s.start_year,
         strategies,
         title: s.title.clone(),
@@ -399,6 +405,9 @@ fn copy_inputs(dir: &Path, s: &Scenario) -> Result<()> {
     let mut files: Vec<&Path> = vec![&s.path, &s.catchments_path];
     if let Some(c) = &s.climate_path {
         files.push(c);
+    }
+    if let Some(st) = &s.stands_path {
+        files.push(st);
     }
     if let Some((w, _)) = &s.pet_source {
         files.push(w);

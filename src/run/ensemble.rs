@@ -21,6 +21,7 @@ use crate::model::catchment::{ClimateYear, ModelParams};
 use crate::model::climate_gen::{block_bootstrap, lognormal_ar1_multipliers};
 use crate::model::closure::ClosureCurve;
 use crate::model::control::Strategy;
+use crate::model::interception::CanopyInterception;
 use crate::model::kernel::{concentration, project_lean, LeanYears};
 use crate::model::params::{ParamId, ParamRef};
 use crate::model::stats::{mean, percentile_sorted};
@@ -91,6 +92,17 @@ pub fn apply_param(s: &Scenario, target: ParamRef, v: f64, m: &mut MemberSetup) 
             }
         }
         ParamId::ForestPetFactor => p.forest_pet_factor = v,
+        // Both within the table's ranges, which are the constructor's: `new` cannot fail here.
+        ParamId::InterceptionFraction => {
+            if let Ok(i) = CanopyInterception::new(v, p.interception.demand_share()) {
+                p.interception = i;
+            }
+        }
+        ParamId::InterceptionDemandShare => {
+            if let Ok(i) = CanopyInterception::new(p.interception.fraction_of_rain(), v) {
+                p.interception = i;
+            }
+        }
         ParamId::SpreadRate => p.invasion.spread_rate_per_yr = v,
         ParamId::SeedBearingAge => p.invasion.seed_bearing_age_yr = v.round().max(0.0) as u32,
         ParamId::SeedRain => p.invasion.seed_rain_ha_per_yr = v,
@@ -161,6 +173,7 @@ pub fn apply_param(s: &Scenario, target: ParamRef, v: f64, m: &mut MemberSetup) 
         | ParamId::ClosureAges
         | ParamId::ClosureFractions
         | ParamId::MinRunoff
+        | ParamId::ArealGrowth
         | ParamId::Guideline
         | ParamId::DiscountRate
         | ParamId::WaterValue

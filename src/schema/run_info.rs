@@ -67,6 +67,9 @@ pub struct RunInfo {
     pub pet_from_weather: Option<PetFromWeather>,
     /// Scenario file as given to the run.
     pub scenario: String,
+    /// The stand table (dated cohorts), if the scenario gave one.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub stand_table: Option<String>,
     /// First projected year.
     pub start_year: i32,
     /// Strategies, `no-control` first.
@@ -252,6 +255,13 @@ pub struct GisInfo {
 pub struct Hydrology {
     /// Forest PET / grass PET where the table gives none.
     pub forest_pet_factor: f64,
+    /// Share of the interception loss taken from the transpiration demand (not
+    /// recorded by early versions, which had no interception).
+    #[serde(default)]
+    pub interception_demand_share: Option<f64>,
+    /// Annual interception loss of a closed canopy, fraction of rain (absent: none).
+    #[serde(default)]
+    pub interception_fraction: Option<f64>,
     /// The curves: `method` and its parameters.
     #[serde(flatten)]
     pub curves: Curves,
@@ -300,6 +310,11 @@ impl From<Curves> for CoverCurves {
 pub struct Invasion {
     /// Age from which a cohort is dense, years.
     pub dense_age_yr: u32,
+    /// Asymptotic growth of the infested area, 1/yr, that `spread_rate_per_yr` and
+    /// `seed_bearing_age_yr` give far from the cap (what the field observes; equal to
+    /// `areal_growth_rate_per_yr` when the scenario gave that). Not recorded by early versions.
+    #[serde(default)]
+    pub implied_areal_growth_per_yr: Option<f64>,
     /// Age span of the initially dense area, years (not recorded by early versions).
     #[serde(default)]
     pub initial_dense_span_yr: Option<u32>,
@@ -317,6 +332,8 @@ impl From<&crate::model::InvasionParams> for Invasion {
     fn from(p: &crate::model::InvasionParams) -> Invasion {
         Invasion {
             dense_age_yr: p.dense_age_yr,
+            implied_areal_growth_per_yr: crate::model::cover::areal_growth_for_spread_rate(p.spread_rate_per_yr, p.seed_bearing_age_yr)
+                .ok(),
             initial_dense_span_yr: Some(p.initial_dense_span_yr),
             medium_age_yr: p.medium_age_yr,
             seed_bearing_age_yr: p.seed_bearing_age_yr,
@@ -500,11 +517,17 @@ mod tests {
                 id_property: "id".into(),
             }),
             horizon_years: 60,
-            hydrology: Hydrology { forest_pet_factor: 1.15, curves },
+            hydrology: Hydrology {
+                forest_pet_factor: 1.0,
+                interception_demand_share: Some(0.6),
+                interception_fraction: Some(0.25),
+                curves,
+            },
             hydrology_method: "zhang".into(),
             inputs_copied_to: INPUTS_COPIED_TO.into(),
             invasion: Invasion {
                 dense_age_yr: 20,
+                implied_areal_growth_per_yr: Some(0.0429),
                 initial_dense_span_yr: Some(10),
                 medium_age_yr: 10,
                 seed_bearing_age_yr: 8,
@@ -514,6 +537,7 @@ mod tests {
             min_runoff_mm: Some(5.0),
             pet_from_weather: Some(PetFromWeather { method: "fao56".into(), weather_table: "w.csv".into() }),
             scenario: "s.toml".into(),
+            stand_table: None,
             start_year: 2027,
             strategies: vec!["no-control".into()],
             title: "T".into(),
