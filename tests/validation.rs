@@ -71,6 +71,8 @@ struct Site {
     rain_mm: f64,
     rain_source: String,
     pet_mm: f64,
+    /// What the PET is (Penman, pan with its coefficient, …).
+    pet_kind: String,
     pet_source: String,
     control_runoff_mm: f64,
     control_source: String,
@@ -543,6 +545,7 @@ fn every_case_has_expected_toml_with_a_source_and_sourced_checks() {
             assert!(s.planted_fraction > 0.0 && s.planted_fraction <= 1.0, "{case}: site {} planted_fraction", s.catchment);
             for (k, v) in [
                 ("rain_source", &s.rain_source),
+                ("pet_kind", &s.pet_kind),
                 ("pet_source", &s.pet_source),
                 ("control_source", &s.control_source),
                 ("planted_source", &s.planted_source),
