@@ -35,6 +35,10 @@
 //! as `known-gap` and does not fail its case; if it starts passing, the case fails until
 //! the mark is removed, so the mark cannot outlive the gap.
 //!
+//! What a case may set (the defaults are what is validated): `[[calibration]]` entries
+//! with `w_grass` only, each fitted to the site's control runoff and saying so in a
+//! `# Fitted to:` comment.
+//!
 //! `cargo test --test validation -- --nocapture` prints one line per check.
 
 use serde::Deserialize;
@@ -182,7 +186,13 @@ fn mean_metric(rows: &[&Row], metric: &str, planted_fraction: Option<f64>) -> Re
     let n = rows.len() as f64;
     let red: f64 = rows.iter().map(|r| r.uninvaded_yield_mm - r.yield_mm).sum();
     let unin: f64 = rows.iter().map(|r| r.uninvaded_yield_mm).sum();
-    let pct = || if unin > 0.0 { Ok(100.0 * red / unin) } else { Err("uninvaded yield is zero: no percentage".to_string()) };
+    let pct = || {
+        if unin > 0.0 {
+            Ok(100.0 * red / unin)
+        } else {
+            Err("uninvaded yield is zero: no percentage".to_string())
+        }
+    };
     let per10 = || match planted_fraction {
         Some(f) if f > 0.0 => Ok(10.0 * f),
         _ => Err(format!("{metric} needs the site's planted_fraction (> 0)")),
@@ -615,6 +625,103 @@ fn read_csv_columns(path: &Path) -> Vec<BTreeMap<String, String>> {
         .collect()
 }
 
+/// The `[[calibration]]` rule: every site of the case has one entry, with `catchment`
+/// and `w_grass` only (the forest curve and interception stay at their defaults), and
+/// each entry carries a `# Fitted to:` comment naming the site's control runoff.
+fn check_calibration(case: &str, scenario: &toml::Table, text: &str, exp: &Expected) {
+    let entries: Vec<&toml::Table> = match scenario.get("calibration") {
+        None => Vec::new(),
+        Some(v) => v
+            .as_array()
+            .unwrap_or_else(|| panic!("{case}: calibration must be [[calibration]] entries"))
+            .iter()
+            .map(|e| e.as_table().unwrap_or_else(|| panic!("{case}: a [[calibration]] entry is not a table")))
+            .collect(),
+    };
+    // The raw text of each entry, for its comments: from its header to the next table.
+    let blocks: Vec<&str> = text.split("[[calibration]]").skip(1).map(|b| b.split("\n[").next().unwrap_or(b)).collect();
+    assert_eq!(blocks.len(), entries.len(), "{case}: [[calibration]] count in the text and the table differ");
+    let mut seen = Vec::new();
+    for (entry, block) in entries.iter().zip(&blocks) {
+        let keys: Vec<&str> = entry.keys().map(String::as_str).collect();
+        assert_eq!(keys, ["catchment", "w_grass"], "{case}: a [[calibration]] entry may set catchment and w_grass only, not {keys:?}");
+        let id = entry["catchment"].as_str().unwrap_or_else(|| panic!("{case}: [[calibration]] catchment is not a string"));
+        assert!(!seen.contains(&id), "{case}: catchment {id} calibrated twice");
+        seen.push(id);
+        let site = exp.site.iter().find(|s| s.catchment == id).unwrap_or_else(|| panic!("{case}: [[calibration]] {id} has no [[site]]"));
+        let control = format!("{}", site.control_runoff_mm);
+        assert!(
+            block.lines().any(|l| {
+                let l = l.trim_start();
+                l.starts_with("# Fitted to:")
+                    && l.contains("control runoff")
+                    && l.split(|c: char| !(c.is_ascii_digit() || c == '.')).any(|w| w == control)
+            }),
+            "{case}: [[calibration]] {id} needs a `# Fitted to:` comment naming the control runoff it was fitted to ({control} mm)"
+        );
+    }
+    for s in &exp.site {
+        assert!(
+            seen.contains(&s.catchment.as_str()),
+            "{case}: site {} has no [[calibration]] w_grass fitted to its control runoff",
+            s.catchment
+        );
+    }
+}
+
+/// Zhang et al. (2001) eq. 8 yield, `P − ET`, with ET capped at `min(P, E0)` (as the
+/// model does), for the calibration check below.
+fn zhang_yield_mm(p: f64, e0: f64, w: f64) -> f64 {
+    let phi = e0 / p;
+    let et = p * (1.0 - 1.0 / (1.0 + phi + w * phi * phi));
+    p - et.clamp(0.0, p.min(e0))
+}
+
+/// The `w` at which `zhang_yield_mm(p, e0, w) = q` (closed form, uncapped).
+fn zhang_w_for_yield(p: f64, e0: f64, q: f64) -> f64 {
+    let phi = e0 / p;
+    (p / q - 1.0 - phi) / (phi * phi)
+}
+
+#[test]
+fn calibrated_grass_curve_gives_the_control_runoff() {
+    // Hand check of the closed form: P 1000, E0 800, w 0.5 → 471.698 mm (see
+    // harness_reads_what_the_binary_writes), and back.
+    assert!((zhang_yield_mm(1000.0, 800.0, 0.5) - 471.698).abs() < 1e-3);
+    assert!((zhang_w_for_yield(1000.0, 800.0, 471.698) - 0.5).abs() < 1e-5);
+    for case in case_folders() {
+        let dir = validation_dir().join(&case);
+        let (_, exp) = read_expected(&case);
+        let scenario: toml::Table = toml::from_str(&std::fs::read_to_string(dir.join("scenario.toml")).unwrap()).unwrap();
+        let Some(entries) = scenario.get("calibration").and_then(|v| v.as_array()) else {
+            continue;
+        };
+        for e in entries {
+            let id = e["catchment"].as_str().unwrap();
+            let w = e["w_grass"].as_float().unwrap_or_else(|| panic!("{case}: {id} w_grass is not a float"));
+            let s = exp.site.iter().find(|s| s.catchment == id).unwrap();
+            let solved = zhang_w_for_yield(s.rain_mm, s.pet_mm, s.control_runoff_mm);
+            if (W_GRASS_MIN..=W_GRASS_MAX).contains(&solved) {
+                let q = zhang_yield_mm(s.rain_mm, s.pet_mm, w);
+                assert!(
+                    (q - s.control_runoff_mm).abs() <= 0.005 * s.control_runoff_mm,
+                    "{case}: {id} w_grass {w} gives {q:.1} mm at P {} and PET {}, not the control's {} mm (solved w {solved:.4})",
+                    s.rain_mm,
+                    s.pet_mm,
+                    s.control_runoff_mm
+                );
+            } else {
+                let bound = solved.clamp(W_GRASS_MIN, W_GRASS_MAX);
+                assert_eq!(w, bound, "{case}: {id}: the solved w {solved:.4} is outside {W_GRASS_MIN}–{W_GRASS_MAX}; w_grass falls back to the nearest bound {bound}");
+            }
+        }
+    }
+}
+
+/// The scenario's range for `w_grass` (src/input/scenario.rs).
+const W_GRASS_MIN: f64 = 0.01;
+const W_GRASS_MAX: f64 = 20.0;
+
 #[test]
 fn case_files_agree_with_their_site_tables_and_keep_the_defaults() {
     for case in case_folders() {
@@ -630,8 +737,9 @@ fn case_files_agree_with_their_site_tables_and_keep_the_defaults() {
             }
             assert_eq!(h.get("method").and_then(|v| v.as_str()), Some("zhang"), "{case}: method");
         }
+        // Allowed: the grass curve fitted to the control.
+        check_calibration(&case, &scenario, &scenario_text, &exp);
         assert!(scenario.get("canopy_closure").is_none(), "{case}: [canopy_closure] set; validation cases use the default closure");
-        assert!(scenario.get("calibration").is_none(), "{case}: [[calibration]] set; validation cases use the default curves");
         // A planting that does not spread.
         let inv = scenario.get("invasion").and_then(|v| v.as_table()).unwrap_or_else(|| panic!("{case}: no [invasion]"));
         for k in ["spread_rate_per_yr", "seed_rain_ha_per_yr"] {
