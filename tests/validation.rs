@@ -37,7 +37,8 @@
 //!
 //! What a case may set (the defaults are what is validated): `[[calibration]]` entries
 //! with `w_grass` only, each fitted to the site's control runoff and saying so in a
-//! `# Fitted to:` comment.
+//! `# Fitted to:` comment; and, for a planting, `[canopy_closure]` with
+//! `half_closure_age_yr` and `steepness_per_yr`, the same in every case.
 //!
 //! `cargo test --test validation -- --nocapture` prints one line per check.
 
@@ -669,6 +670,48 @@ fn check_calibration(case: &str, scenario: &toml::Table, text: &str, exp: &Expec
     }
 }
 
+/// The closure rule: a planting (a case with `stands`) sets `[canopy_closure]` with
+/// `half_closure_age_yr` and `steepness_per_yr` and nothing else; a case without
+/// stands sets none. Returns the two values, for the same-in-every-case check.
+fn check_plantation_closure(case: &str, scenario: &toml::Table) -> Option<(f64, f64)> {
+    let planting = scenario.get("stands").is_some();
+    let Some(cc) = scenario.get("canopy_closure") else {
+        assert!(!planting, "{case}: a planting sets [canopy_closure] half_closure_age_yr and steepness_per_yr (the plantation closure)");
+        return None;
+    };
+    assert!(planting, "{case}: [canopy_closure] is for plantings (a stands table); this case has none");
+    let cc = cc.as_table().unwrap_or_else(|| panic!("{case}: [canopy_closure] is not a table"));
+    let keys: Vec<&str> = cc.keys().map(String::as_str).collect();
+    assert_eq!(
+        keys,
+        ["half_closure_age_yr", "steepness_per_yr"],
+        "{case}: [canopy_closure] may set half_closure_age_yr and steepness_per_yr only, not {keys:?}"
+    );
+    let num = |k: &str| {
+        cc[k].as_float().or_else(|| cc[k].as_integer().map(|i| i as f64)).unwrap_or_else(|| panic!("{case}: {k} is not a number"))
+    };
+    Some((num("half_closure_age_yr"), num("steepness_per_yr")))
+}
+
+#[test]
+fn every_planting_uses_the_same_plantation_closure() {
+    let mut closures: Vec<(String, (f64, f64))> = Vec::new();
+    for case in case_folders() {
+        let text = std::fs::read_to_string(validation_dir().join(&case).join("scenario.toml")).unwrap();
+        let scenario: toml::Table = toml::from_str(&text).unwrap_or_else(|e| panic!("{case}: scenario.toml: {e}"));
+        if let Some(c) = check_plantation_closure(&case, &scenario) {
+            closures.push((case, c));
+        }
+    }
+    for (case, c) in &closures {
+        assert_eq!(
+            *c, closures[0].1,
+            "{case}: plantation closure {c:?} differs from {}'s {:?}: one choice for every planting (docs/validation.md)",
+            closures[0].0, closures[0].1
+        );
+    }
+}
+
 /// Zhang et al. (2001) eq. 8 yield, `P − ET`, with ET capped at `min(P, E0)` (as the
 /// model does), for the calibration check below.
 fn zhang_yield_mm(p: f64, e0: f64, w: f64) -> f64 {
@@ -729,17 +772,17 @@ fn case_files_agree_with_their_site_tables_and_keep_the_defaults() {
         let (_, exp) = read_expected(&case);
         let scenario_text = std::fs::read_to_string(dir.join("scenario.toml")).unwrap();
         let scenario: toml::Table = toml::from_str(&scenario_text).unwrap_or_else(|e| panic!("{case}: scenario.toml: {e}"));
-        // The model's defaults are what is validated: no curve, interception, PET-factor
-        // or closure parameter may be set (a change of default must show here).
+        // The model's defaults are what is validated: no forest curve, interception or
+        // PET-factor parameter may be set (a change of default must show here).
         if let Some(h) = scenario.get("hydrology").and_then(|v| v.as_table()) {
             for k in h.keys() {
                 assert_eq!(k, "method", "{case}: [hydrology] sets {k}; validation cases use the defaults");
             }
             assert_eq!(h.get("method").and_then(|v| v.as_str()), Some("zhang"), "{case}: method");
         }
-        // Allowed: the grass curve fitted to the control.
+        // Allowed: the grass curve fitted to the control, and a plantation's closure.
         check_calibration(&case, &scenario, &scenario_text, &exp);
-        assert!(scenario.get("canopy_closure").is_none(), "{case}: [canopy_closure] set; validation cases use the default closure");
+        check_plantation_closure(&case, &scenario);
         // A planting that does not spread.
         let inv = scenario.get("invasion").and_then(|v| v.as_table()).unwrap_or_else(|| panic!("{case}: no [invasion]"));
         for k in ["spread_rate_per_yr", "seed_rain_ha_per_yr"] {
