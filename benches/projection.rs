@@ -30,8 +30,10 @@ fn params() -> ModelParams {
             open_export_kg_per_ha_yr: 2.5,
             forest_export_kg_per_ha_yr: 1.5,
             guideline_mg_per_l: Some(1.0),
+            cq: yieldshift::model::dilution::ConcentrationDischarge::PURE_DILUTION,
         }],
         min_runoff_mm: 1.0,
+        concentration_ceiling: yieldshift::model::dilution::ConcentrationCeiling::DEFAULT,
     }
 }
 

@@ -20,6 +20,7 @@ fn main() {
         },
         contaminants: vec![],
         min_runoff_mm: 1.0,
+        concentration_ceiling: yieldshift::model::dilution::ConcentrationCeiling::DEFAULT,
     };
     // An invented tussock catchment.
     let c = Catchment {

@@ -11,8 +11,12 @@ use common::EXACT;
 use proptest::prelude::*;
 use yieldshift::model::budyko::{mixed_et_mm, Budyko1974, CoverCurves, Fu1981, WaterBalance, Zhang2001};
 use yieldshift::model::cover::{new_infestation_ha, Cohorts};
-use yieldshift::model::dilution::{concentration_mg_per_l, load_kg_per_yr, volume_m3, ConcentrationFlag, M3_PER_MM_HA};
+use yieldshift::model::dilution::{
+    concentration_mg_per_l, load_kg_per_yr, volume_m3, ConcentrationCeiling, ConcentrationDischarge, ConcentrationFlag, ScreenedFlag,
+    M3_PER_MM_HA,
+};
 use yieldshift::model::interception::CanopyInterception;
+use yieldshift::model::projection::long_term_mean_yield_mm;
 use yieldshift::model::{project_catchment, Catchment, ClassAreas, ClimateYear, ClosureCurve, Contaminant, InvasionParams, ModelParams};
 
 /// Every curve of `model::budyko`, each with a parameter in its documented range
@@ -134,7 +138,14 @@ fn catchment() -> impl Strategy<Value = Catchment> {
 }
 
 fn params(curves: impl Strategy<Value = CoverCurves>, factor: std::ops::RangeInclusive<f64>) -> impl Strategy<Value = ModelParams> {
-    (curves, factor, invasion(), proptest::collection::vec((0.0f64..=1e4, 0.0f64..=1e4), 2), 0.0f64..=1000.0, (0.0f64..=0.6, 0.0f64..=1.0))
+    (
+        curves,
+        factor,
+        invasion(),
+        proptest::collection::vec((0.0f64..=1e4, 0.0f64..=1e4, prop_oneof![Just(-1.0), Just(0.0), -1.0f64..=2.0]), 2),
+        0.0f64..=1000.0,
+        (0.0f64..=0.6, 0.0f64..=1.0),
+    )
         .prop_map(|(curves, forest_pet_factor, invasion, exports, min_runoff_mm, (fraction, share))| ModelParams {
             curves,
             forest_pet_factor,
@@ -144,14 +155,17 @@ fn params(curves: impl Strategy<Value = CoverCurves>, factor: std::ops::RangeInc
             contaminants: exports
                 .iter()
                 .enumerate()
-                .map(|(k, &(open, forest))| Contaminant {
+                .map(|(k, &(open, forest, b))| Contaminant {
                     name: format!("c{k}"),
                     open_export_kg_per_ha_yr: open,
                     forest_export_kg_per_ha_yr: forest,
                     guideline_mg_per_l: Some(1.0),
+                    // Any allowed exponent (the range is the constructor's).
+                    cq: ConcentrationDischarge::new(b).unwrap_or(ConcentrationDischarge::PURE_DILUTION),
                 })
                 .collect(),
             min_runoff_mm,
+            concentration_ceiling: ConcentrationCeiling::DEFAULT,
         })
 }
 
@@ -293,6 +307,7 @@ proptest! {
     fn projections_stay_physical(c in catchment(), p in params(any_cover_curves(), 0.5..=2.0), cl in climate(1..40)) {
         let years = project_catchment(&c, &cl, &p, 2030);
         prop_assert_eq!(years.len(), cl.len());
+        let q_mean = years.first().map(|y| long_term_mean_yield_mm(&c, &p, y.canopy_fraction)).unwrap_or(0.0);
         for (y, clim) in years.iter().zip(&cl) {
             prop_assert!(y.et_mm.is_finite() && y.et_mm >= 0.0 && y.et_mm <= clim.rain_mm + EXACT, "{y:?}");
             prop_assert!(y.yield_mm >= 0.0 && (y.et_mm + y.yield_mm - clim.rain_mm).abs() <= EXACT * clim.rain_mm.max(1.0), "{y:?}");
@@ -300,9 +315,21 @@ proptest! {
             prop_assert!((0.0..=1.0).contains(&y.canopy_fraction));
             prop_assert!(y.classes.total_ha() <= c.vulnerable_ha + 1e-9 * c.area_ha.max(1.0));
             for (k, conc) in y.concentrations.iter().enumerate() {
+                // The ceiling: 10× the concentration of the year's mean load in the mean runoff.
+                let m = &p.contaminants[k];
+                let mean_load = load_kg_per_yr(c.area_ha, y.canopy_fraction, m.open_export_kg_per_ha_yr, m.forest_export_kg_per_ha_yr, c.point_kg_per_yr.get(k).copied().unwrap_or(0.0));
+                let mean_volume = volume_m3(q_mean, c.area_ha);
+                let ceiling = (mean_volume > 0.0).then(|| 10.0 * 1000.0 * mean_load / mean_volume);
                 match conc {
-                    Ok(v) => prop_assert!(v.is_finite() && *v >= 0.0 && y.yield_mm >= p.min_runoff_mm * (1.0 - 1e-12), "{y:?}"),
-                    Err(ConcentrationFlag::LowRunoff) => prop_assert!(y.yield_mm < p.min_runoff_mm || y.yield_m3 <= 0.0, "{y:?}"),
+                    Ok(v) => {
+                        prop_assert!(v.is_finite() && *v >= 0.0 && y.yield_mm >= p.min_runoff_mm * (1.0 - 1e-12), "{y:?}");
+                        prop_assert!(ceiling.is_none_or(|top| *v <= top * (1.0 + 1e-9)), "{v} above the ceiling {ceiling:?}: {y:?}");
+                    }
+                    Err(ScreenedFlag::LowRunoff) => prop_assert!(y.yield_mm < p.min_runoff_mm || y.yield_m3 <= 0.0, "{y:?}"),
+                    Err(ScreenedFlag::AboveCeiling) => {
+                        let stated = 1000.0 * y.loads_kg_per_yr[k] / y.yield_m3;
+                        prop_assert!(ceiling.is_some_and(|top| stated >= top * (1.0 - 1e-9)), "{stated} flagged below the ceiling {ceiling:?}: {y:?}");
+                    }
                 }
                 prop_assert!(y.loads_kg_per_yr[k].is_finite() && y.loads_kg_per_yr[k] >= 0.0);
             }

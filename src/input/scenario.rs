@@ -18,6 +18,7 @@ use crate::model::control::{Effort, PriorityRule, Strategy, TreatmentMethod};
 use crate::model::cover::spread_rate_for_areal_growth;
 use crate::model::cover::DensityClass;
 use crate::model::cover::InvasionParams;
+use crate::model::dilution::{ConcentrationCeiling, ConcentrationDischarge};
 use crate::model::interception::CanopyInterception;
 use crate::model::network::{Network, NetworkError};
 use crate::model::params::ParamId;
@@ -607,7 +608,15 @@ fn read_keys(doc: &TomlDoc, table: &toml::Table, base: &Path) -> RawScenario {
         stands_path,
         climate_path,
         beyond_record,
-        params: ModelParams { curves, forest_pet_factor, interception, invasion, contaminants, min_runoff_mm },
+        params: ModelParams {
+            curves,
+            forest_pet_factor,
+            interception,
+            invasion,
+            contaminants,
+            min_runoff_mm,
+            concentration_ceiling: ConcentrationCeiling::DEFAULT,
+        },
         calibration,
         economics,
         strategies,
@@ -791,8 +800,17 @@ fn read_contaminants(root: &Section<'_>) -> Vec<Contaminant> {
         let open = s.number(ParamId::OpenExport);
         let forest = s.number(ParamId::ForestExport);
         let guideline = s.opt_number(ParamId::Guideline);
+        // The range (−1..=2) is checked by the parameter table, which places the
+        // problem at its line and key; a refused value leaves pure dilution.
+        let cq = ConcentrationDischarge::new(s.number(ParamId::CqExponent)).unwrap_or(ConcentrationDischarge::PURE_DILUTION);
         s.finish();
-        out.push(Contaminant { name, open_export_kg_per_ha_yr: open, forest_export_kg_per_ha_yr: forest, guideline_mg_per_l: guideline });
+        out.push(Contaminant {
+            name,
+            open_export_kg_per_ha_yr: open,
+            forest_export_kg_per_ha_yr: forest,
+            guideline_mg_per_l: guideline,
+            cq,
+        });
     }
     out
 }

@@ -35,6 +35,7 @@
 
 use super::budyko::CoverCurves;
 use super::cover::{ClassAreas, Cohorts, InvasionParams};
+use super::dilution::{ConcentrationCeiling, ConcentrationDischarge};
 use super::interception::CanopyInterception;
 
 /// One catchment, with its starting cover.
@@ -84,6 +85,9 @@ pub struct Contaminant {
     pub forest_export_kg_per_ha_yr: f64,
     /// Guideline concentration, mg/L, if any.
     pub guideline_mg_per_l: Option<f64>,
+    /// Concentration–discharge behaviour of the diffuse load (point loads are always
+    /// diluted); [`ConcentrationDischarge::PURE_DILUTION`] keeps the load fixed.
+    pub cq: ConcentrationDischarge,
 }
 
 /// One year's climate for a catchment.
@@ -111,6 +115,8 @@ pub struct ModelParams {
     pub contaminants: Vec<Contaminant>,
     /// Runoff depth below which no concentration is computed, mm/yr.
     pub min_runoff_mm: f64,
+    /// Concentrations above this ceiling are flagged, not stated.
+    pub concentration_ceiling: ConcentrationCeiling,
 }
 
 impl Catchment {

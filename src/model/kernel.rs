@@ -11,12 +11,15 @@
 //! * `f_t = clamp((F + Σ_a A_a·closure(a)) / A, 0, 1)`; `f_0` is the start year's.
 //! * `ET_t = f_t·ET_forest(P_t, E0f_t) + (1 − f_t)·ET_grass(P_t, E0_t)` and the
 //!   baseline `ET⁰_t` with `f_0`; `Q_t = max(0, P_t − ET_t)` (Zhang et al. 2001 mixing).
-//! * Load of contaminant `j`: `L_t = A·[f_t·e_forest + (1 − f_t)·e_open] + L_point`, kg/yr.
+//! * Load of contaminant `j`: `L_t = L̄_d,t·(Q_t/Q̄)^(1 + b_j) + L_point`, kg/yr, with
+//!   `L̄_d,t = A·[f_t·e_forest + (1 − f_t)·e_open]` and `Q̄` the yield of the mean
+//!   climate with `f_0` ([`super::dilution::load_at_flow_kg_per_yr`],
+//!   [`super::projection::long_term_mean_yield_mm`]).
 //! * New infestation `ΔI_t` by [`super::cover::new_infestation_ha`]; the infested
 //!   area `I` and seed-bearing area `S` are running sums:
 //!   `I ← I + ΔI_t`, `S ← S + (area of the cohort that has just reached a_seed)`.
-//! * [`concentration`]: `C = 1000·L / (10·Q·A)` mg/L (as
-//!   [`super::dilution::concentration_mg_per_l`]), not stated when `Q < Q_min`.
+//! * Concentration `C = 1000·L / (10·Q·A)` mg/L, not stated when `Q < Q_min` or above
+//!   the ceiling ([`super::dilution::concentration_at_flow_mg_per_l`], called here).
 //!
 //! # Symbols
 //! * `A` — catchment area, ha, > 0; `F` — existing forest, ha, 0–`A`; `A_a` — infested
@@ -40,7 +43,8 @@
 use super::budyko::CoverCurves;
 use super::catchment::{Catchment, ClimateYear, ModelParams};
 use super::cover::new_infestation_ha;
-use super::dilution::M3_PER_MM_HA;
+use super::dilution::{self, Runoff};
+use super::projection::long_term_mean_yield_mm;
 
 /// Per-year outputs of one catchment, reused between members.
 #[derive(Debug, Clone, Default)]
@@ -51,6 +55,9 @@ pub struct LeanYears {
     pub baseline_yield_mm: Vec<f64>,
     /// Loads, kg/yr, `k` per year (year-major).
     pub loads_kg_per_yr: Vec<f64>,
+    /// Concentrations, mg/L, `k` per year (year-major); `None` where not stated
+    /// (low runoff or above the ceiling).
+    pub concentrations_mg_per_l: Vec<Option<f64>>,
     /// Canopy fraction per year.
     pub canopy_fraction: Vec<f64>,
     closure: Vec<f64>,
@@ -89,6 +96,7 @@ pub fn project_lean(c: &Catchment, climate: &[ClimateYear], p: &ModelParams, out
     out.yield_mm.clear();
     out.baseline_yield_mm.clear();
     out.loads_kg_per_yr.clear();
+    out.concentrations_mg_per_l.clear();
     out.canopy_fraction.clear();
     let sb = inv.seed_bearing_age_yr as usize;
     let canopy = |areas: &[f64], rev: &[f64]| -> f64 {
@@ -98,17 +106,24 @@ pub fn project_lean(c: &Catchment, climate: &[ClimateYear], p: &ModelParams, out
     let mut infested = cohorts.infested_ha();
     let mut seed = cohorts.area_at_least_age(sb);
     let f0 = ((c.forest_ha + canopy(cohorts.areas_oldest_first(), &out.closure)) / c.area_ha).clamp(0.0, 1.0);
+    let mean_yield_mm = long_term_mean_yield_mm(c, p, f0);
     for &cl in climate {
         let f = ((c.forest_ha + canopy(cohorts.areas_oldest_first(), &out.closure)) / c.area_ha).clamp(0.0, 1.0);
         let (et_f, et_g) = et_pair(curves, c, p, cl);
         let et = f * et_f + (1.0 - f) * et_g;
         let et0 = f0 * et_f + (1.0 - f0) * et_g;
-        out.yield_mm.push((cl.rain_mm - et).max(0.0));
+        let yield_mm = (cl.rain_mm - et).max(0.0);
+        let runoff = Runoff { yield_mm, mean_yield_mm, area_ha: c.area_ha };
+        out.yield_mm.push(yield_mm);
         out.baseline_yield_mm.push((cl.rain_mm - et0).max(0.0));
         out.canopy_fraction.push(f);
         for (j, m) in p.contaminants.iter().enumerate() {
             let point = c.point_kg_per_yr.get(j).copied().unwrap_or(0.0);
-            out.loads_kg_per_yr.push(c.area_ha * (f * m.forest_export_kg_per_ha_yr + (1.0 - f) * m.open_export_kg_per_ha_yr) + point);
+            let diffuse = dilution::load_kg_per_yr(c.area_ha, f, m.open_export_kg_per_ha_yr, m.forest_export_kg_per_ha_yr, 0.0);
+            out.loads_kg_per_yr.push(dilution::load_at_flow_kg_per_yr(diffuse, point, m.cq, runoff));
+            out.concentrations_mg_per_l.push(
+                dilution::concentration_at_flow_mg_per_l(diffuse, point, m.cq, runoff, p.min_runoff_mm, &p.concentration_ceiling).ok(),
+            );
         }
         let new = new_infestation_ha(inv.spread_rate_per_yr, seed, inv.seed_rain_ha_per_yr, infested, c.vulnerable_ha);
         cohorts.push_new(new);
@@ -117,12 +132,5 @@ pub fn project_lean(c: &Catchment, climate: &[ClimateYear], p: &ModelParams, out
         seed += if sb == 0 { new } else { cohorts.area_at_age(sb) };
     }
     debug_assert_eq!(out.loads_kg_per_yr.len(), n * k);
-}
-
-/// Concentration, mg/L, of load `l` (kg/yr) in yield `q` (mm) over `area_ha`;
-/// `None` below `min_runoff_mm`.
-#[inline]
-pub fn concentration(l: f64, q_mm: f64, area_ha: f64, min_runoff_mm: f64) -> Option<f64> {
-    let v = q_mm * area_ha * M3_PER_MM_HA;
-    (v > 0.0 && q_mm >= min_runoff_mm).then(|| 1000.0 * l / v)
+    debug_assert_eq!(out.concentrations_mg_per_l.len(), n * k);
 }

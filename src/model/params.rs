@@ -206,6 +206,8 @@ pub enum ParamId {
     ForestExport,
     /// `contaminant[n].guideline_mg_per_l`.
     Guideline,
+    /// `contaminant[n].cq_exponent`.
+    CqExponent,
     /// `calibration[n].w_forest`.
     CalibrationWForest,
     /// `calibration[n].w_grass`.
@@ -333,7 +335,7 @@ impl ParamRef {
 }
 
 /// Every row, in [`ParamId`] order.
-pub static PARAMS: [ParamSpec; 53] = TABLE;
+pub static PARAMS: [ParamSpec; 54] = TABLE;
 
 /// Zhang's `w`, for forest and for grass (in `[hydrology]` and `[[calibration]]`).
 const W_RANGE: Range = Range::closed(0.01, 20.0);
@@ -366,7 +368,7 @@ const FIXED: bool = false;
 
 // One row per line, as a table reads.
 #[rustfmt::skip]
-const TABLE: [ParamSpec; 53] = [
+const TABLE: [ParamSpec; 54] = [
     row(P::StartYear, TOP, false, "start_year", Whole, REQ, "year", Range::closed(1800.0, 2500.0), FIXED, "year 0: the current cover"),
     row(P::HorizonYears, TOP, false, "horizon_years", Whole, REQ, "years", Range::closed(1.0, 300.0), FIXED, "years projected after the start year"),
     row(P::RainScale, "climate", false, "rain_scale", NUM, D(1.0), "–", Range::closed(0.1, 3.0), VARY, "multiplier on every year's rainfall"),
@@ -398,6 +400,7 @@ const TABLE: [ParamSpec; 53] = [
     row(P::OpenExport, "contaminant", true, "open_export_kg_per_ha_yr", NUM, REQ, "kg/ha/yr", Range::closed(0.0, 1e4), VARY, "export coefficient of open land"),
     row(P::ForestExport, "contaminant", true, "forest_export_kg_per_ha_yr", NUM, REQ, "kg/ha/yr", Range::closed(0.0, 1e4), VARY, "export coefficient under conifer canopy"),
     row(P::Guideline, "contaminant", true, "guideline_mg_per_l", NUM, NONE, "mg/L", Range::closed(0.0, 1e6), FIXED, "guideline concentration for first-exceedance years"),
+    row(P::CqExponent, "contaminant", true, "cq_exponent", NUM, D(-1.0), "–", Range::closed(-1.0, 2.0), FIXED, "concentration-discharge exponent b of the diffuse load, C ∝ Q^b: -1 pure dilution of a fixed load (worst case), 0 chemostatic"),
     row(P::CalibrationWForest, "calibration", true, "w_forest", NUM, NONE, "–", W_RANGE, VARY, "fitted Zhang's w for forest of one catchment"),
     row(P::CalibrationWGrass, "calibration", true, "w_grass", NUM, NONE, "–", W_RANGE, VARY, "fitted Zhang's w for grass of one catchment"),
     row(P::CalibrationOmegaForest, "calibration", true, "omega_forest", NUM, NONE, "–", OMEGA_RANGE, VARY, "fitted Fu's omega for forest of one catchment"),

@@ -8,7 +8,10 @@
 //! 4. Yield `Q_t = max(0, P_t − ET_t)` (mm), volume `V_t = 10·Q_t·A` (m³).
 //! 5. Baseline: the same climate with the starting cover `f_0` held fixed;
 //!    change `100·(Q_t − Q_base,t)/Q_base,t` %. Uninvaded: `f = F/A`.
-//! 6. Loads and concentrations ([`super::dilution`]).
+//! 6. Loads and concentrations ([`super::dilution`]): the diffuse load follows
+//!    `L_d(Q_t) = L̄_d·(Q_t/Q̄)^(1 + b)` with `Q̄` the yield of the long-term mean
+//!    climate with the starting cover `f_0`; point loads are fixed; concentrations
+//!    above the ceiling (default 10× the concentration at `Q̄`) are flagged.
 //!
 //! # Symbols
 //! * `A` — catchment area, ha, > 0; `F` — existing non-spreading forest, ha, 0–`A`.
@@ -34,7 +37,7 @@
 
 use super::catchment::{Catchment, ClimateYear, ModelParams};
 use super::cover::{ClassAreas, Cohorts};
-use super::dilution::{self, ConcentrationFlag};
+use super::dilution::{self, Runoff, ScreenedFlag};
 use super::interception::mixed_et_mm;
 
 /// Results of one catchment in one year.
@@ -65,7 +68,7 @@ pub struct YearResult {
     /// Load of each contaminant (scenario order), kg/yr.
     pub loads_kg_per_yr: Vec<f64>,
     /// Concentration of each contaminant, mg/L, or why it is not stated.
-    pub concentrations: Vec<Result<f64, ConcentrationFlag>>,
+    pub concentrations: Vec<Result<f64, ScreenedFlag>>,
 }
 
 impl YearResult {
@@ -107,6 +110,15 @@ pub fn starting_canopy_fraction(c: &Catchment, p: &ModelParams) -> f64 {
     canopy_fraction(c, &cohorts, &closure)
 }
 
+/// Long-term mean runoff `Q̄` at which the export coefficients hold, mm/yr: the
+/// yield of the catchment's long-term mean climate with the starting cover
+/// (canopy fraction `f_baseline`), the flow the concentration–discharge law of
+/// [`super::dilution`] is scaled to.
+#[inline]
+pub fn long_term_mean_yield_mm(c: &Catchment, p: &ModelParams, f_baseline: f64) -> f64 {
+    et_and_yield_mm(c, p, c.mean_climate(), f_baseline).1
+}
+
 /// Projects one catchment over `climate.len()` years starting at `start_year`.
 ///
 /// `climate[t]` is the climate of year `start_year + t`.
@@ -142,21 +154,22 @@ pub fn year_result(
     let (_, baseline_yield_mm) = et_and_yield_mm(c, p, cl, f_baseline);
     let (_, uninvaded_yield_mm) = et_and_yield_mm(c, p, cl, f_uninvaded);
     let yield_m3 = dilution::volume_m3(yield_mm, c.area_ha);
-    let loads: Vec<f64> = p
-        .contaminants
-        .iter()
-        .enumerate()
-        .map(|(k, m)| {
-            dilution::load_kg_per_yr(
-                c.area_ha,
-                f,
-                m.open_export_kg_per_ha_yr,
-                m.forest_export_kg_per_ha_yr,
-                c.point_kg_per_yr.get(k).copied().unwrap_or(0.0),
-            )
-        })
-        .collect();
-    let concentrations = loads.iter().map(|&l| dilution::concentration_mg_per_l(l, yield_m3, c.area_ha, p.min_runoff_mm)).collect();
+    let runoff = Runoff { yield_mm, mean_yield_mm: long_term_mean_yield_mm(c, p, f_baseline), area_ha: c.area_ha };
+    let mut loads = Vec::with_capacity(p.contaminants.len());
+    let mut concentrations = Vec::with_capacity(p.contaminants.len());
+    for (k, m) in p.contaminants.iter().enumerate() {
+        let diffuse = dilution::load_kg_per_yr(c.area_ha, f, m.open_export_kg_per_ha_yr, m.forest_export_kg_per_ha_yr, 0.0);
+        let point = c.point_kg_per_yr.get(k).copied().unwrap_or(0.0);
+        loads.push(dilution::load_at_flow_kg_per_yr(diffuse, point, m.cq, runoff));
+        concentrations.push(dilution::concentration_at_flow_mg_per_l(
+            diffuse,
+            point,
+            m.cq,
+            runoff,
+            p.min_runoff_mm,
+            &p.concentration_ceiling,
+        ));
+    }
     YearResult {
         year,
         rain_mm: cl.rain_mm,

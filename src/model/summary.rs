@@ -37,7 +37,7 @@
 //! [`super::dilution`].
 
 use super::catchment::{Catchment, Contaminant};
-use super::dilution::{self, ConcentrationFlag};
+use super::dilution::{self, ScreenedFlag};
 use super::network::Network;
 use super::projection::{percent_change, YearResult};
 
@@ -86,10 +86,7 @@ pub fn summarise(c: &Catchment, years: &[YearResult], contaminants: &[Contaminan
 }
 
 /// First year whose concentration is above the guideline.
-pub fn first_exceedance(
-    series: impl Iterator<Item = (i32, Result<f64, ConcentrationFlag>)>,
-    guideline_mg_per_l: Option<f64>,
-) -> Option<i32> {
+pub fn first_exceedance(series: impl Iterator<Item = (i32, Result<f64, ScreenedFlag>)>, guideline_mg_per_l: Option<f64>) -> Option<i32> {
     let g = guideline_mg_per_l?;
     series.filter_map(|(y, c)| c.ok().map(|c| (y, c))).find(|&(_, c)| c > g).map(|(y, _)| y)
 }
@@ -108,7 +105,7 @@ pub struct NodeYear {
     /// Load of each contaminant reaching the node, kg/yr.
     pub loads_kg_per_yr: Vec<f64>,
     /// Flow-weighted concentration at the node, mg/L.
-    pub concentrations: Vec<Result<f64, ConcentrationFlag>>,
+    pub concentrations: Vec<Result<f64, ScreenedFlag>>,
 }
 
 impl NodeYear {
@@ -146,8 +143,10 @@ pub fn node_totals(
             .collect();
         for (n, rows) in out.iter_mut() {
             let node_loads: Vec<f64> = loads.iter().map(|l| l[*n]).collect();
-            let concentrations =
-                node_loads.iter().map(|&l| dilution::concentration_mg_per_l(l, vol[*n], area[*n], min_runoff_mm)).collect();
+            let concentrations = node_loads
+                .iter()
+                .map(|&l| dilution::concentration_mg_per_l(l, vol[*n], area[*n], min_runoff_mm).map_err(ScreenedFlag::from))
+                .collect();
             rows.push(NodeYear {
                 year: projections[0][t].year,
                 area_ha: area[*n],

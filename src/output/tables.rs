@@ -3,12 +3,13 @@
 //!
 //! Numbers are written with fixed decimals so that outputs are byte-stable;
 //! undefined values (a change against a zero baseline, a concentration in a
-//! year with too little runoff) are left empty and explained in `flags`.
+//! year with too little runoff or above the concentration ceiling) are left empty
+//! and explained in `flags`.
 //! No cell is ever NaN or infinite.
 
 use crate::error::{Error, Result};
 use crate::model::control::{BudgetYear, ControlYear};
-use crate::model::dilution::ConcentrationFlag;
+use crate::model::dilution::ScreenedFlag;
 use crate::model::economics::ProgrammeTotals;
 use crate::model::summary::{CatchmentSummary, NodeYear, REPORT_OFFSETS_YR};
 use crate::model::{Catchment, Contaminant, YearResult};
@@ -151,9 +152,11 @@ fn names(contaminants: &[Contaminant]) -> Vec<&str> {
     contaminants.iter().map(|c| c.name.as_str()).collect()
 }
 
-/// Flags for a year's concentrations (`low-runoff:<name>` per contaminant not stated).
-fn concentration_flags(concs: &[std::result::Result<f64, ConcentrationFlag>], contaminants: &[Contaminant]) -> String {
-    let flags: Vec<String> = concs.iter().zip(contaminants).filter(|(c, _)| c.is_err()).map(|(_, m)| flags::low_runoff(&m.name)).collect();
+/// Flags for a year's concentrations (`low-runoff:<name>` or `above-ceiling:<name>`
+/// per contaminant not stated).
+fn concentration_flags(concs: &[std::result::Result<f64, ScreenedFlag>], contaminants: &[Contaminant]) -> String {
+    let flags: Vec<String> =
+        concs.iter().zip(contaminants).filter_map(|(c, m)| c.err().map(|f| flags::concentration(f, &m.name))).collect();
     flags.join(&flags::SEPARATOR.to_string())
 }
 

@@ -204,7 +204,9 @@ impl StrategySums {
                     new_infestation_ha: b.new_infestation.value(),
                     concentrations: loads
                         .iter()
-                        .map(|&l| dilution::concentration_mg_per_l(l, yield_m3, area, meta.min_runoff_mm))
+                        .map(|&l| {
+                            dilution::concentration_mg_per_l(l, yield_m3, area, meta.min_runoff_mm).map_err(dilution::ScreenedFlag::from)
+                        })
                         .collect(),
                     loads_kg_per_yr: loads,
                 }
@@ -359,6 +361,7 @@ impl Partials {
                 open_export_kg_per_ha_yr: 0.0,
                 forest_export_kg_per_ha_yr: 0.0,
                 guideline_mg_per_l: *g,
+                cq: crate::model::dilution::ConcentrationDischarge::PURE_DILUTION,
             })
             .collect()
     }

@@ -22,7 +22,7 @@ use crate::model::climate_gen::{block_bootstrap, lognormal_ar1_multipliers};
 use crate::model::closure::ClosureCurve;
 use crate::model::control::Strategy;
 use crate::model::interception::CanopyInterception;
-use crate::model::kernel::{concentration, project_lean, LeanYears};
+use crate::model::kernel::{project_lean, LeanYears};
 use crate::model::params::{ParamId, ParamRef};
 use crate::model::stats::{mean, percentile_sorted};
 use crate::model::uncertainty::{stable_hash, stream, uniforms, UncertainParam};
@@ -175,6 +175,7 @@ pub fn apply_param(s: &Scenario, target: ParamRef, v: f64, m: &mut MemberSetup) 
         | ParamId::MinRunoff
         | ParamId::ArealGrowth
         | ParamId::Guideline
+        | ParamId::CqExponent
         | ParamId::DiscountRate
         | ParamId::WaterValue
         | ParamId::StrategyStartYear
@@ -593,9 +594,7 @@ fn no_control_catchment(
             mv.vars[0][t][m] = lean.yield_mm[t];
             mv.vars[1][t][m] = lean.change_pct(t).unwrap_or(f64::NAN);
             for j in 0..k {
-                mv.vars[2 + j][t][m] =
-                    concentration(lean.loads_kg_per_yr[t * k + j], lean.yield_mm[t], c.area_ha, setup.params.min_runoff_mm)
-                        .unwrap_or(f64::NAN);
+                mv.vars[2 + j][t][m] = lean.concentrations_mg_per_l[t * k + j].unwrap_or(f64::NAN);
             }
             mv.vars[2 + k][t][m] = 0.0;
         }

@@ -20,6 +20,7 @@ pub fn finish_basin(dir: &Path, partials: &Partials, summary_rows: &[Vec<Vec<Str
             open_export_kg_per_ha_yr: 0.0,
             forest_export_kg_per_ha_yr: 0.0,
             guideline_mg_per_l: *g,
+            cq: crate::model::dilution::ConcentrationDischarge::PURE_DILUTION,
         })
         .collect();
     let mut summary = CsvOut::create(&dir.join("summary.csv"), &tables::summary_header(&contaminants))?;

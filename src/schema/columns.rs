@@ -54,9 +54,26 @@ pub mod flags {
     /// Separator between flags.
     pub const SEPARATOR: char = ';';
 
+    /// Prefix of `above-ceiling:<contaminant>`: the computed concentration is above the
+    /// stated ceiling (`model::dilution::ConcentrationCeiling`), so it is not stated.
+    pub const ABOVE_CEILING: &str = "above-ceiling";
+
     /// `low-runoff:<contaminant>`.
     pub fn low_runoff(contaminant: &str) -> String {
         format!("{LOW_RUNOFF}:{contaminant}")
+    }
+
+    /// `above-ceiling:<contaminant>`.
+    pub fn above_ceiling(contaminant: &str) -> String {
+        format!("{ABOVE_CEILING}:{contaminant}")
+    }
+
+    /// The flag of a concentration that is not stated.
+    pub fn concentration(flag: crate::model::dilution::ScreenedFlag, contaminant: &str) -> String {
+        match flag {
+            crate::model::dilution::ScreenedFlag::LowRunoff => low_runoff(contaminant),
+            crate::model::dilution::ScreenedFlag::AboveCeiling => above_ceiling(contaminant),
+        }
     }
 }
 
@@ -458,6 +475,11 @@ mod tests {
             ["catchment", "strategy", "member", "year", "yield_mm", "yield_change_pct", "a_mg_per_l", "control_cost", "water_saved_m3"]
         );
         assert_eq!(flags::low_runoff("a"), "low-runoff:a");
+        assert_eq!(flags::above_ceiling("a"), "above-ceiling:a");
+        use crate::model::dilution::ScreenedFlag;
+        for f in [ScreenedFlag::LowRunoff, ScreenedFlag::AboveCeiling] {
+            assert_eq!(flags::concentration(f, "no3"), format!("{}:no3", f.name()));
+        }
     }
 
     #[test]

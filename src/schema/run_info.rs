@@ -171,6 +171,10 @@ impl CanopyClosure {
 /// A contaminant as recorded.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct ContaminantInfo {
+    /// Concentration–discharge exponent `b` of the diffuse load (−1 pure dilution;
+    /// runs written before the key existed were pure dilution).
+    #[serde(default = "pure_dilution_exponent")]
+    pub cq_exponent: f64,
     /// Export coefficient under conifer canopy, kg/ha/yr.
     pub forest_export_kg_per_ha_yr: f64,
     /// Guideline, mg/L.
@@ -185,12 +189,18 @@ pub struct ContaminantInfo {
 impl From<&crate::model::Contaminant> for ContaminantInfo {
     fn from(c: &crate::model::Contaminant) -> ContaminantInfo {
         ContaminantInfo {
+            cq_exponent: c.cq.exponent(),
             forest_export_kg_per_ha_yr: c.forest_export_kg_per_ha_yr,
             guideline_mg_per_l: c.guideline_mg_per_l,
             name: c.name.clone(),
             open_export_kg_per_ha_yr: c.open_export_kg_per_ha_yr,
         }
     }
+}
+
+/// The exponent of runs recorded before `cq_exponent` existed: pure dilution.
+fn pure_dilution_exponent() -> f64 {
+    crate::model::dilution::ConcentrationDischarge::PURE_DILUTION.exponent()
 }
 
 /// Ensemble settings.
@@ -503,6 +513,7 @@ mod tests {
             cautions: "Screening only.".into(),
             climate_table: None,
             contaminants: vec![ContaminantInfo {
+                cq_exponent: -0.5,
                 forest_export_kg_per_ha_yr: 2.2,
                 guideline_mg_per_l: Some(1.5),
                 name: "nitrate_n".into(),

@@ -28,8 +28,10 @@ pub fn params() -> ModelParams {
             open_export_kg_per_ha_yr: 10.0,
             forest_export_kg_per_ha_yr: 10.0,
             guideline_mg_per_l: Some(5.0),
+            cq: yieldshift::model::dilution::ConcentrationDischarge::PURE_DILUTION,
         }],
         min_runoff_mm: 1.0,
+        concentration_ceiling: yieldshift::model::dilution::ConcentrationCeiling::DEFAULT,
     }
 }
 
