@@ -290,3 +290,73 @@ fn projection_year_zero_is_the_baseline_and_loss_grows() {
     assert!(y.iter().all(|r| r.uninvaded_yield_mm >= r.baseline_yield_mm - 1e-9));
     assert!(y[40].yield_change_pct().unwrap() < -5.0);
 }
+
+/// Wet, ordinary and dry years around a catchment of 1200 mm rain, 900 mm PET.
+fn wet_and_dry_years() -> Vec<ClimateYear> {
+    [1200.0, 2100.0, 600.0, 1200.0, 1500.0, 450.0, 900.0].iter().map(|&rain_mm| ClimateYear { rain_mm, pet_mm: 900.0 }).collect()
+}
+
+#[test]
+fn chemostatic_diffuse_concentration_is_the_same_in_wet_and_dry_years() {
+    // Source: Godsey, Kirchner & Clow (2009), Hydrol. Process. 23, 1844–1864: a
+    // concentration–discharge exponent b ≈ 0 is chemostatic, concentration
+    // independent of discharge. No invader and no point source, so the diffuse
+    // concentration must be 100·e/Q̄ mg/L in every year whatever the runoff.
+    use yieldshift::model::dilution::ConcentrationDischarge;
+    use yieldshift::model::projection::long_term_mean_yield_mm;
+    let mut p = params();
+    p.contaminants[0].cq = ConcentrationDischarge::CHEMOSTATIC;
+    let c = tussock(1000.0, 1200.0, 900.0, 0.0, ClassAreas::default());
+    let years = project_catchment(&c, &wet_and_dry_years(), &p, 2030);
+    let q_mean = long_term_mean_yield_mm(&c, &p, 0.0);
+    let expected = concentration_from_depth_mg_per_l(10.0, q_mean).unwrap();
+    let (dry, wet) = (years[5].yield_mm, years[1].yield_mm);
+    assert!(wet > 3.0 * dry, "the years must differ in runoff: {dry} vs {wet}");
+    for y in &years {
+        assert_abs_diff_eq!(y.concentrations[0].unwrap(), expected, epsilon = 1e-12 * expected);
+        // The load follows the flow instead: L = L̄·Q/Q̄.
+        assert_abs_diff_eq!(y.loads_kg_per_yr[0], 10.0 * 1000.0 * y.yield_mm / q_mean, epsilon = 1e-9 * y.loads_kg_per_yr[0]);
+    }
+}
+
+#[test]
+fn pure_dilution_default_gives_todays_fixed_load_numbers() {
+    // Derived (unit conversion, Johnes 1996 export coefficients): with b = −1 the load
+    // is A·[f·e_forest + (1 − f)·e_open] + L_point in every year and C = 1000·L/V,
+    // bit for bit as before the exponent existed.
+    let p = params();
+    let mut c = tussock(2000.0, 1200.0, 900.0, 1800.0, ClassAreas { scattered_ha: 120.0, medium_ha: 60.0, dense_ha: 30.0 });
+    c.point_kg_per_yr = vec![250.0];
+    for y in project_catchment(&c, &wet_and_dry_years(), &p, 2030) {
+        let m = &p.contaminants[0];
+        let load = load_kg_per_yr(c.area_ha, y.canopy_fraction, m.open_export_kg_per_ha_yr, m.forest_export_kg_per_ha_yr, 250.0);
+        assert_eq!(y.loads_kg_per_yr[0], load);
+        let today = concentration_mg_per_l(load, volume_m3(y.yield_mm, c.area_ha), c.area_ha, p.min_runoff_mm).unwrap();
+        assert_eq!(y.concentrations[0], Ok(today));
+    }
+}
+
+#[test]
+fn a_near_dry_year_is_flagged_above_the_ceiling_instead_of_stated() {
+    // Derived: C = 100·l/Q (1 mm over 1 ha = 10 m³). A fixed load of l kg/ha/yr in a
+    // near-dry year of Q mm would read 250 mg/L when l = 2.5·Q; that is far above
+    // 10× the long-term mean 100·l/Q̄, so the year is flagged, not stated.
+    use yieldshift::model::dilution::{ConcentrationCeiling, ScreenedFlag};
+    let mut p = params();
+    let c = tussock(1000.0, 1200.0, 900.0, 0.0, ClassAreas::default());
+    let dry = [ClimateYear { rain_mm: 1200.0, pet_mm: 900.0 }, ClimateYear { rain_mm: 200.0, pet_mm: 900.0 }];
+    let q_dry = project_catchment(&c, &dry, &p, 2030)[1].yield_mm;
+    assert!(q_dry > p.min_runoff_mm, "the dry year must not be low-runoff: {q_dry} mm");
+    let l = 2.5 * q_dry;
+    p.contaminants[0].open_export_kg_per_ha_yr = l;
+    p.contaminants[0].forest_export_kg_per_ha_yr = l;
+    p.concentration_ceiling = ConcentrationCeiling::NONE;
+    let unscreened = project_catchment(&c, &dry, &p, 2030);
+    assert_abs_diff_eq!(unscreened[1].concentrations[0].unwrap(), 250.0, epsilon = 1e-9);
+    p.concentration_ceiling = ConcentrationCeiling::DEFAULT;
+    let screened = project_catchment(&c, &dry, &p, 2030);
+    assert_eq!(screened[1].concentrations[0], Err(ScreenedFlag::AboveCeiling));
+    // The ordinary year is stated, and the same in both.
+    assert_eq!(screened[0].concentrations[0], unscreened[0].concentrations[0]);
+    assert!(screened[0].concentrations[0].is_ok());
+}

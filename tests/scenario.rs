@@ -279,3 +279,19 @@ fn an_observed_six_percent_areal_growth_is_what_the_projection_gives() {
     let e = load_scenario(&s).unwrap_err().to_string();
     assert!(e.contains("key 'invasion.areal_growth_rate_per_yr'") && e.contains("not both"), "{e}");
 }
+
+#[test]
+fn cq_exponent_defaults_to_pure_dilution_and_is_checked_naming_line_and_key() {
+    use yieldshift::model::dilution::ConcentrationDischarge;
+    let tmp = tempfile::tempdir().unwrap();
+    let c = "[[contaminant]]\nname = \"no3\"\nopen_export_kg_per_ha_yr = 2\nforest_export_kg_per_ha_yr = 1\n\n\
+             [[contaminant]]\nname = \"srp\"\nopen_export_kg_per_ha_yr = 0.2\nforest_export_kg_per_ha_yr = 0.1\ncq_exponent = 0\n";
+    let sc = load_scenario(&write(tmp.path(), c)).unwrap();
+    assert_eq!(sc.params.contaminants[0].cq, ConcentrationDischarge::PURE_DILUTION);
+    assert_eq!(sc.params.contaminants[1].cq, ConcentrationDischarge::CHEMOSTATIC);
+    let bad = c.replace("cq_exponent = 0", "cq_exponent = 2.5");
+    let e = load_scenario(&write(tmp.path(), &bad)).unwrap_err();
+    let msg = e.to_string();
+    assert!(e.is_invalid_input());
+    assert!(msg.contains("s.toml") && msg.contains("line 13, key 'contaminant[2].cq_exponent'"), "{msg}");
+}

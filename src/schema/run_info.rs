@@ -633,4 +633,23 @@ mod tests {
         let curves: CoverCurves = Curves::Fu { omega_forest: 3.0, omega_grass: 2.0 }.into();
         assert_eq!(curves, CoverCurves::Fu { omega_forest: 3.0, omega_grass: 2.0 });
     }
+
+    #[test]
+    fn a_run_written_before_the_exponent_existed_reads_as_pure_dilution() {
+        let info = example(
+            CanopyClosure::Logistic {
+                curve: LogisticCurve::Logistic,
+                half_closure_age_yr: 12.0,
+                max_fraction: 1.0,
+                steepness_per_yr: 0.35,
+            },
+            Curves::Zhang { w_forest: 2.0, w_grass: 0.5 },
+        );
+        let text = info.to_json().unwrap();
+        assert!(text.contains("\"cq_exponent\": -0.5"), "{text}");
+        let older = text.replace("\"cq_exponent\": -0.5,", "");
+        assert_ne!(older, text);
+        let read = parse_json::<RunInfo>(Path::new("run_info.json"), &older).unwrap();
+        assert_eq!(read.contaminants[0].cq_exponent, -1.0);
+    }
 }
