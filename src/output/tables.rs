@@ -312,6 +312,58 @@ pub fn write_run_info(dir: &Path, info: &impl serde::Serialize) -> Result<()> {
 mod tests {
     use super::*;
 
+    #[test]
+    fn a_concentration_above_the_ceiling_is_an_empty_cell_and_a_flag() {
+        use crate::model::cover::ClassAreas;
+        use crate::model::dilution::{ConcentrationDischarge, ScreenedFlag};
+        let m = |name: &str| Contaminant {
+            name: name.into(),
+            open_export_kg_per_ha_yr: 1.0,
+            forest_export_kg_per_ha_yr: 1.0,
+            guideline_mg_per_l: None,
+            cq: ConcentrationDischarge::PURE_DILUTION,
+        };
+        let contaminants = [m("no3"), m("srp"), m("ecoli")];
+        let c = Catchment {
+            id: "a".into(),
+            name: "A".into(),
+            area_ha: 10.0,
+            rain_mm: 1000.0,
+            pet_mm: 800.0,
+            pet_forest_mm: None,
+            vulnerable_ha: 0.0,
+            infested: ClassAreas::default(),
+            stand_ages_ha: None,
+            forest_ha: 0.0,
+            flows_to: None,
+            point_kg_per_yr: vec![0.0; 3],
+            curves: None,
+        };
+        let y = YearResult {
+            year: 2030,
+            rain_mm: 300.0,
+            pet_mm: 800.0,
+            et_mm: 298.0,
+            yield_mm: 2.0,
+            yield_m3: 200.0,
+            baseline_yield_mm: 2.0,
+            uninvaded_yield_mm: 2.0,
+            canopy_fraction: 0.0,
+            classes: ClassAreas::default(),
+            new_infestation_ha: 0.0,
+            loads_kg_per_yr: vec![10.0, 1.0, 2.0],
+            concentrations: vec![Err(ScreenedFlag::AboveCeiling), Ok(5.0), Err(ScreenedFlag::LowRunoff)],
+        };
+        let f = yearly_fields(&c, "no-control", &y, &ControlCells::default(), &contaminants);
+        let header = yearly_header(&contaminants);
+        assert_eq!(f.len(), header.len());
+        let cell = |col: &str| f[header.iter().position(|h| h == col).unwrap()].as_str();
+        assert_eq!(cell("no3_mg_per_l"), "");
+        assert_eq!(cell("srp_mg_per_l"), "5.00000");
+        assert_eq!(cell("ecoli_mg_per_l"), "");
+        assert_eq!(cell(columns::FLAGS), "above-ceiling:no3;low-runoff:ecoli");
+    }
+
     /// The hand quoting this crate used before it wrote through the csv crate:
     /// quote a field holding a comma, quote, CR or LF; double the quotes.
     fn hand_quoted(fields: &[&str]) -> String {
