@@ -259,7 +259,7 @@ fn network_sums_conserve_mass() {
         .collect();
     let net = Network::new(vec![Some(2), Some(2), Some(3), None]).unwrap();
     let proj: Vec<_> = cs.iter().map(|c| project_catchment(c, &[c.mean_climate(); 11], &p, 2030)).collect();
-    let nodes = node_totals(&net, &cs, &proj, 1, 1.0);
+    let nodes = node_totals(&net, &cs, &proj, 1, 1.0, &yieldshift::model::dilution::ConcentrationCeiling::DEFAULT);
     assert_eq!(nodes.iter().map(|n| n.0).collect::<Vec<_>>(), vec![2, 3]);
     let outlet = &nodes[1].1;
     for t in 0..11 {
@@ -359,4 +359,30 @@ fn a_near_dry_year_is_flagged_above_the_ceiling_instead_of_stated() {
     // The ordinary year is stated, and the same in both.
     assert_eq!(screened[0].concentrations[0], unscreened[0].concentrations[0]);
     assert!(screened[0].concentrations[0].is_ok());
+}
+
+#[test]
+fn a_receiving_node_in_a_near_dry_year_is_flagged_above_the_ceiling() {
+    // Derived: the pooled concentration 1000·ΣL/ΣV is screened against 10× the pooled
+    // long-term mean 1000·ΣL̄/ΣV̄, as for one catchment.
+    use yieldshift::model::dilution::{ConcentrationCeiling, ScreenedFlag};
+    let p = params();
+    let cs: Vec<_> = (0..2)
+        .map(|i| {
+            let mut c = tussock(1000.0, 1200.0, 900.0, 0.0, ClassAreas::default());
+            c.id = format!("c{i}");
+            c
+        })
+        .collect();
+    let net = Network::new(vec![Some(1), None]).unwrap();
+    let climate = [ClimateYear { rain_mm: 1200.0, pet_mm: 900.0 }, ClimateYear { rain_mm: 200.0, pet_mm: 900.0 }];
+    let proj: Vec<_> = cs.iter().map(|c| project_catchment(c, &climate, &p, 2030)).collect();
+    assert!(proj[0][1].yield_mm > p.min_runoff_mm);
+    let screened = node_totals(&net, &cs, &proj, 1, 1.0, &ConcentrationCeiling::DEFAULT);
+    let unscreened = node_totals(&net, &cs, &proj, 1, 1.0, &ConcentrationCeiling::NONE);
+    let (wet, dry) = (&unscreened[0].1[0], &unscreened[0].1[1]);
+    let mean_c = wet.concentrations[0].unwrap();
+    assert!(dry.concentrations[0].unwrap() > 10.0 * mean_c, "{dry:?}");
+    assert_eq!(screened[0].1[1].concentrations[0], Err(ScreenedFlag::AboveCeiling));
+    assert_eq!(screened[0].1[0].concentrations[0], Ok(mean_c));
 }

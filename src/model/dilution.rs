@@ -325,9 +325,33 @@ pub fn concentration_at_flow_mg_per_l(
     ceiling: &ConcentrationCeiling,
 ) -> Result<f64, ScreenedFlag> {
     let load = load_at_flow_kg_per_yr(diffuse_mean_kg_per_yr, point_kg_per_yr, cq, runoff);
-    let c = concentration_mg_per_l(load, volume_m3(runoff.yield_mm, runoff.area_ha), runoff.area_ha, min_runoff_mm)?;
-    let mean_volume_m3 = volume_m3(runoff.mean_yield_mm, runoff.area_ha);
-    let mean_c = (mean_volume_m3 > 0.0).then(|| 1000.0 * (diffuse_mean_kg_per_yr + point_kg_per_yr) / mean_volume_m3);
+    screened_concentration_mg_per_l(
+        load,
+        volume_m3(runoff.yield_mm, runoff.area_ha),
+        runoff.area_ha,
+        min_runoff_mm,
+        diffuse_mean_kg_per_yr + point_kg_per_yr,
+        volume_m3(runoff.mean_yield_mm, runoff.area_ha),
+        ceiling,
+    )
+}
+
+/// Concentration, mg/L, of `load_kg_per_yr` in `volume_m3` over `area_ha`, screened:
+/// `Err(LowRunoff)` as [`concentration_mg_per_l`], `Err(AboveCeiling)` when it exceeds
+/// `ceiling`, whose ratio test compares with `1000·L̄/V̄` (the mean load
+/// `mean_load_kg_per_yr` in the mean volume `mean_volume_m3`; left out when `V̄ ≤ 0`).
+/// Used for one catchment and for the pooled flow of a receiving node alike.
+pub fn screened_concentration_mg_per_l(
+    load_kg_per_yr: f64,
+    volume_m3: f64,
+    area_ha: f64,
+    min_runoff_mm: f64,
+    mean_load_kg_per_yr: f64,
+    mean_volume_m3: f64,
+    ceiling: &ConcentrationCeiling,
+) -> Result<f64, ScreenedFlag> {
+    let c = concentration_mg_per_l(load_kg_per_yr, volume_m3, area_ha, min_runoff_mm)?;
+    let mean_c = (mean_volume_m3 > 0.0).then(|| 1000.0 * mean_load_kg_per_yr / mean_volume_m3);
     if ceiling.exceeded(c, mean_c) {
         Err(ScreenedFlag::AboveCeiling)
     } else {

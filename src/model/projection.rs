@@ -67,6 +67,10 @@ pub struct YearResult {
     pub new_infestation_ha: f64,
     /// Load of each contaminant (scenario order), kg/yr.
     pub loads_kg_per_yr: Vec<f64>,
+    /// Long-term mean runoff volume `V̄ = 10·Q̄·A` the ceiling refers to, m³/yr.
+    pub mean_volume_m3: f64,
+    /// Long-term mean load of each contaminant with the year's cover, `L̄_d + L_point`, kg/yr.
+    pub mean_loads_kg_per_yr: Vec<f64>,
     /// Concentration of each contaminant, mg/L, or why it is not stated.
     pub concentrations: Vec<Result<f64, ScreenedFlag>>,
 }
@@ -157,10 +161,12 @@ pub fn year_result(
     let runoff = Runoff { yield_mm, mean_yield_mm: long_term_mean_yield_mm(c, p, f_baseline), area_ha: c.area_ha };
     let mut loads = Vec::with_capacity(p.contaminants.len());
     let mut concentrations = Vec::with_capacity(p.contaminants.len());
+    let mut mean_loads = Vec::with_capacity(p.contaminants.len());
     for (k, m) in p.contaminants.iter().enumerate() {
         let diffuse = dilution::load_kg_per_yr(c.area_ha, f, m.open_export_kg_per_ha_yr, m.forest_export_kg_per_ha_yr, 0.0);
         let point = c.point_kg_per_yr.get(k).copied().unwrap_or(0.0);
         loads.push(dilution::load_at_flow_kg_per_yr(diffuse, point, m.cq, runoff));
+        mean_loads.push(diffuse + point);
         concentrations.push(dilution::concentration_at_flow_mg_per_l(
             diffuse,
             point,
@@ -183,6 +189,8 @@ pub fn year_result(
         classes,
         new_infestation_ha,
         loads_kg_per_yr: loads,
+        mean_volume_m3: dilution::volume_m3(runoff.mean_yield_mm, c.area_ha),
+        mean_loads_kg_per_yr: mean_loads,
         concentrations,
     }
 }

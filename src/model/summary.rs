@@ -15,8 +15,9 @@
 //! * `A_m = Σ_{i∈U(m)} A_i` (ha), `V_m = Σ V_i` and `V_base,m = Σ 10·Q_base,i·A_i`
 //!   (m³/yr), `L_m = Σ L_i` (kg/yr);
 //! * flow-weighted concentration `C_m = 1000·L_m / V_m` mg/L, not stated when the
-//!   depth `V_m / (10·A_m)` is below the minimum runoff
-//!   ([`super::dilution::concentration_mg_per_l`]).
+//!   depth `V_m / (10·A_m)` is below the minimum runoff, nor above the ceiling, whose
+//!   mean is `1000·Σ L̄_i / Σ V̄_i` (the long-term mean loads and volumes of the
+//!   upstream catchments; [`super::dilution::screened_concentration_mg_per_l`]).
 //!
 //! # Symbols
 //! * `Q_t`, `Q_base,t`, `Q_u,t` — yield, baseline yield (starting cover held) and
@@ -37,7 +38,7 @@
 //! [`super::dilution`].
 
 use super::catchment::{Catchment, Contaminant};
-use super::dilution::{self, ScreenedFlag};
+use super::dilution::{self, ConcentrationCeiling, ScreenedFlag};
 use super::network::Network;
 use super::projection::{percent_change, YearResult};
 
@@ -125,6 +126,7 @@ pub fn node_totals(
     projections: &[Vec<YearResult>],
     n_contaminants: usize,
     min_runoff_mm: f64,
+    ceiling: &ConcentrationCeiling,
 ) -> Vec<(usize, Vec<NodeYear>)> {
     let nodes = network.receiving_nodes();
     if nodes.is_empty() || projections.is_empty() {
@@ -141,11 +143,27 @@ pub fn node_totals(
         let loads: Vec<Vec<f64>> = (0..n_contaminants)
             .map(|k| network.accumulate(&projections.iter().map(|p| p[t].loads_kg_per_yr[k]).collect::<Vec<_>>()))
             .collect();
+        let mean_vol = network.accumulate(&projections.iter().map(|p| p[t].mean_volume_m3).collect::<Vec<_>>());
+        let mean_loads: Vec<Vec<f64>> = (0..n_contaminants)
+            .map(|k| {
+                network
+                    .accumulate(&projections.iter().map(|p| p[t].mean_loads_kg_per_yr.get(k).copied().unwrap_or(0.0)).collect::<Vec<_>>())
+            })
+            .collect();
         for (n, rows) in out.iter_mut() {
             let node_loads: Vec<f64> = loads.iter().map(|l| l[*n]).collect();
-            let concentrations = node_loads
-                .iter()
-                .map(|&l| dilution::concentration_mg_per_l(l, vol[*n], area[*n], min_runoff_mm).map_err(ScreenedFlag::from))
+            let concentrations = (0..n_contaminants)
+                .map(|k| {
+                    dilution::screened_concentration_mg_per_l(
+                        node_loads[k],
+                        vol[*n],
+                        area[*n],
+                        min_runoff_mm,
+                        mean_loads[k][*n],
+                        mean_vol[*n],
+                        ceiling,
+                    )
+                })
                 .collect();
             rows.push(NodeYear {
                 year: projections[0][t].year,

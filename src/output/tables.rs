@@ -352,6 +352,8 @@ mod tests {
             classes: ClassAreas::default(),
             new_infestation_ha: 0.0,
             loads_kg_per_yr: vec![10.0, 1.0, 2.0],
+            mean_volume_m3: 2000.0,
+            mean_loads_kg_per_yr: vec![10.0, 1.0, 2.0],
             concentrations: vec![Err(ScreenedFlag::AboveCeiling), Ok(5.0), Err(ScreenedFlag::LowRunoff)],
         };
         let f = yearly_fields(&c, "no-control", &y, &ControlCells::default(), &contaminants);

@@ -209,6 +209,10 @@ impl StrategySums {
                         })
                         .collect(),
                     loads_kg_per_yr: loads,
+                    // The basin row is screened by the minimum runoff only (no
+                    // long-term mean volume: the ratio ceiling is left out).
+                    mean_volume_m3: 0.0,
+                    mean_loads_kg_per_yr: Vec::new(),
                 }
             })
             .collect();

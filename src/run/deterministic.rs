@@ -283,7 +283,9 @@ fn write_nodes(nodes: &mut CsvOut, s: &Scenario, strategy: &str, kept: Vec<Optio
     let projections: Vec<Vec<YearResult>> =
         kept.into_iter().map(|p| p.unwrap_or_else(|| zero_years(s.start_year, n_years, contaminants.len()))).collect();
     let counts = s.network.upstream_counts();
-    for (n, rows) in node_totals(&s.network, &s.catchments, &projections, contaminants.len(), s.params.min_runoff_mm) {
+    for (n, rows) in
+        node_totals(&s.network, &s.catchments, &projections, contaminants.len(), s.params.min_runoff_mm, &s.params.concentration_ceiling)
+    {
         for y in &rows {
             let f = tables::node_fields(&s.catchments[n].id, strategy, counts[n], y, contaminants);
             nodes.row(f.iter().map(String::as_str))?;
@@ -337,6 +339,8 @@ fn zero_years(start_year: i32, n: usize, k: usize) -> Vec<YearResult> {
             classes: Default::default(),
             new_infestation_ha: 0.0,
             loads_kg_per_yr: vec![0.0; k],
+            mean_volume_m3: 0.0,
+            mean_loads_kg_per_yr: vec![0.0; k],
             concentrations: vec![Ok(0.0); k],
         })
         .collect()
