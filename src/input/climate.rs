@@ -256,21 +256,7 @@ mod tests {
     use crate::model::cover::ClassAreas;
 
     fn catchment(id: &str) -> Catchment {
-        Catchment {
-            id: id.into(),
-            name: id.into(),
-            area_ha: 100.0,
-            rain_mm: 1000.0,
-            pet_mm: 700.0,
-            pet_forest_mm: None,
-            vulnerable_ha: 50.0,
-            infested: ClassAreas::default(),
-            stand_ages_ha: None,
-            forest_ha: 0.0,
-            flows_to: None,
-            point_kg_per_yr: vec![],
-            curves: None,
-        }
+        crate::model::catchment::test_catchment(id, 50.0, ClassAreas::default())
     }
 
     #[test]

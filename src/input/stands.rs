@@ -139,23 +139,7 @@ mod tests {
     use super::*;
     use crate::model::cover::ClassAreas;
 
-    fn catchment(id: &str, vulnerable_ha: f64, infested: ClassAreas) -> Catchment {
-        Catchment {
-            id: id.into(),
-            name: id.into(),
-            area_ha: 1000.0,
-            rain_mm: 1200.0,
-            pet_mm: 800.0,
-            pet_forest_mm: None,
-            vulnerable_ha,
-            infested,
-            stand_ages_ha: None,
-            forest_ha: 0.0,
-            flows_to: None,
-            point_kg_per_yr: vec![],
-            curves: None,
-        }
-    }
+    use crate::model::catchment::test_catchment as catchment;
 
     fn write(text: &str) -> (tempfile::TempDir, std::path::PathBuf) {
         let dir = tempfile::tempdir().unwrap();

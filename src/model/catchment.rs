@@ -119,6 +119,27 @@ pub struct ModelParams {
     pub concentration_ceiling: ConcentrationCeiling,
 }
 
+/// A plain open catchment for unit tests of the readers (1,000 ha, 1,200 mm rain,
+/// 800 mm PET, no forest, no network, no point loads).
+#[cfg(test)]
+pub(crate) fn test_catchment(id: &str, vulnerable_ha: f64, infested: ClassAreas) -> Catchment {
+    Catchment {
+        id: id.into(),
+        name: id.into(),
+        area_ha: 1000.0,
+        rain_mm: 1200.0,
+        pet_mm: 800.0,
+        pet_forest_mm: None,
+        vulnerable_ha,
+        infested,
+        stand_ages_ha: None,
+        forest_ha: 0.0,
+        flows_to: None,
+        point_kg_per_yr: vec![],
+        curves: None,
+    }
+}
+
 impl Catchment {
     /// The starting cohorts: from the dated stands when given, otherwise from the
     /// areas by density class.
