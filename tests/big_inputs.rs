@@ -60,7 +60,10 @@ fn a_hundred_thousand_catchments_validate_and_run() {
     let per_catchment = count_lines(&out.join("yearly.csv"), |l| l.starts_with('c') && l.as_bytes().get(7) == Some(&b','));
     assert_eq!(per_catchment, ROWS * 2);
     let summaries = count_lines(&out.join("summary.csv"), |l| l.starts_with('c') && l.as_bytes().get(7) == Some(&b','));
-    assert_eq!(summaries, ROWS);
+    // One local row per catchment and one arriving row per receiving node.
+    assert_eq!(summaries, ROWS + ROWS / GROUP);
+    let arriving = count_lines(&out.join("summary.csv"), |l| l.contains(",arriving,"));
+    assert_eq!(arriving, ROWS / GROUP);
 
     // A row far down the file holds what the model gives for that catchment.
     let k = 98_765;

@@ -164,11 +164,11 @@ fn fixed_parameters_and_no_climate_variability_collapse_onto_the_deterministic_r
     let mut checked = 0;
     for line in yearly.lines().skip(1) {
         let f: Vec<&str> = line.split(',').collect();
-        let key = format!("{},{},{},yield_mm,", f[0], f[1], f[2]);
+        let key = format!("{},local,{},{},yield_mm,", f[0], f[1], f[2]);
         let row = ens.lines().find(|l| l.starts_with(&key)).unwrap_or_else(|| panic!("{key}"));
         let e: Vec<&str> = row.split(',').collect();
         let det: f64 = f[col("yield_mm")].parse().unwrap();
-        for q in &e[4..10] {
+        for q in &e[5..11] {
             let v: f64 = q.parse().unwrap();
             assert_abs_diff_eq!(v, det, epsilon = 1e-3);
         }
@@ -202,10 +202,10 @@ fn same_seed_gives_identical_bytes_with_one_or_two_threads() {
         assert!(a == b, "{f} differs between 1 and 2 threads");
     }
     let ens = std::fs::read_to_string(outputs[0].join("ensemble.csv")).unwrap();
-    assert!(ens.starts_with("catchment,strategy,year,variable,p5,p25,p50,p75,p95,mean,members,prob_above_guideline\n"));
+    assert!(ens.starts_with("catchment,scope,strategy,year,variable,p5,p25,p50,p75,p95,mean,members,prob_above_guideline\n"));
     // Bands are ordered and not degenerate for yield.
-    let row = ens.lines().find(|l| l.starts_with("cairn,no-control,2057,yield_mm,")).unwrap();
-    let q: Vec<f64> = row.split(',').skip(4).take(5).map(|v| v.parse().unwrap()).collect();
+    let row = ens.lines().find(|l| l.starts_with("cairn,local,no-control,2057,yield_mm,")).unwrap();
+    let q: Vec<f64> = row.split(',').skip(5).take(5).map(|v| v.parse().unwrap()).collect();
     assert!(q.windows(2).all(|w| w[0] <= w[1]) && q[4] > q[0], "{row}");
     let sens = std::fs::read_to_string(outputs[0].join("sensitivity.csv")).unwrap();
     assert!(sens.lines().any(|l| l.starts_with("basin,no-control,horizon,")));
@@ -313,8 +313,8 @@ fn calibrated_values_given_as_distributions_vary_only_their_catchments() {
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     let ens = std::fs::read_to_string(out.join("ensemble.csv")).unwrap();
     let band = |id: &str| -> Vec<String> {
-        let row = ens.lines().find(|l| l.starts_with(&format!("{id},no-control,2040,yield_mm,"))).unwrap();
-        row.split(',').skip(4).take(5).map(str::to_string).collect()
+        let row = ens.lines().find(|l| l.starts_with(&format!("{id},local,no-control,2040,yield_mm,"))).unwrap();
+        row.split(',').skip(5).take(5).map(str::to_string).collect()
     };
     assert_ne!(band("a")[0], band("a")[4], "a's calibrated w_grass is uncertain");
     assert_eq!(band("a"), band("c"), "c takes its donor's draws");

@@ -60,6 +60,11 @@ pub struct LeanYears {
     pub concentrations_mg_per_l: Vec<Option<f64>>,
     /// Canopy fraction per year.
     pub canopy_fraction: Vec<f64>,
+    /// Long-term mean load with the year's cover, `L̄_d,t + L_point`, kg/yr, `k` per year
+    /// (the reference of the concentration ceiling at a receiving node).
+    pub mean_loads_kg_per_yr: Vec<f64>,
+    /// Long-term mean yield `Q̄` the loads are scaled to, mm/yr.
+    pub mean_yield_mm: f64,
     closure: Vec<f64>,
 }
 
@@ -98,6 +103,7 @@ pub fn project_lean(c: &Catchment, climate: &[ClimateYear], p: &ModelParams, out
     out.loads_kg_per_yr.clear();
     out.concentrations_mg_per_l.clear();
     out.canopy_fraction.clear();
+    out.mean_loads_kg_per_yr.clear();
     let sb = inv.seed_bearing_age_yr as usize;
     let canopy = |areas: &[f64], rev: &[f64]| -> f64 {
         let off = max_age + 1 - areas.len();
@@ -107,6 +113,7 @@ pub fn project_lean(c: &Catchment, climate: &[ClimateYear], p: &ModelParams, out
     let mut seed = cohorts.area_at_least_age(sb);
     let f0 = ((c.forest_ha + canopy(cohorts.areas_oldest_first(), &out.closure)) / c.area_ha).clamp(0.0, 1.0);
     let mean_yield_mm = long_term_mean_yield_mm(c, p, f0);
+    out.mean_yield_mm = mean_yield_mm;
     for &cl in climate {
         let f = ((c.forest_ha + canopy(cohorts.areas_oldest_first(), &out.closure)) / c.area_ha).clamp(0.0, 1.0);
         let (et_f, et_g) = et_pair(curves, c, p, cl);
@@ -121,6 +128,7 @@ pub fn project_lean(c: &Catchment, climate: &[ClimateYear], p: &ModelParams, out
             let point = c.point_kg_per_yr.get(j).copied().unwrap_or(0.0);
             let diffuse = dilution::load_kg_per_yr(c.area_ha, f, m.open_export_kg_per_ha_yr, m.forest_export_kg_per_ha_yr, 0.0);
             out.loads_kg_per_yr.push(dilution::load_at_flow_kg_per_yr(diffuse, point, m.cq, runoff));
+            out.mean_loads_kg_per_yr.push(diffuse + point);
             out.concentrations_mg_per_l.push(
                 dilution::concentration_at_flow_mg_per_l(diffuse, point, m.cq, runoff, p.min_runoff_mm, &p.concentration_ceiling).ok(),
             );

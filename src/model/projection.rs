@@ -73,6 +73,10 @@ pub struct YearResult {
     pub mean_loads_kg_per_yr: Vec<f64>,
     /// Concentration of each contaminant, mg/L, or why it is not stated.
     pub concentrations: Vec<Result<f64, ScreenedFlag>>,
+    /// Load of each contaminant with no invader (cover `F/A`, uninvaded yield), kg/yr.
+    pub uninvaded_loads_kg_per_yr: Vec<f64>,
+    /// Concentration of each contaminant with no invader, mg/L, or why it is not stated.
+    pub uninvaded_concentrations: Vec<Result<f64, ScreenedFlag>>,
 }
 
 impl YearResult {
@@ -162,6 +166,10 @@ pub fn year_result(
     let mut loads = Vec::with_capacity(p.contaminants.len());
     let mut concentrations = Vec::with_capacity(p.contaminants.len());
     let mut mean_loads = Vec::with_capacity(p.contaminants.len());
+    let mut uninvaded_loads = Vec::with_capacity(p.contaminants.len());
+    let mut uninvaded_concentrations = Vec::with_capacity(p.contaminants.len());
+    // The uninvaded catchment's loads follow the same law about the same long-term mean flow.
+    let uninvaded_runoff = Runoff { yield_mm: uninvaded_yield_mm, ..runoff };
     for (k, m) in p.contaminants.iter().enumerate() {
         let diffuse = dilution::load_kg_per_yr(c.area_ha, f, m.open_export_kg_per_ha_yr, m.forest_export_kg_per_ha_yr, 0.0);
         let point = c.point_kg_per_yr.get(k).copied().unwrap_or(0.0);
@@ -172,6 +180,16 @@ pub fn year_result(
             point,
             m.cq,
             runoff,
+            p.min_runoff_mm,
+            &p.concentration_ceiling,
+        ));
+        let diffuse_u = dilution::load_kg_per_yr(c.area_ha, f_uninvaded, m.open_export_kg_per_ha_yr, m.forest_export_kg_per_ha_yr, 0.0);
+        uninvaded_loads.push(dilution::load_at_flow_kg_per_yr(diffuse_u, point, m.cq, uninvaded_runoff));
+        uninvaded_concentrations.push(dilution::concentration_at_flow_mg_per_l(
+            diffuse_u,
+            point,
+            m.cq,
+            uninvaded_runoff,
             p.min_runoff_mm,
             &p.concentration_ceiling,
         ));
@@ -192,5 +210,7 @@ pub fn year_result(
         mean_volume_m3: dilution::volume_m3(runoff.mean_yield_mm, c.area_ha),
         mean_loads_kg_per_yr: mean_loads,
         concentrations,
+        uninvaded_loads_kg_per_yr: uninvaded_loads,
+        uninvaded_concentrations,
     }
 }

@@ -11,7 +11,7 @@ use crate::error::{Error, Result};
 use crate::model::control::{BudgetYear, ControlYear};
 use crate::model::dilution::ScreenedFlag;
 use crate::model::economics::ProgrammeTotals;
-use crate::model::summary::{CatchmentSummary, NodeYear, REPORT_OFFSETS_YR};
+use crate::model::summary::{CatchmentSummary, GuidelineStatus, NodeYear, REPORT_OFFSETS_YR};
 use crate::model::{Catchment, Contaminant, YearResult};
 use crate::schema::columns::{self, flags};
 use crate::schema::numbers::{num, opt_num};
@@ -222,15 +222,35 @@ pub fn summary_header(contaminants: &[Contaminant]) -> Vec<String> {
     columns::summary::columns(&REPORT_OFFSETS_YR, &names(contaminants))
 }
 
+/// Who a `summary.csv` row describes: id, [`columns::scope`] word, display name and area (ha).
+#[derive(Debug, Clone, Copy)]
+pub struct SummaryWho<'a> {
+    /// Catchment id (the node's catchment for `arriving`, `basin` for the basin).
+    pub id: &'a str,
+    /// `local`, `arriving` or `basin`.
+    pub scope: &'a str,
+    /// Display name.
+    pub name: &'a str,
+    /// Area (drained area for `arriving`), ha.
+    pub area_ha: f64,
+}
+
+impl<'a> SummaryWho<'a> {
+    /// A catchment's own (local) row.
+    pub fn local(c: &'a Catchment) -> SummaryWho<'a> {
+        SummaryWho { id: &c.id, scope: columns::scope::LOCAL, name: &c.name, area_ha: c.area_ha }
+    }
+}
+
 /// Fields of one `summary.csv` row; `water_value_per_m3` enables NPV and BCR.
 pub fn summary_fields(
-    c: &Catchment,
+    who: SummaryWho,
     strategy: &str,
     s: &CatchmentSummary,
     totals: &ProgrammeTotals,
     water_value_per_m3: Option<f64>,
 ) -> Vec<String> {
-    let mut f = vec![c.id.clone(), c.name.clone(), strategy.to_string(), num(c.area_ha, 3)];
+    let mut f = vec![who.id.to_string(), who.scope.to_string(), who.name.to_string(), strategy.to_string(), num(who.area_ha, 3)];
     for v in &s.change_at_offsets_pct {
         f.push(opt_num(*v, 4));
     }
@@ -239,8 +259,12 @@ pub fn summary_fields(
     f.push(num(s.water_lost_at_horizon_m3, 1));
     f.push(num(s.canopy_fraction_start, 6));
     f.push(num(s.canopy_fraction_end, 6));
-    for y in &s.first_exceedance_year {
-        f.push(y.map(|y| y.to_string()).unwrap_or_default());
+    let year = |y: Option<i32>| y.map(|y| y.to_string()).unwrap_or_default();
+    for e in &s.exceedance {
+        f.push(e.status.word().to_string());
+        f.push(year(e.first_exceeded_year()));
+        f.push(year(e.invasion_first_year));
+        f.push(if e.status == GuidelineStatus::NoGuideline { String::new() } else { e.invasion_years.to_string() });
     }
     f.push(num(totals.cost, 2));
     f.push(num(totals.cost_pv, 2));
@@ -355,6 +379,8 @@ mod tests {
             mean_volume_m3: 2000.0,
             mean_loads_kg_per_yr: vec![10.0, 1.0, 2.0],
             concentrations: vec![Err(ScreenedFlag::AboveCeiling), Ok(5.0), Err(ScreenedFlag::LowRunoff)],
+            uninvaded_loads_kg_per_yr: vec![10.0, 1.0, 2.0],
+            uninvaded_concentrations: vec![Ok(1.0), Ok(5.0), Err(ScreenedFlag::LowRunoff)],
         };
         let f = yearly_fields(&c, "no-control", &y, &ControlCells::default(), &contaminants);
         let header = yearly_header(&contaminants);

@@ -77,12 +77,12 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
     type Values = Vec<(String, String, Option<f64>)>;
     let (col_label, year, values): (String, i32, Values) = match comparison_offset(d) {
         Some((i, o)) => (
-            format!("Yield change {o} years after the start ({}) vs baseline (%)", d.info.start_year + o),
+            format!("Yield change, 10-year mean to {} ({o} years after the start), vs baseline (%)", d.info.start_year + o),
             d.info.start_year + o,
             d.summary.iter().filter(|r| r.strategy == NO_CONTROL).map(|r| (r.catchment.clone(), r.name.clone(), r.at_offsets[i])).collect(),
         ),
         None => (
-            format!("Yield change at the horizon ({}) vs baseline (%)", d.info.end_year()),
+            format!("Yield change, 10-year mean to the horizon ({}), vs baseline (%)", d.info.end_year()),
             d.info.end_year(),
             d.summary
                 .iter()
@@ -94,7 +94,11 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
     let rows: Vec<CatchmentChange> = values
         .iter()
         .filter_map(|(id, name, v)| {
-            let range = d.ensemble.as_ref().and_then(|e| e.get(id, NO_CONTROL, "yield_change_pct", year)).map(|q| (q.p5, q.p95));
+            let range = d
+                .ensemble
+                .as_ref()
+                .and_then(|e| e.get(id, NO_CONTROL, crate::schema::columns::ensemble::YIELD_CHANGE_10YR_MEAN_PCT, year))
+                .map(|q| (q.p5, q.p95));
             v.map(|v| CatchmentChange {
                 name: if id == BASIN_ID { "Basin (all catchments)".to_string() } else { name.clone() },
                 change_pct: v,

@@ -42,7 +42,8 @@ impl Sum {
     pub fn value(self) -> f64 {
         self.0.value()
     }
-    fn merge(&mut self, o: Sum) {
+    /// Adds another sum.
+    pub fn merge(&mut self, o: Sum) {
         self.0.merge(o.0);
     }
 }
@@ -99,6 +100,9 @@ pub struct YearSums {
     dense: Sum,
     new_infestation: Sum,
     loads: Vec<Sum>,
+    /// Loads with no invader (`YearResult::uninvaded_loads_kg_per_yr`), kg/yr.
+    #[serde(default)]
+    uninvaded_loads: Vec<Sum>,
     cost: Sum,
     saved: Sum,
 }
@@ -120,7 +124,9 @@ impl StrategySums {
             name: name.to_string(),
             area_ha: Sum::default(),
             vulnerable_ha: Sum::default(),
-            years: (0..n_years).map(|_| YearSums { loads: vec![Sum::default(); k], ..Default::default() }).collect(),
+            years: (0..n_years)
+                .map(|_| YearSums { loads: vec![Sum::default(); k], uninvaded_loads: vec![Sum::default(); k], ..Default::default() })
+                .collect(),
         }
     }
 
@@ -143,6 +149,9 @@ impl StrategySums {
             b.dense.add(y.classes.dense_ha);
             b.new_infestation.add(y.new_infestation_ha);
             for (l, v) in b.loads.iter_mut().zip(&y.loads_kg_per_yr) {
+                l.add(*v);
+            }
+            for (l, v) in b.uninvaded_loads.iter_mut().zip(&y.uninvaded_loads_kg_per_yr) {
                 l.add(*v);
             }
             if let Some(cell) = cells.get(t) {
@@ -177,6 +186,9 @@ impl StrategySums {
             for (x, y) in a.loads.iter_mut().zip(&b.loads) {
                 x.merge(*y);
             }
+            for (x, y) in a.uninvaded_loads.iter_mut().zip(&b.uninvaded_loads) {
+                x.merge(*y);
+            }
         }
     }
 
@@ -190,6 +202,10 @@ impl StrategySums {
             .map(|(t, b)| {
                 let yield_m3 = b.yield_m3.value();
                 let loads: Vec<f64> = b.loads.iter().map(|l| l.value()).collect();
+                let uninvaded_loads: Vec<f64> = b.uninvaded_loads.iter().map(|l| l.value()).collect();
+                let uninvaded_m3 = dilution::volume_m3(b.uninvaded.value() / area, area);
+                let screen =
+                    |l: f64, v: f64| dilution::concentration_mg_per_l(l, v, area, meta.min_runoff_mm).map_err(dilution::ScreenedFlag::from);
                 YearResult {
                     year: meta.start_year + t as i32,
                     rain_mm: b.rain.value() / area,
@@ -202,13 +218,10 @@ impl StrategySums {
                     canopy_fraction: b.canopy.value() / area,
                     classes: ClassAreas { scattered_ha: b.scattered.value(), medium_ha: b.medium.value(), dense_ha: b.dense.value() },
                     new_infestation_ha: b.new_infestation.value(),
-                    concentrations: loads
-                        .iter()
-                        .map(|&l| {
-                            dilution::concentration_mg_per_l(l, yield_m3, area, meta.min_runoff_mm).map_err(dilution::ScreenedFlag::from)
-                        })
-                        .collect(),
+                    concentrations: loads.iter().map(|&l| screen(l, yield_m3)).collect(),
+                    uninvaded_concentrations: uninvaded_loads.iter().map(|&l| screen(l, uninvaded_m3)).collect(),
                     loads_kg_per_yr: loads,
+                    uninvaded_loads_kg_per_yr: uninvaded_loads,
                     // The basin row is screened by the minimum runoff only (no
                     // long-term mean volume: the ratio ceiling is left out).
                     mean_volume_m3: 0.0,
@@ -334,6 +347,72 @@ pub struct Partials {
     pub delays: Vec<DelaySums>,
     /// Ensemble basin sensitivity, if an ensemble ran with uncertain parameters.
     pub sensitivity: Option<SensitivitySums>,
+    /// Ensemble member sums of the whole basin, per strategy (empty without an ensemble).
+    #[serde(default)]
+    pub ensemble: Vec<EnsembleBasinSums>,
+}
+
+/// Member sums of the whole basin for one strategy: the `basin` rows of `ensemble.csv`.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct EnsembleBasinSums {
+    /// Strategy name.
+    pub strategy: String,
+    /// Basin area, ha.
+    pub area_ha: Sum,
+    /// `[member][year]`: yield volume (m³), baseline volume (m³), control cost ($).
+    pub years: Vec<Vec<[Sum; 3]>>,
+}
+
+impl EnsembleBasinSums {
+    /// Empty sums.
+    pub fn new(strategy: &str, members: usize, years: usize) -> EnsembleBasinSums {
+        EnsembleBasinSums { strategy: strategy.into(), area_ha: Sum::default(), years: vec![vec![[Sum::default(); 3]; years]; members] }
+    }
+
+    /// Adds a catchment's area.
+    pub fn add_area(&mut self, area_ha: f64) {
+        self.area_ha.add(area_ha);
+    }
+
+    /// Adds one catchment's member `m`, year `t`.
+    pub fn add(&mut self, m: usize, t: usize, volume_m3: f64, baseline_m3: f64, cost: f64) {
+        let y = &mut self.years[m][t];
+        y[0].add(volume_m3);
+        y[1].add(baseline_m3);
+        y[2].add(cost);
+    }
+
+    /// Adds member `m`'s sums over a set of catchments.
+    pub fn add_member(&mut self, m: usize, years: &[[Sum; 3]]) {
+        for (a, b) in self.years[m].iter_mut().zip(years) {
+            for (x, y) in a.iter_mut().zip(b) {
+                x.merge(*y);
+            }
+        }
+    }
+
+    fn merge(&mut self, o: &EnsembleBasinSums) {
+        self.area_ha.merge(o.area_ha);
+        for (m, ys) in o.years.iter().enumerate() {
+            self.add_member(m, ys);
+        }
+    }
+
+    /// The members' values for [`crate::run::bands::write_rows`].
+    fn member_values(&self, vars: crate::run::bands::Vars) -> crate::run::bands::MemberValues {
+        let n_years = self.years.first().map_or(0, Vec::len);
+        let mut mv = crate::run::bands::MemberValues::zeros(vars.len(), n_years, self.years.len());
+        let area = self.area_ha.value();
+        for (m, ys) in self.years.iter().enumerate() {
+            let flow: Vec<f64> = ys.iter().map(|y| y[0].value()).collect();
+            let base: Vec<f64> = ys.iter().map(|y| y[1].value()).collect();
+            mv.set_yield(m, &flow, &base, |v| v / (10.0 * area));
+            for (t, y) in ys.iter().enumerate() {
+                mv.vars[vars.cost()][t][m] = y[2].value();
+            }
+        }
+        mv
+    }
 }
 
 impl Partials {
@@ -352,6 +431,14 @@ impl Partials {
             (Some(a), Some(b)) => a.merge(b),
             (None, None) => {}
             _ => return Err(Error::invalid(crate::Problem::new("shards differ in their ensemble settings"))),
+        }
+        if self.ensemble.len() != o.ensemble.len()
+            || self.ensemble.iter().zip(&o.ensemble).any(|(a, b)| a.strategy != b.strategy || a.years.len() != b.years.len())
+        {
+            return Err(Error::invalid(crate::Problem::new("shards differ in their ensemble settings")));
+        }
+        for (a, b) in self.ensemble.iter_mut().zip(&o.ensemble) {
+            a.merge(b);
         }
         Ok(())
     }
@@ -375,7 +462,8 @@ impl Partials {
         let st = &self.strategies[k];
         let (c, years) = st.pooled(&self.meta);
         let sm = summarise(&c, &years, &self.contaminants());
-        tables::summary_fields(&c, &st.name, &sm, &st.totals(&self.meta), self.meta.water_value_per_m3)
+        let who = tables::SummaryWho { id: BASIN_ID, scope: crate::schema::columns::scope::BASIN, name: &c.name, area_ha: c.area_ha };
+        tables::summary_fields(who, &st.name, &sm, &st.totals(&self.meta), self.meta.water_value_per_m3)
     }
 
     /// Writes `delay.csv`.
@@ -506,6 +594,22 @@ impl Partials {
             n += 1;
         }
         Ok(n)
+    }
+
+    /// Appends the `basin` rows of every strategy to `ensemble.csv` (which holds the
+    /// `local` and `arriving` rows), from the exact member sums.
+    pub fn append_ensemble(&self, dir: &Path) -> Result<()> {
+        if self.ensemble.is_empty() {
+            return Ok(());
+        }
+        let layout = crate::run::bands::BandLayout::new(self.meta.start_year, &self.meta.contaminants);
+        let which = layout.vars.without_concentrations();
+        let mut out = CsvOut::append(&dir.join("ensemble.csv"), crate::schema::columns::ensemble::COLUMNS.len())?;
+        for e in &self.ensemble {
+            let mv = e.member_values(layout.vars);
+            crate::run::bands::write_rows(&mut out, &layout, BASIN_ID, crate::schema::columns::scope::BASIN, &e.strategy, &mv, &which)?;
+        }
+        out.finish()
     }
 
     /// Appends the basin rows to `sensitivity.csv` (which holds the catchment rows).

@@ -14,15 +14,15 @@ use crate::model::basin::project_basin;
 use crate::model::control::ControlYear;
 use crate::model::dilution;
 use crate::model::economics::ProgrammeTotals;
-use crate::model::summary::{node_totals, summarise, CatchmentSummary};
+use crate::model::summary::{node_totals, summarise, summarise_node, CatchmentSummary};
 use crate::model::{project_catchment, Catchment, YearResult};
 use crate::output::outdir::Staging;
-use crate::output::tables::{self, ControlCells, CsvOut};
+use crate::output::tables::{self, ControlCells, CsvOut, SummaryWho};
 use crate::plot::series::{CoverChart, Line, LineChart};
 use crate::plot::{palette, save_figure, Formats};
 use crate::run::basin_totals::{BasinMeta, DelaySums, Partials, StrategySums};
-use crate::schema::file_stem;
 use crate::schema::run_info::RunInfo;
+use crate::schema::{columns, file_stem};
 use std::path::{Path, PathBuf};
 
 use crate::schema::{BASIN_ID, NO_CONTROL};
@@ -159,6 +159,7 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
         strategies: Vec::new(),
         delays: Vec::new(),
         sensitivity: None,
+        ensemble: Vec::new(),
     };
 
     let mut yearly = CsvOut::create(&dir.join("yearly.csv"), &tables::yearly_header(contaminants))?;
@@ -173,11 +174,13 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
     let mut rows = Vec::with_capacity(s.catchments.len());
     let mut kept: Vec<Option<Vec<YearResult>>> = Vec::with_capacity(s.catchments.len());
     let mut reference: Vec<Vec<f64>> = Vec::new();
+    let mut kept_cells: Vec<Option<Vec<ControlCells>>> = Vec::with_capacity(s.catchments.len());
     for (i, c) in s.catchments.iter().enumerate() {
         let years = project_catchment(c, &s.climate_series(i), &s.params, s.start_year);
         let (sum, totals, cells) = write_catchment_rows(&mut yearly, s, c, NO_CONTROL, &years, None, None)?;
         sums.add(c, &years, &cells);
-        rows.push(tables::summary_fields(c, NO_CONTROL, &sum, &totals, s.economics.water_value_per_m3));
+        rows.push(tables::summary_fields(SummaryWho::local(c), NO_CONTROL, &sum, &totals, s.economics.water_value_per_m3));
+        kept_cells.push(in_network[i].then_some(cells));
         if draw {
             n_figures += catchment_figures(&figdir, s, i, &years, opts.formats)?;
         }
@@ -186,7 +189,7 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
         }
         kept.push(in_network[i].then_some(years));
     }
-    write_nodes(&mut nodes, s, NO_CONTROL, kept)?;
+    rows.extend(write_nodes(&mut nodes, s, NO_CONTROL, kept, kept_cells)?);
     partials.strategies.push(sums);
     summary_rows.push(rows);
 
@@ -194,18 +197,20 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
         let run = project_basin(&s.catchments, &climates, std::slice::from_ref(&s.params), s.start_year, Some(st));
         let mut sums = StrategySums::new(&st.name, n_years, k);
         let mut rows = Vec::with_capacity(s.catchments.len());
+        let mut kept_cells = Vec::with_capacity(s.catchments.len());
         for (i, c) in s.catchments.iter().enumerate() {
             let (sum, totals, cells) =
                 write_catchment_rows(&mut yearly, s, c, &st.name, &run.years[i], Some(&run.control[i]), Some(&reference[i]))?;
             sums.add(c, &run.years[i], &cells);
-            rows.push(tables::summary_fields(c, &st.name, &sum, &totals, s.economics.water_value_per_m3));
+            rows.push(tables::summary_fields(SummaryWho::local(c), &st.name, &sum, &totals, s.economics.water_value_per_m3));
+            kept_cells.push(in_network[i].then_some(cells));
         }
         for b in &run.budget {
             let pool = b.pool.map_or(BASIN_ID, |i| s.catchments[i].id.as_str());
             budget.row(tables::budget_fields(&st.name, pool, b).iter().map(String::as_str))?;
         }
         let kept = run.years.into_iter().enumerate().map(|(i, y)| in_network[i].then_some(y)).collect();
-        write_nodes(&mut nodes, s, &st.name, kept)?;
+        rows.extend(write_nodes(&mut nodes, s, &st.name, kept, kept_cells)?);
         partials.strategies.push(sums);
         summary_rows.push(rows);
     }
@@ -222,6 +227,7 @@ pub fn run(scenario: &Scenario, opts: &RunOptions) -> Result<RunOutcome> {
         n_figures += e.figures;
         members = e.members;
         partials.sensitivity = e.sensitivity;
+        partials.ensemble = e.basin;
     }
     copy_inputs(&dir, full)?;
     tables::write_run_info(&dir, &run_info(full))?;
@@ -273,16 +279,34 @@ fn basin_meta(s: &Scenario, figures: bool) -> BasinMeta {
     }
 }
 
-fn write_nodes(nodes: &mut CsvOut, s: &Scenario, strategy: &str, kept: Vec<Option<Vec<YearResult>>>) -> Result<()> {
+/// Writes the `nodes.csv` rows of one strategy and returns the `arriving` rows of
+/// `summary.csv` (what reaches each receiving node, with the programme's cost and
+/// water saved summed over the catchments upstream of it).
+fn write_nodes(
+    nodes: &mut CsvOut,
+    s: &Scenario,
+    strategy: &str,
+    kept: Vec<Option<Vec<YearResult>>>,
+    kept_cells: Vec<Option<Vec<ControlCells>>>,
+) -> Result<Vec<Vec<String>>> {
     let contaminants = &s.params.contaminants;
     if s.network.receiving_nodes().is_empty() {
-        return Ok(());
+        return Ok(Vec::new());
     }
     let n_years = s.horizon_years + 1;
     // Catchments outside any network contribute nothing to node sums.
     let projections: Vec<Vec<YearResult>> =
         kept.into_iter().map(|p| p.unwrap_or_else(|| zero_years(s.start_year, n_years, contaminants.len()))).collect();
     let counts = s.network.upstream_counts();
+    // Cost and water saved of each year summed downstream (zero outside the networks).
+    let per_year = |f: &dyn Fn(&ControlCells) -> f64| -> Vec<Vec<f64>> {
+        (0..n_years)
+            .map(|t| s.network.accumulate(&kept_cells.iter().map(|c| c.as_ref().map_or(0.0, |c| f(&c[t]))).collect::<Vec<_>>()))
+            .collect()
+    };
+    let cost = per_year(&|c| c.control.cost());
+    let saved = per_year(&|c| c.water_saved_m3);
+    let mut summary = Vec::new();
     for (n, rows) in
         node_totals(&s.network, &s.catchments, &projections, contaminants.len(), s.params.min_runoff_mm, &s.params.concentration_ceiling)
     {
@@ -290,8 +314,21 @@ fn write_nodes(nodes: &mut CsvOut, s: &Scenario, strategy: &str, kept: Vec<Optio
             let f = tables::node_fields(&s.catchments[n].id, strategy, counts[n], y, contaminants);
             nodes.row(f.iter().map(String::as_str))?;
         }
+        let c = &s.catchments[n];
+        let who = SummaryWho {
+            id: &c.id,
+            scope: columns::scope::ARRIVING,
+            name: &c.name,
+            area_ha: rows.first().map_or(c.area_ha, |y| y.area_ha),
+        };
+        let totals = ProgrammeTotals::from_years(
+            s.economics.discount_rate,
+            &cost.iter().map(|v| v[n]).collect::<Vec<_>>(),
+            &saved.iter().map(|v| v[n]).collect::<Vec<_>>(),
+        );
+        summary.push(tables::summary_fields(who, strategy, &summarise_node(&rows, contaminants), &totals, s.economics.water_value_per_m3));
     }
-    Ok(())
+    Ok(summary)
 }
 
 fn delay_sums(s: &Scenario, climates: &[Vec<crate::model::ClimateYear>], reference: &[Vec<f64>]) -> Vec<DelaySums> {
@@ -342,6 +379,8 @@ fn zero_years(start_year: i32, n: usize, k: usize) -> Vec<YearResult> {
             mean_volume_m3: 0.0,
             mean_loads_kg_per_yr: vec![0.0; k],
             concentrations: vec![Ok(0.0); k],
+            uninvaded_loads_kg_per_yr: vec![0.0; k],
+            uninvaded_concentrations: vec![Ok(0.0); k],
         })
         .collect()
 }

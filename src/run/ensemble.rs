@@ -21,24 +21,28 @@ use crate::model::catchment::{ClimateYear, ModelParams};
 use crate::model::climate_gen::{block_bootstrap, lognormal_ar1_multipliers};
 use crate::model::closure::ClosureCurve;
 use crate::model::control::Strategy;
+use crate::model::dilution;
 use crate::model::interception::CanopyInterception;
 use crate::model::kernel::{project_lean, LeanYears};
 use crate::model::params::{ParamId, ParamRef};
-use crate::model::stats::{mean, percentile_sorted};
+use crate::model::summary::window_change_pct;
 use crate::model::uncertainty::{stable_hash, stream, uniforms, UncertainParam};
 use crate::model::CoverCurves;
 use crate::output::tables::{CsvOut, CsvRows};
 use crate::plot::tornado::Tornado;
 use crate::plot::{save_figure, Formats};
+use crate::run::bands::{self, BandLayout, MemberValues, Vars};
+use crate::run::basin_totals::{EnsembleBasinSums, Sum};
 use crate::run::sensitivity::{rank, write_sensitivity_rows, Ranking};
 use crate::schema::columns;
+use crate::schema::columns::scope;
 use crate::schema::numbers::{num, opt_num};
 use crate::schema::{file_stem, NO_CONTROL};
 use rayon::prelude::*;
 use std::path::Path;
 
 /// Percentiles reported in `ensemble.csv`.
-pub const PERCENTILES: [f64; 5] = [0.05, 0.25, 0.50, 0.75, 0.95];
+pub use crate::run::bands::PERCENTILES;
 
 /// Options of an ensemble run.
 #[derive(Debug, Clone, Copy)]
@@ -62,6 +66,8 @@ pub struct EnsembleOutcome {
     pub figures: usize,
     /// Basin sums for the basin-level sensitivity (when any parameter is uncertain).
     pub sensitivity: Option<crate::run::basin_totals::SensitivitySums>,
+    /// Member sums of the whole basin, one per strategy (`no-control` first).
+    pub basin: Vec<EnsembleBasinSums>,
 }
 
 /// Parameters, scales and strategies of one member for one catchment.
@@ -309,11 +315,6 @@ fn setup_for(s: &Scenario, draws: &[Vec<f64>], m: usize) -> MemberSetup {
     setup
 }
 
-/// Per-member values of one catchment and strategy: `[variable][year][member]`.
-struct MemberValues {
-    vars: Vec<Vec<Vec<f64>>>,
-}
-
 /// Names of the ensemble variables for a scenario, in column order.
 pub fn variable_names(s: &Scenario) -> Vec<String> {
     columns::ensemble::variables(&contaminant_names(s))
@@ -323,33 +324,8 @@ fn contaminant_names(s: &Scenario) -> Vec<&str> {
     s.params.contaminants.iter().map(|c| c.name.as_str()).collect()
 }
 
-fn percentile_rows<W: std::io::Write>(
-    out: &mut CsvOut<W>,
-    s: &Scenario,
-    id: &str,
-    strategy: &str,
-    mv: &MemberValues,
-    names: &[String],
-) -> Result<()> {
-    let k = s.params.contaminants.len();
-    for (t, year) in s.years().enumerate() {
-        for (vi, name) in names.iter().enumerate() {
-            let mut vals: Vec<f64> = mv.vars[vi][t].iter().copied().filter(|v| v.is_finite()).collect();
-            vals.sort_by(f64::total_cmp);
-            let guideline = if vi >= 2 && vi < 2 + k { s.params.contaminants[vi - 2].guideline_mg_per_l } else { None };
-            let prob = guideline.filter(|_| !vals.is_empty()).map(|g| vals.iter().filter(|&&v| v > g).count() as f64 / vals.len() as f64);
-            let dec = if name == columns::ensemble::CONTROL_COST { 2 } else { 5 };
-            let mut fields = vec![id.to_string(), strategy.to_string(), year.to_string(), name.clone()];
-            for p in PERCENTILES {
-                fields.push(if vals.is_empty() { String::new() } else { num(percentile_sorted(&vals, p), dec) });
-            }
-            fields.push(if vals.is_empty() { String::new() } else { num(mean(&vals), dec) });
-            fields.push(vals.len().to_string());
-            fields.push(opt_num(prob, 4));
-            out.row(&fields)?;
-        }
-    }
-    Ok(())
+fn band_layout(s: &Scenario) -> BandLayout {
+    BandLayout::new(s.start_year, &s.params.contaminants.iter().map(|c| (c.name.clone(), c.guideline_mg_per_l)).collect::<Vec<_>>())
 }
 
 /// Header of `ensemble.csv`.
@@ -372,6 +348,143 @@ fn sensitivity_points(s: &Scenario) -> Vec<(&'static str, usize)> {
     v
 }
 
+/// Quantities a catchment passes downstream in one member's year, in this order:
+/// volume, baseline volume, control cost, long-term mean volume, then the load and
+/// the long-term mean load of each contaminant (m³/yr, $, kg/yr).
+const FLOW_V: usize = 0;
+const FLOW_VB: usize = 1;
+const FLOW_COST: usize = 2;
+const FLOW_VBAR: usize = 3;
+
+/// Number of flow quantities for `k` contaminants.
+fn flow_len(k: usize) -> usize {
+    4 + 2 * k
+}
+
+/// The flow quantities of one year (see [`FLOW_V`]).
+fn flow_values(out: &mut Vec<f64>, volume_m3: f64, baseline_m3: f64, cost: f64, mean_volume_m3: f64, loads: &[f64], mean_loads: &[f64]) {
+    out.extend([volume_m3, baseline_m3, cost, mean_volume_m3]);
+    out.extend_from_slice(loads);
+    out.extend_from_slice(mean_loads);
+}
+
+/// Member sums of what arrives at each receiving node, `[member][node][year][quantity]`.
+///
+/// Sums run over the catchments in table order, so a shard (which holds whole
+/// networks, [`crate::run::shard`]) adds the same numbers in the same order as a
+/// single run. Memory: members × nodes × years × (4 + 2k) values.
+struct NodeSums {
+    /// Catchment index of each receiving node.
+    nodes: Vec<usize>,
+    /// For each catchment, the positions in `nodes` it drains to (itself included).
+    targets: Vec<Vec<usize>>,
+    /// Area drained by each node, ha.
+    area_ha: Vec<f64>,
+    years: usize,
+    q: usize,
+    data: Vec<f64>,
+}
+
+impl NodeSums {
+    fn new(s: &Scenario, members: usize) -> NodeSums {
+        let nodes = s.network.receiving_nodes();
+        let n = s.catchments.len();
+        let mut position = vec![None; n];
+        for (p, &c) in nodes.iter().enumerate() {
+            position[c] = Some(p);
+        }
+        let targets = (0..n)
+            .map(|i| {
+                let mut v = Vec::new();
+                let mut at = Some(i);
+                while let Some(x) = at {
+                    v.extend(position[x]);
+                    at = s.network.downstream(x);
+                }
+                v
+            })
+            .collect();
+        let drained = s.network.accumulate(&s.catchments.iter().map(|c| c.area_ha).collect::<Vec<_>>());
+        let years = s.horizon_years + 1;
+        let q = flow_len(s.params.contaminants.len());
+        NodeSums {
+            area_ha: nodes.iter().map(|&c| drained[c]).collect(),
+            data: vec![0.0; members * nodes.len() * years * q],
+            nodes,
+            targets,
+            years,
+            q,
+        }
+    }
+
+    /// Values of one member.
+    fn stride(&self) -> usize {
+        self.nodes.len() * self.years * self.q
+    }
+
+    fn drains(&self, i: usize) -> bool {
+        !self.targets[i].is_empty()
+    }
+
+    /// Adds catchment `i`'s flow quantities of year `t` into one member's buffer.
+    fn add_into(&self, buf: &mut [f64], i: usize, t: usize, vals: &[f64]) {
+        for &p in &self.targets[i] {
+            let off = (p * self.years + t) * self.q;
+            for (a, b) in buf[off..off + self.q].iter_mut().zip(vals) {
+                *a += b;
+            }
+        }
+    }
+
+    /// Adds catchment `i`'s flows of every member (`flows[(m·years + t)·q + j]`).
+    fn add_catchment(&mut self, i: usize, flows: &[f64], members: usize) {
+        let (stride, q, years) = (self.stride(), self.q, self.years);
+        let mut data = std::mem::take(&mut self.data);
+        for m in 0..members {
+            for t in 0..years {
+                let off = (m * years + t) * q;
+                self.add_into(&mut data[m * stride..(m + 1) * stride], i, t, &flows[off..off + q]);
+            }
+        }
+        self.data = data;
+    }
+
+    /// Writes the `arriving` rows of every node for one strategy, then clears the sums.
+    fn write_and_clear<W: std::io::Write>(&mut self, out: &mut CsvOut<W>, s: &Scenario, layout: &BandLayout, strategy: &str) -> Result<()> {
+        let vars = layout.vars;
+        let members = if self.stride() == 0 { 0 } else { self.data.len() / self.stride() };
+        let k = vars.k;
+        for (p, &c) in self.nodes.iter().enumerate() {
+            let a = self.area_ha[p];
+            let mut mv = MemberValues::zeros(vars.len(), self.years, members);
+            for m in 0..members {
+                let at = |t: usize, j: usize| self.data[m * self.stride() + (p * self.years + t) * self.q + j];
+                let flow: Vec<f64> = (0..self.years).map(|t| at(t, FLOW_V)).collect();
+                let base: Vec<f64> = (0..self.years).map(|t| at(t, FLOW_VB)).collect();
+                mv.set_yield(m, &flow, &base, |v| v / (10.0 * a));
+                for t in 0..self.years {
+                    for j in 0..k {
+                        mv.vars[vars.concentration(j)][t][m] = dilution::screened_concentration_mg_per_l(
+                            at(t, 4 + j),
+                            at(t, FLOW_V),
+                            a,
+                            s.params.min_runoff_mm,
+                            at(t, 4 + k + j),
+                            at(t, FLOW_VBAR),
+                            &s.params.concentration_ceiling,
+                        )
+                        .unwrap_or(f64::NAN);
+                    }
+                    mv.vars[vars.cost()][t][m] = at(t, FLOW_COST);
+                }
+            }
+            bands::write_rows(out, layout, &s.catchments[c].id, scope::ARRIVING, strategy, &mv, &vars.all())?;
+        }
+        self.data.iter_mut().for_each(|x| *x = 0.0);
+        Ok(())
+    }
+}
+
 struct CatchmentResult {
     ensemble: CsvRows,
     sensitivity: CsvRows,
@@ -383,10 +496,17 @@ struct CatchmentResult {
     ranking: Option<Ranking>,
     /// No-control yield volume per member per year, m³ (kept only when strategies exist).
     reference_m3: Vec<Vec<f64>>,
+    /// Flow quantities `[(member·years + year)·q + j]` (see [`FLOW_V`]).
+    flows: Vec<f64>,
 }
 
 /// Runs the ensemble and writes `ensemble.csv`, `sensitivity.csv` (when any parameter
 /// is uncertain), `members.csv` (when asked) and band and tornado figures into `dir`.
+///
+/// `ensemble.csv` holds, per strategy, the `local` rows of every catchment and then the
+/// `arriving` rows of every receiving node; the `basin` rows are added from the exact
+/// sums returned in [`EnsembleOutcome::basin`] when the run is finished
+/// ([`crate::run::basin_totals::Partials::append_ensemble`]), so shards merge byte for byte.
 // Over 100 lines on purpose: the ensemble's two phases (no-control per catchment in parallel, then each strategy over the basin) share their draws and writers; split, they would pass a dozen locals around.
 pub fn run_ensemble(
     s: &Scenario,
@@ -396,9 +516,11 @@ pub fn run_ensemble(
     meta: &crate::run::basin_totals::BasinMeta,
 ) -> Result<EnsembleOutcome> {
     let m_count = cfg.members;
-    let names = variable_names(s);
+    let layout = band_layout(s);
+    let vars = layout.vars;
     let k = s.params.contaminants.len();
     let n_years = s.horizon_years + 1;
+    let q = flow_len(k);
     let labels: Vec<String> = s.uncertain.iter().map(|u| u.param.path.clone()).collect();
     let shared: Vec<Option<Vec<f64>>> =
         s.uncertain.iter().map(|u| (!u.param.per_catchment).then(|| draw_values(&u.param, cfg, None))).collect();
@@ -412,6 +534,8 @@ pub fn run_ensemble(
     let mut members_out = if cfg.write_members { Some(members_file(dir, s)?) } else { None };
     let mut n_figures = 0;
     let figdir = dir.join("figures");
+    let mut node_sums = NodeSums::new(s, m_count);
+    let mut basin_members = vec![EnsembleBasinSums::new(NO_CONTROL, m_count, n_years)];
 
     // no-control, catchment by catchment, in parallel chunks written in order.
     let mut basin = crate::run::basin_totals::SensitivitySums::new(
@@ -426,7 +550,7 @@ pub fn run_ensemble(
         let results: Vec<CatchmentResult> = (start..end)
             .into_par_iter()
             .map(|i| {
-                let r = no_control_catchment(s, cfg, i, &shared, &climates, &names, &labels, &points, keep_reference);
+                let r = no_control_catchment(s, cfg, i, &shared, &climates, &layout, &labels, &points, keep_reference);
                 bar.inc(1);
                 r
             })
@@ -442,6 +566,7 @@ pub fn run_ensemble(
             }
             let a = s.catchments[i].area_ha;
             basin.area_ha.add(a);
+            basin_members[0].add_area(a);
             for m in 0..m_count {
                 for (pt, v) in r.basin_volumes[m].iter().enumerate() {
                     basin.volumes[m][pt].0.add(v.0);
@@ -450,6 +575,13 @@ pub fn run_ensemble(
                 for (j, d) in r.draws.iter().enumerate() {
                     basin.weighted_draws[j][m].add(d[m] * a);
                 }
+                for t in 0..n_years {
+                    let f = &r.flows[(m * n_years + t) * q..];
+                    basin_members[0].add(m, t, f[FLOW_V], f[FLOW_VB], f[FLOW_COST]);
+                }
+            }
+            if node_sums.drains(i) {
+                node_sums.add_catchment(i, &r.flows, m_count);
             }
             if opts.figures {
                 if let Some(rk) = &r.ranking {
@@ -468,10 +600,12 @@ pub fn run_ensemble(
             }
         }
     }
+    node_sums.write_and_clear(&mut ens, s, &layout, NO_CONTROL)?;
     // Control strategies: member by member over the whole basin.
     for (si, st) in s.strategies.iter().enumerate() {
-        // Per member: values[catchment][variable][year] and yield volumes[catchment][year], m³.
-        type MemberRun = (Vec<Vec<Vec<f64>>>, Vec<Vec<f64>>);
+        // Per member: values[catchment][variable][year], yield volumes[catchment][year] (m³),
+        // the node sums of the member and its basin sums per year.
+        type MemberRun = (Vec<Vec<Vec<f64>>>, Vec<Vec<f64>>, Vec<f64>, Vec<[Sum; 3]>);
         let per_member: Vec<MemberRun> = (0..m_count)
             .into_par_iter()
             .map(|m| {
@@ -487,38 +621,73 @@ pub fn run_ensemble(
                     .collect();
                 let run = project_basin(&catchments_m, &climates_m, &params, s.start_year, Some(strategy));
                 bar.inc(1);
+                let mut node_buf = vec![0.0; node_sums.stride()];
+                let mut basin_m = vec![[Sum::default(); 3]; n_years];
+                let mut flow = Vec::with_capacity(q);
                 // values[catchment][var][year]
                 let vals: Vec<Vec<Vec<f64>>> = run
                     .years
                     .iter()
                     .zip(&run.control)
-                    .map(|(ys, cs)| {
-                        let mut v = vec![vec![f64::NAN; n_years]; names.len()];
+                    .enumerate()
+                    .map(|(i, (ys, cs))| {
+                        let mut v = vec![vec![f64::NAN; n_years]; vars.len()];
+                        let q_mm: Vec<f64> = ys.iter().map(|y| y.yield_mm).collect();
+                        let base_mm: Vec<f64> = ys.iter().map(|y| y.baseline_yield_mm).collect();
                         for (t, (y, c)) in ys.iter().zip(cs).enumerate() {
-                            v[0][t] = y.yield_mm;
-                            v[1][t] = y.yield_change_pct().unwrap_or(f64::NAN);
+                            v[Vars::YIELD][t] = y.yield_mm;
+                            v[Vars::CHANGE][t] = y.yield_change_pct().unwrap_or(f64::NAN);
+                            v[Vars::MEAN_CHANGE][t] = window_change_pct(&q_mm, &base_mm, t).unwrap_or(f64::NAN);
                             for j in 0..k {
-                                v[2 + j][t] = y.concentrations[j].unwrap_or(f64::NAN);
+                                v[vars.concentration(j)][t] = y.concentrations[j].unwrap_or(f64::NAN);
                             }
-                            v[2 + k][t] = c.cost();
+                            v[vars.cost()][t] = c.cost();
+                            let a = catchments_m[i].area_ha;
+                            let base_m3 = dilution::volume_m3(y.baseline_yield_mm, a);
+                            basin_m[t][0].add(y.yield_m3);
+                            basin_m[t][1].add(base_m3);
+                            basin_m[t][2].add(c.cost());
+                            if node_sums.drains(i) {
+                                flow.clear();
+                                flow_values(
+                                    &mut flow,
+                                    y.yield_m3,
+                                    base_m3,
+                                    c.cost(),
+                                    y.mean_volume_m3,
+                                    &y.loads_kg_per_yr,
+                                    &y.mean_loads_kg_per_yr,
+                                );
+                                node_sums.add_into(&mut node_buf, i, t, &flow);
+                            }
                         }
                         v
                     })
                     .collect();
                 let volumes: Vec<Vec<f64>> = run.years.iter().map(|ys| ys.iter().map(|y| y.yield_m3).collect()).collect();
-                (vals, volumes)
+                (vals, volumes, node_buf, basin_m)
             })
             .collect();
+        let mut basin_st = EnsembleBasinSums::new(&st.name, m_count, n_years);
+        for c in &s.catchments {
+            basin_st.add_area(c.area_ha);
+        }
+        for (m, run) in per_member.iter().enumerate() {
+            basin_st.add_member(m, &run.3);
+            let stride = node_sums.stride();
+            node_sums.data[m * stride..(m + 1) * stride].copy_from_slice(&run.2);
+        }
+        basin_members.push(basin_st);
         for (i, c) in s.catchments.iter().enumerate() {
-            let mut mv = MemberValues { vars: vec![vec![vec![0.0; m_count]; n_years]; names.len()] };
-            for (m, (vals, _)) in per_member.iter().enumerate() {
+            let mut mv = MemberValues::zeros(vars.len(), n_years, m_count);
+            for (m, (vals, ..)) in per_member.iter().enumerate() {
                 for (vi, series) in vals[i].iter().enumerate() {
                     for (t, x) in series.iter().enumerate() {
                         mv.vars[vi][t][m] = *x;
                     }
                 }
             }
-            percentile_rows(&mut ens, s, &c.id, &st.name, &mv, &names)?;
+            bands::write_rows(&mut ens, &layout, &c.id, scope::LOCAL, &st.name, &mv, &vars.all())?;
             if let Some(mo) = members_out.as_mut() {
                 for m in 0..m_count {
                     for (t, year) in s.years().enumerate() {
@@ -528,6 +697,7 @@ pub fn run_ensemble(
                 }
             }
         }
+        node_sums.write_and_clear(&mut ens, s, &layout, &st.name)?;
     }
     ens.finish()?;
     if let Some(sn) = sens {
@@ -538,7 +708,7 @@ pub fn run_ensemble(
     }
     bar.finish_and_clear();
     let sensitivity = (!labels.is_empty()).then_some(basin);
-    Ok(EnsembleOutcome { members: m_count, parameters: labels.len(), figures: n_figures, sensitivity })
+    Ok(EnsembleOutcome { members: m_count, parameters: labels.len(), figures: n_figures, sensitivity, basin: basin_members })
 }
 
 fn draws_for_member(s: &Scenario, cfg: &EnsembleConfig, shared: &[Option<Vec<f64>>], id: &str, m: usize) -> Vec<Vec<f64>> {
@@ -566,7 +736,7 @@ fn no_control_catchment(
     i: usize,
     shared: &[Option<Vec<f64>>],
     climates: &MemberClimate,
-    names: &[String],
+    layout: &BandLayout,
     labels: &[String],
     points: &[(&'static str, usize)],
     keep_reference: bool,
@@ -575,11 +745,13 @@ fn no_control_catchment(
     let m_count = cfg.members;
     let n_years = s.horizon_years + 1;
     let k = s.params.contaminants.len();
+    let vars = layout.vars;
     let draws = draws_for(s, cfg, shared, &c.id);
-    let mut mv = MemberValues { vars: vec![vec![vec![0.0; m_count]; n_years]; names.len()] };
+    let mut mv = MemberValues::zeros(vars.len(), n_years, m_count);
     let mut lean = LeanYears::default();
     let mut basin_volumes = Vec::with_capacity(m_count);
     let mut reference_m3 = Vec::new();
+    let mut flows = Vec::with_capacity(m_count * n_years * flow_len(k));
     let mut members = CsvOut::in_memory(if cfg.write_members { members_header(s).len() } else { 0 });
     let mut setup = setup_for(s, &draws, 0);
     for m in 0..m_count {
@@ -590,13 +762,22 @@ fn no_control_catchment(
         let climate = member_series(s, climates, i, m, setup.rain_scale, setup.pet_scale);
         let calibrated = member_catchment(s, i, &draws, m);
         project_lean(calibrated.as_ref().unwrap_or(c), &climate, &setup.params, &mut lean);
+        mv.set_yield(m, &lean.yield_mm, &lean.baseline_yield_mm, |q| q);
+        let mean_volume_m3 = dilution::volume_m3(lean.mean_yield_mm, c.area_ha);
         for t in 0..n_years {
-            mv.vars[0][t][m] = lean.yield_mm[t];
-            mv.vars[1][t][m] = lean.change_pct(t).unwrap_or(f64::NAN);
             for j in 0..k {
-                mv.vars[2 + j][t][m] = lean.concentrations_mg_per_l[t * k + j].unwrap_or(f64::NAN);
+                mv.vars[vars.concentration(j)][t][m] = lean.concentrations_mg_per_l[t * k + j].unwrap_or(f64::NAN);
             }
-            mv.vars[2 + k][t][m] = 0.0;
+            mv.vars[vars.cost()][t][m] = 0.0;
+            flow_values(
+                &mut flows,
+                dilution::volume_m3(lean.yield_mm[t], c.area_ha),
+                dilution::volume_m3(lean.baseline_yield_mm[t], c.area_ha),
+                0.0,
+                mean_volume_m3,
+                &lean.loads_kg_per_yr[t * k..(t + 1) * k],
+                &lean.mean_loads_kg_per_yr[t * k..(t + 1) * k],
+            );
         }
         basin_volumes.push(
             points
@@ -614,7 +795,7 @@ fn no_control_catchment(
         }
     }
     let mut ensemble = CsvOut::in_memory(ensemble_header().len());
-    percentile_rows(&mut ensemble, s, &c.id, NO_CONTROL, &mv, names)?;
+    bands::write_rows(&mut ensemble, layout, &c.id, scope::LOCAL, NO_CONTROL, &mv, &vars.all())?;
     let mut sensitivity = CsvOut::in_memory(sensitivity_header().len());
     let mut ranking = None;
     if !labels.is_empty() {
@@ -634,6 +815,7 @@ fn no_control_catchment(
         draws: if labels.is_empty() { Vec::new() } else { draws },
         ranking,
         reference_m3,
+        flows,
     })
 }
 

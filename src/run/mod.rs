@@ -8,6 +8,7 @@
 //! writes the report ([`crate::report`]) into the staged folder before it is moved
 //! into place. Nothing below imports it.
 
+pub mod bands;
 pub mod basin_totals;
 pub mod deterministic;
 pub mod ensemble;

@@ -274,7 +274,7 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
         (YEARLY_FILE, [yearly::STRATEGY, yearly::CATCHMENT, ""]),
         (NODES_FILE, [nodes::STRATEGY, nodes::NODE, ""]),
         (BUDGET_FILE, [budget::STRATEGY, budget::YEAR, budget::POOL]),
-        (ENSEMBLE_FILE, [ensemble::STRATEGY, ensemble::CATCHMENT, ""]),
+        (ENSEMBLE_FILE, [ensemble::STRATEGY, ensemble::SCOPE, ensemble::CATCHMENT]),
         (MEMBERS_FILE, [members::STRATEGY, members::CATCHMENT, ""]),
         (SENSITIVITY_FILE, [sensitivity::STRATEGY, sensitivity::CATCHMENT, ""]),
     ];
@@ -303,6 +303,7 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
             let Some(v) = k.and_then(|k| r.get(k)) else { return 0 };
             match c {
                 crate::schema::columns::STRATEGY => strat(v),
+                crate::schema::columns::SCOPE => scope_rank(v),
                 crate::schema::columns::YEAR => v.parse().unwrap_or(0),
                 _ => cat(v),
             }
@@ -328,8 +329,12 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
             Error::invalid(Problem::in_file(&summary_path, format!("has no column '{c}'; is this a yieldshift shard?")).row(1).column(c))
         })
     };
-    let (ci, si) = (col(crate::schema::columns::summary::CATCHMENT)?, col(crate::schema::columns::summary::STRATEGY)?);
-    summary.sort_by_key(|r| (strat(&r[si]), cat(&r[ci])));
+    let (ci, si, sc) = (
+        col(crate::schema::columns::summary::CATCHMENT)?,
+        col(crate::schema::columns::summary::STRATEGY)?,
+        col(crate::schema::columns::SCOPE)?,
+    );
+    summary.sort_by_key(|r| (strat(&r[si]), scope_rank(&r[sc]), cat(&r[ci])));
     let mut grouped: Vec<Vec<Vec<String>>> = vec![Vec::new(); partials.meta.strategies.len()];
     for r in summary {
         let k = strat(&r[si]);
@@ -357,6 +362,11 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
     let catchments = infos.iter().map(|(_, i)| i.catchments.len()).sum();
     let out = staging.commit()?;
     Ok(MergeOutcome { out, shards: n, catchments })
+}
+
+/// Rank of a `scope` value in file order (local rows, then arriving, then basin).
+fn scope_rank(v: &str) -> usize {
+    crate::schema::columns::scope::ORDER.iter().position(|s| *s == v).unwrap_or(usize::MAX)
 }
 
 fn copy_dir(from: &Path, to: &Path) -> Result<()> {

@@ -16,6 +16,21 @@ pub const CATCHMENT: &str = "catchment";
 pub const STRATEGY: &str = "strategy";
 /// Calendar year.
 pub const YEAR: &str = "year";
+/// What a row of `summary.csv` or `ensemble.csv` describes ([`scope`]).
+pub const SCOPE: &str = "scope";
+
+/// Values of the [`SCOPE`] column.
+pub mod scope {
+    /// A catchment's own runoff, loads and concentrations (what leaves it from its own area).
+    pub const LOCAL: &str = "local";
+    /// What arrives at a receiving node: the sums over every catchment draining to it
+    /// (itself included), flow-weighted concentrations (as `nodes.csv`).
+    pub const ARRIVING: &str = "arriving";
+    /// The whole basin (all catchments summed); the id is `basin`.
+    pub const BASIN: &str = "basin";
+    /// Order of the scopes in a file (for `merge`).
+    pub const ORDER: [&str; 3] = [LOCAL, ARRIVING, BASIN];
+}
 /// Semicolon-separated flags of a row ([`flags`]).
 pub const FLAGS: &str = "flags";
 
@@ -192,11 +207,11 @@ pub mod summary {
     pub const NAME: &str = "name";
     /// Area, ha.
     pub const AREA_HA: &str = "area_ha";
-    /// Yield change against the baseline in the last year, %.
+    /// Yield change against the baseline, 10-year mean ending in the last year, %.
     pub const YIELD_CHANGE_HORIZON_PCT: &str = "yield_change_horizon_pct";
-    /// Change against no invasion in the last year, %.
+    /// Change against no invasion, 10-year mean ending in the last year, %.
     pub const CHANGE_VS_UNINVADED_HORIZON_PCT: &str = "change_vs_uninvaded_horizon_pct";
-    /// Water lost against the baseline in the last year, m³/yr.
+    /// Water lost against the baseline, 10-year mean ending in the last year, m³/yr.
     pub const WATER_LOST_HORIZON_M3_PER_YR: &str = "water_lost_horizon_m3_per_yr";
     /// Canopy fraction in the first year.
     pub const CANOPY_FRACTION_START: &str = "canopy_fraction_start";
@@ -219,8 +234,9 @@ pub mod summary {
     /// Benefit-cost ratio.
     pub const BENEFIT_COST_RATIO: &str = "benefit_cost_ratio";
 
-    /// The leading columns.
-    pub const ID: [&str; 4] = [CATCHMENT, NAME, STRATEGY, AREA_HA];
+    pub use super::SCOPE;
+    /// The leading columns (`area_ha` of an `arriving` row is the area drained).
+    pub const ID: [&str; 5] = [CATCHMENT, SCOPE, NAME, STRATEGY, AREA_HA];
     /// The horizon columns (after the per-offset ones).
     pub const HORIZON: [&str; 5] = [
         YIELD_CHANGE_HORIZON_PCT,
@@ -233,7 +249,7 @@ pub mod summary {
     pub const ECONOMICS: [&str; 8] =
         [TOTAL_COST, TOTAL_COST_PV, WATER_SAVED_M3, WATER_SAVED_PV_M3, COST_PER_M3, LEVELISED_COST_PER_M3, NPV, BENEFIT_COST_RATIO];
 
-    /// `yield_change_{offset}y_pct`: change against the baseline `offset` years after the start, %.
+    /// `yield_change_{offset}y_pct`: change against the baseline of the 10-year mean ending `offset` years after the start, %.
     pub fn yield_change_at(offset: usize) -> String {
         format!("yield_change_{offset}y_pct")
     }
@@ -243,9 +259,38 @@ pub mod summary {
         column.strip_prefix("yield_change_")?.strip_suffix("y_pct")?.parse().ok()
     }
 
-    /// `{name}_first_exceedance_year`: first year above the guideline.
+    /// `{name}_first_exceedance_year`: first year above the guideline, when it was
+    /// not above in the first year (empty when above at the start or never above).
     pub fn first_exceedance_year(contaminant: &str) -> String {
         format!("{contaminant}_first_exceedance_year")
+    }
+
+    /// `{name}_guideline_status`: `above-at-start`, `exceeded`, `not-exceeded`
+    /// (empty without a guideline; `model::summary::GuidelineStatus`).
+    pub fn guideline_status(contaminant: &str) -> String {
+        format!("{contaminant}_guideline_status")
+    }
+
+    /// `{name}_invasion_exceedance_first_year`: first year above the guideline while the
+    /// uninvaded catchment (no invader, same climate) is at or below it.
+    pub fn invasion_exceedance_first_year(contaminant: &str) -> String {
+        format!("{contaminant}_invasion_exceedance_first_year")
+    }
+
+    /// `{name}_invasion_exceedance_years`: years above the guideline while the uninvaded
+    /// catchment is at or below it.
+    pub fn invasion_exceedance_years(contaminant: &str) -> String {
+        format!("{contaminant}_invasion_exceedance_years")
+    }
+
+    /// The exceedance columns of one contaminant, in file order.
+    pub fn exceedance_columns(contaminant: &str) -> [String; 4] {
+        [
+            guideline_status(contaminant),
+            first_exceedance_year(contaminant),
+            invasion_exceedance_first_year(contaminant),
+            invasion_exceedance_years(contaminant),
+        ]
     }
 
     /// True for a [`first_exceedance_year`] column.
@@ -253,13 +298,17 @@ pub mod summary {
         column.ends_with("_first_exceedance_year")
     }
 
-    /// The header: [`ID`], a change at each offset, [`HORIZON`], the first
-    /// exceedance of each contaminant, [`ECONOMICS`].
+    /// The header: [`ID`], a change at each offset, [`HORIZON`], the
+    /// [`exceedance_columns`] of each contaminant, [`ECONOMICS`].
+    ///
+    /// The changes and the water lost are 10-year means ending in the year named
+    /// (`model::summary::HEADLINE_WINDOW_YR`): `yield_change_20y_pct` is the change of
+    /// the mean yield over years 11–20 after the start against the baseline's mean.
     pub fn columns<S: AsRef<str>>(offsets: &[usize], contaminants: &[S]) -> Vec<String> {
         let mut h = super::owned(&ID);
         h.extend(offsets.iter().map(|&o| yield_change_at(o)));
         h.extend(super::owned(&HORIZON));
-        h.extend(contaminants.iter().map(|c| first_exceedance_year(c.as_ref())));
+        h.extend(contaminants.iter().flat_map(|c| exceedance_columns(c.as_ref())));
         h.extend(super::owned(&ECONOMICS));
         h
     }
@@ -308,7 +357,7 @@ pub mod delay {
 
 /// `ensemble.csv`: percentiles of each variable per catchment, strategy and year.
 pub mod ensemble {
-    pub use super::{CATCHMENT, STRATEGY, YEAR};
+    pub use super::{CATCHMENT, SCOPE, STRATEGY, YEAR};
     /// The variable ([`variables`]).
     pub const VARIABLE: &str = "variable";
     /// 5th percentile.
@@ -328,7 +377,8 @@ pub mod ensemble {
     /// Share of members above the guideline (concentrations only).
     pub const PROB_ABOVE_GUIDELINE: &str = "prob_above_guideline";
     /// The header.
-    pub const COLUMNS: [&str; 12] = [CATCHMENT, STRATEGY, YEAR, VARIABLE, P5, P25, P50, P75, P95, MEAN, MEMBERS, PROB_ABOVE_GUIDELINE];
+    pub const COLUMNS: [&str; 13] =
+        [CATCHMENT, SCOPE, STRATEGY, YEAR, VARIABLE, P5, P25, P50, P75, P95, MEAN, MEMBERS, PROB_ABOVE_GUIDELINE];
     /// The percentile columns, in order.
     pub const PERCENTILES: [&str; 5] = [P5, P25, P50, P75, P95];
 
@@ -336,13 +386,16 @@ pub mod ensemble {
     pub const YIELD_MM: &str = "yield_mm";
     /// Variable: yield change against the baseline, %.
     pub const YIELD_CHANGE_PCT: &str = "yield_change_pct";
+    /// Variable: yield change of the 10-year mean ending in the year against the
+    /// baseline's, % (`model::summary::window_change_pct`; the headline numbers).
+    pub const YIELD_CHANGE_10YR_MEAN_PCT: &str = "yield_change_10yr_mean_pct";
     /// Variable: control cost, $.
     pub const CONTROL_COST: &str = "control_cost";
 
-    /// The variables for these contaminants, in file order: yield, change, each
-    /// concentration, control cost.
+    /// The variables for these contaminants, in file order: yield, change, 10-year-mean
+    /// change, each concentration, control cost (`basin` rows have no concentrations).
     pub fn variables<S: AsRef<str>>(contaminants: &[S]) -> Vec<String> {
-        let mut v = super::owned(&[YIELD_MM, YIELD_CHANGE_PCT]);
+        let mut v = super::owned(&[YIELD_MM, YIELD_CHANGE_PCT, YIELD_CHANGE_10YR_MEAN_PCT]);
         v.extend(contaminants.iter().map(|c| super::mg_per_l(c.as_ref())));
         v.push(CONTROL_COST.into());
         v
@@ -465,14 +518,28 @@ mod tests {
         assert_eq!(y.len(), yearly::FIXED.len() + 3);
         assert_eq!(&y[25..], ["nitrate_n_load_kg_per_yr", "nitrate_n_mg_per_l", "flags"]);
         let s = summary::columns(&[10, 20], &["total_p"]);
-        assert_eq!(s[4], "yield_change_10y_pct");
-        assert_eq!(s[11], "total_p_first_exceedance_year");
-        assert_eq!(s.len(), 4 + 2 + 5 + 1 + 8);
-        assert_eq!(summary::offset_of(&s[5]), Some(20));
+        assert_eq!(s[1], "scope");
+        assert_eq!(s[5], "yield_change_10y_pct");
+        assert_eq!(s[12], "total_p_guideline_status");
+        assert_eq!(s[13], "total_p_first_exceedance_year");
+        assert_eq!(s[15], "total_p_invasion_exceedance_years");
+        assert_eq!(s.len(), 5 + 2 + 5 + 4 + 8);
+        assert_eq!(summary::offset_of(&s[6]), Some(20));
         assert_eq!(summary::offset_of(summary::YIELD_CHANGE_HORIZON_PCT), None);
         assert_eq!(
             members::columns(&["a"]),
-            ["catchment", "strategy", "member", "year", "yield_mm", "yield_change_pct", "a_mg_per_l", "control_cost", "water_saved_m3"]
+            [
+                "catchment",
+                "strategy",
+                "member",
+                "year",
+                "yield_mm",
+                "yield_change_pct",
+                "yield_change_10yr_mean_pct",
+                "a_mg_per_l",
+                "control_cost",
+                "water_saved_m3"
+            ]
         );
         assert_eq!(flags::low_runoff("a"), "low-runoff:a");
         assert_eq!(flags::above_ceiling("a"), "above-ceiling:a");

@@ -70,7 +70,15 @@ fn change_cells(d: &RunData, r: &SummaryRow) -> Vec<Text> {
         .zip(&r.at_offsets)
         .map(|(&o, val)| {
             pct_cell(r, &offset_col(o), *val).then(if val.is_some() {
-                range_text(d, &r.catchment, &r.strategy, "yield_change_pct", d.info.start_year + o, 1, true)
+                range_text(
+                    d,
+                    &r.catchment,
+                    &r.strategy,
+                    crate::schema::columns::ensemble::YIELD_CHANGE_10YR_MEAN_PCT,
+                    d.info.start_year + o,
+                    1,
+                    true,
+                )
             } else {
                 Text::new()
             })
@@ -80,7 +88,7 @@ fn change_cells(d: &RunData, r: &SummaryRow) -> Vec<Text> {
         d,
         &r.catchment,
         &r.strategy,
-        "yield_change_pct",
+        crate::schema::columns::ensemble::YIELD_CHANGE_10YR_MEAN_PCT,
         d.info.end_year(),
         1,
         true,

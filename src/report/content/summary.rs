@@ -1,6 +1,7 @@
 //! Section 1: the scenario summary (what the run projects, the basin at a glance).
 
 use super::*;
+use crate::schema::columns::ensemble::YIELD_CHANGE_10YR_MEAN_PCT;
 
 // ---------------------------------------------------------------- 1. Summary
 
@@ -53,8 +54,8 @@ pub(super) fn summary_section(d: &RunData, doc: &mut Doc) {
                     Text::new()
                         .num(signed(v, 1), Some(s_src(BASIN_ID, NO_CONTROL, &offset_col(o))))
                         .plain(" %")
-                        .then(range_text(d, BASIN_ID, NO_CONTROL, "yield_change_pct", i.start_year + o, 1, true))
-                        .plain(format!(" after {o} years ({})", i.start_year + o))
+                        .then(range_text(d, BASIN_ID, NO_CONTROL, YIELD_CHANGE_10YR_MEAN_PCT, i.start_year + o, 1, true))
+                        .plain(format!(" over the 10 years to {} ({o} years after the start)", i.start_year + o))
                 })
             })
             .collect();
@@ -64,14 +65,17 @@ pub(super) fn summary_section(d: &RunData, doc: &mut Doc) {
             }
             t = t.then(p);
         }
-        if let Some(h) = b.get(sc::YIELD_CHANGE_HORIZON_PCT) {
+        // The horizon is stated unless it is one of the offsets already given.
+        let horizon_given = d.offsets.iter().any(|&o| i.start_year + o == i.end_year());
+        if let (Some(h), false) = (b.get(sc::YIELD_CHANGE_HORIZON_PCT), horizon_given) {
             t = t
                 .plain(" and ")
                 .num(signed(h, 1), Some(s_src(BASIN_ID, NO_CONTROL, sc::YIELD_CHANGE_HORIZON_PCT)))
-                .plain(format!(" % by {}", i.end_year()))
-                .then(range_text(d, BASIN_ID, NO_CONTROL, "yield_change_pct", i.end_year(), 1, true));
+                .plain(" %")
+                .then(range_text(d, BASIN_ID, NO_CONTROL, YIELD_CHANGE_10YR_MEAN_PCT, i.end_year(), 1, true))
+                .plain(format!(" over the 10 years to {}", i.end_year()));
         }
-        t = t.plain(", against today's cover held fixed.");
+        t = t.plain(", against today's cover held fixed (means over 10 years, so that one wet or dry year does not set them).");
         if let (Some(s), Some(e)) = (b.get(sc::CANOPY_FRACTION_START), b.get(sc::CANOPY_FRACTION_END)) {
             t = t
                 .plain(" The closed-canopy fraction of the basin goes from ")

@@ -42,8 +42,10 @@ pub struct RunData {
     pub info: RunInfo,
     /// Years after the start with a `yield_change_<o>y_pct` column, ascending.
     pub offsets: Vec<i32>,
-    /// `summary.csv` rows in file order.
+    /// `summary.csv` rows of catchments (`local`) and the basin, in file order.
     pub summary: Vec<SummaryRow>,
+    /// `summary.csv` rows of what arrives at each receiving node (`arriving`), in file order.
+    pub arriving: Vec<SummaryRow>,
     /// Catchments (id, name, area) in summary order, without the basin.
     pub catchments: Vec<(String, String, f64)>,
     /// Name of the basin row, if any.
@@ -128,8 +130,10 @@ pub fn read_run(dir: &Path) -> Result<RunData> {
 
     let mut problems = Vec::new();
     let summary_t = CsvTable::read(dir, SUMMARY_FILE)?.ok_or_else(|| gone(dir, SUMMARY_FILE))?;
-    let (offsets, summary) = read_summary(&summary_t, &names, &mut problems);
+    let (offsets, all_rows) = read_summary(&summary_t, &names, &mut problems);
     fail_on(&mut problems)?;
+    let (arriving, summary): (Vec<SummaryRow>, Vec<SummaryRow>) =
+        all_rows.into_iter().partition(|r| r.scope == crate::schema::columns::scope::ARRIVING);
     let index = SummaryIndex::build(&dir.join(SUMMARY_FILE), &info, &summary, &mut problems);
     fail_on(&mut problems)?;
 
@@ -168,6 +172,7 @@ pub fn read_run(dir: &Path) -> Result<RunData> {
         info,
         offsets,
         summary,
+        arriving,
         catchments: index.catchments,
         basin_name: index.basin_name,
         yearly,
@@ -301,11 +306,18 @@ fn read_ensemble_kept(
     let report_years: BTreeSet<String> =
         offsets.iter().map(|o| (info.start_year + o).to_string()).chain(std::iter::once(info.end_year().to_string())).collect();
     let mut members_seen = 0.0f64;
-    let mut ecols: Option<[usize; 5]> = None;
+    let mut ecols: Option<[usize; 6]> = None;
     let ensemble_t = CsvTable::read_filtered(dir, ENSEMBLE_FILE, |h, rec| {
-        let [ci, si, yi, vi, mi] = *ecols.get_or_insert_with(|| {
+        let [ci, _si, yi, vi, mi, sc] = *ecols.get_or_insert_with(|| {
             let find = |n: &str| h.iter().position(|x| x == n).unwrap_or(usize::MAX);
-            [find(ensemble::CATCHMENT), find(ensemble::STRATEGY), find(ensemble::YEAR), find(ensemble::VARIABLE), find(ensemble::MEMBERS)]
+            [
+                find(ensemble::CATCHMENT),
+                find(ensemble::STRATEGY),
+                find(ensemble::YEAR),
+                find(ensemble::VARIABLE),
+                find(ensemble::MEMBERS),
+                find(ensemble::SCOPE),
+            ]
         });
         let get = |i: usize| rec.get(i).map(str::trim).unwrap_or("");
         if let Ok(m) = get(mi).parse::<f64>() {
@@ -313,8 +325,9 @@ fn read_ensemble_kept(
         }
         let c = get(ci);
         c == BASIN_ID
+            || get(sc) == crate::schema::columns::scope::ARRIVING
             || detailed.contains(c)
-            || (get(si) == NO_CONTROL && get(vi) == ensemble::YIELD_CHANGE_PCT && report_years.contains(get(yi)))
+            || (get(vi) == ensemble::YIELD_CHANGE_10YR_MEAN_PCT && report_years.contains(get(yi)))
     })?;
     Ok(ensemble_t.map(|t| {
         let mut e = read_ensemble(&t, problems);

@@ -11,6 +11,8 @@ use std::collections::{BTreeMap, BTreeSet};
 pub struct SummaryRow {
     /// Catchment id (or `basin`).
     pub catchment: String,
+    /// `local`, `arriving` (what reaches a receiving node) or `basin`.
+    pub scope: String,
     /// Display name.
     pub name: String,
     /// Strategy.
@@ -21,8 +23,15 @@ pub struct SummaryRow {
     pub at_offsets: Vec<Option<f64>>,
     /// Numeric columns by name (empty cells absent).
     pub values: BTreeMap<String, f64>,
-    /// First exceedance year per contaminant (run_info order).
+    /// First exceedance year per contaminant (run_info order), when not above at the start.
     pub first_exceedance: Vec<Option<i32>>,
+    /// Guideline status word per contaminant (`above-at-start`, `exceeded`,
+    /// `not-exceeded`; empty without a guideline or in older runs).
+    pub status: Vec<String>,
+    /// First year exceeded because of the invasion, per contaminant.
+    pub invasion_first: Vec<Option<i32>>,
+    /// Years exceeded because of the invasion, per contaminant.
+    pub invasion_years: Vec<Option<i32>>,
 }
 
 impl SummaryRow {
@@ -84,30 +93,49 @@ pub struct Quantiles {
     pub prob_above_guideline: Option<f64>,
 }
 
-/// `ensemble.csv`, keyed by (catchment, strategy, variable, year).
+/// `ensemble.csv`, keyed by (catchment, strategy, variable, year); the rows of
+/// what arrives at receiving nodes are kept apart, in `arriving`.
 #[derive(Debug, Clone, Default)]
 pub struct Ensemble {
-    /// Percentiles.
+    /// Percentiles of `local` and `basin` rows.
     pub rows: BTreeMap<(String, String, String, i32), Quantiles>,
+    /// Percentiles of `arriving` rows (by node id).
+    pub arriving: BTreeMap<(String, String, String, i32), Quantiles>,
     /// Largest member count seen.
     pub members: f64,
 }
 
+type EnsembleKey = (String, String, String, i32);
+
+fn key(catchment: &str, strategy: &str, variable: &str, year: i32) -> EnsembleKey {
+    (catchment.to_string(), strategy.to_string(), variable.to_string(), year)
+}
+
+fn series_of(rows: &BTreeMap<EnsembleKey, Quantiles>, catchment: &str, strategy: &str, variable: &str) -> Vec<(i32, Quantiles)> {
+    rows.range(key(catchment, strategy, variable, i32::MIN)..=key(catchment, strategy, variable, i32::MAX))
+        .map(|(k, q)| (k.3, *q))
+        .collect()
+}
+
 impl Ensemble {
-    /// Percentiles of `variable` for a catchment, strategy and year.
+    /// Percentiles of `variable` for a catchment (its own, `local`) or the basin, strategy and year.
     pub fn get(&self, catchment: &str, strategy: &str, variable: &str, year: i32) -> Option<&Quantiles> {
-        self.rows.get(&(catchment.to_string(), strategy.to_string(), variable.to_string(), year))
+        self.rows.get(&key(catchment, strategy, variable, year))
     }
 
-    /// The series of `variable` over years.
+    /// Percentiles of `variable` for what arrives at node `node`.
+    pub fn get_arriving(&self, node: &str, strategy: &str, variable: &str, year: i32) -> Option<&Quantiles> {
+        self.arriving.get(&key(node, strategy, variable, year))
+    }
+
+    /// The series of `variable` over years (`local` or `basin`).
     pub fn series(&self, catchment: &str, strategy: &str, variable: &str) -> Vec<(i32, Quantiles)> {
-        self.rows
-            .range(
-                (catchment.to_string(), strategy.to_string(), variable.to_string(), i32::MIN)
-                    ..=(catchment.to_string(), strategy.to_string(), variable.to_string(), i32::MAX),
-            )
-            .map(|(k, q)| (k.3, *q))
-            .collect()
+        series_of(&self.rows, catchment, strategy, variable)
+    }
+
+    /// The series of `variable` over years at node `node`.
+    pub fn series_arriving(&self, node: &str, strategy: &str, variable: &str) -> Vec<(i32, Quantiles)> {
+        series_of(&self.arriving, node, strategy, variable)
     }
 
     /// Catchments (and `basin`) present.
@@ -187,7 +215,14 @@ pub struct NodeYear {
 }
 
 pub(super) fn read_summary(t: &CsvTable, contaminants: &[String], problems: &mut Vec<Problem>) -> (Vec<i32>, Vec<SummaryRow>) {
-    let id = t.require(&summary::ID, problems);
+    // `scope` is optional: older runs had local and basin rows only.
+    let id_cols: Vec<&str> = summary::ID.iter().copied().filter(|c| *c != summary::SCOPE).collect();
+    let id = t.require(&id_cols, problems);
+    let scope_col = t.col(summary::SCOPE);
+    let optional = |f: fn(&str) -> String| -> Vec<Option<usize>> { contaminants.iter().map(|c| t.col(&f(c))).collect() };
+    let status_cols = optional(summary::guideline_status);
+    let invasion_first_cols = optional(summary::invasion_exceedance_first_year);
+    let invasion_years_cols = optional(summary::invasion_exceedance_years);
     let mut offsets: Vec<(i32, usize)> =
         t.headers.iter().enumerate().filter_map(|(i, h)| summary::offset_of(h).map(|o| (o as i32, i))).collect();
     offsets.sort();
@@ -205,14 +240,32 @@ pub(super) fn read_summary(t: &CsvTable, contaminants: &[String], problems: &mut
                 values.insert(name.to_string(), v);
             }
         }
+        let catchment = t.text(r, id[0]).to_string();
+        let scope = match scope_col {
+            Some(c) => t.text(r, c).to_string(),
+            None if catchment == crate::schema::BASIN_ID => columns::scope::BASIN.to_string(),
+            None => columns::scope::LOCAL.to_string(),
+        };
+        if !columns::scope::ORDER.contains(&scope.as_str()) {
+            problems.push(
+                Problem::in_file(&t.path, format!("'{scope}' is not a scope; expected one of {}", columns::scope::ORDER.join(", ")))
+                    .row(t.lines[r])
+                    .column(summary::SCOPE),
+            );
+        }
+        let ints = |cols: &[Option<usize>], p: &mut Vec<Problem>| cols.iter().map(|c| c.and_then(|c| t.int(r, c, p))).collect();
         rows.push(SummaryRow {
-            catchment: t.text(r, id[0]).to_string(),
+            catchment,
+            scope,
             name: t.text(r, id[1]).to_string(),
             strategy: t.text(r, id[2]).to_string(),
             area_ha: t.req_num(r, id[3], problems),
             at_offsets: offsets.iter().map(|&(_, c)| t.num(r, c, problems)).collect(),
             values,
             first_exceedance: exceed.iter().map(|&c| t.int(r, c, problems)).collect(),
+            status: status_cols.iter().map(|c| c.map(|c| t.text(r, c).to_string()).unwrap_or_default()).collect(),
+            invasion_first: ints(&invasion_first_cols, problems),
+            invasion_years: ints(&invasion_years_cols, problems),
         });
     }
     (offsets.into_iter().map(|o| o.0).collect(), rows)
@@ -348,6 +401,7 @@ pub(super) fn read_ensemble(t: &CsvTable, problems: &mut Vec<Problem>) -> Ensemb
     use ensemble::*;
     let c = t.require(&[CATCHMENT, STRATEGY, YEAR, VARIABLE, P5, P25, P50, P75, P95, MEAN, MEMBERS], problems);
     let prob = t.col(PROB_ABOVE_GUIDELINE);
+    let scope = t.col(SCOPE);
     let mut e = Ensemble::default();
     if !problems.is_empty() {
         return e;
@@ -376,7 +430,12 @@ pub(super) fn read_ensemble(t: &CsvTable, problems: &mut Vec<Problem>) -> Ensemb
             prob_above_guideline: prob.and_then(|k| t.num(r, k, problems)),
         };
         e.members = e.members.max(q.members);
-        e.rows.insert((t.text(r, c[0]).to_string(), t.text(r, c[1]).to_string(), t.text(r, c[3]).to_string(), year), q);
+        let k = key(t.text(r, c[0]), t.text(r, c[1]), t.text(r, c[3]), year);
+        if scope.is_some_and(|s| t.text(r, s) == columns::scope::ARRIVING) {
+            e.arriving.insert(k, q);
+        } else {
+            e.rows.insert(k, q);
+        }
     }
     e
 }
