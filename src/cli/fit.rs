@@ -1,11 +1,14 @@
-//! `yieldshift fit`: fit the curve parameter of gauged catchments to observed flows.
+//! `yieldshift fit`: fit the curve parameter of gauged catchments to observed flows
+//! (annual records), or to long-term means with a regional distribution (`--mean-annual`).
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
+use yieldshift::input::mean_annual::read_mean_annual;
 use yieldshift::input::observed::read_observed;
 use yieldshift::input::scenario::load_scenario;
 use yieldshift::model::fit::{Cover, FitSettings, MAX_MOVING_AVERAGE_YR};
 use yieldshift::plot::Formats;
 use yieldshift::run::fit::{self, parse_donor, FitOptions};
+use yieldshift::run::regional::{self, CurveSetup, MeanAnnualOptions, Target};
 use yieldshift::{Error, Problem};
 
 /// Most bootstrap resamples accepted.
@@ -16,35 +19,57 @@ pub const MIN_BOOTSTRAP: usize = 100;
 /// Arguments of `fit`.
 #[derive(clap::Args, Debug)]
 pub struct FitArgs {
-    /// Scenario file (TOML); its climate table must cover the gauged years.
-    pub scenario: PathBuf,
+    /// Scenario file (TOML). With --observed its climate table must cover the gauged years;
+    /// with --mean-annual it is optional and gives the [hydrology] values held in the fit.
+    #[arg(required_unless_present = "mean_annual")]
+    pub scenario: Option<PathBuf>,
     /// Observed annual flows (CSV: catchment, year, flow_mm or flow_m3).
+    #[arg(long, value_name = "CSV", required_unless_present = "mean_annual", conflicts_with = "mean_annual")]
+    pub observed: Option<PathBuf>,
+    /// Long-term means of gauged catchments (CSV: catchment, rain_mm, pet_mm, flow_mm, forest_fraction[, snow_fraction]):
+    /// fit each catchment and write a regional distribution.
     #[arg(long, value_name = "CSV")]
-    pub observed: PathBuf,
+    pub mean_annual: Option<PathBuf>,
     /// Output folder (created; replaced atomically if it holds an earlier yieldshift output).
     #[arg(long, value_name = "DIR")]
     pub out: PathBuf,
     /// Replace a non-empty output folder that is not a yieldshift output.
     #[arg(long)]
     pub force: bool,
-    /// Which cover's curve parameter to fit; the other is held at its scenario value.
+    /// Which curve parameter to fit: one cover's (the other held at its scenario value), or with
+    /// --mean-annual `catchment`: one curve for the whole catchment.
     #[arg(long, value_enum, default_value = "grass")]
     pub parameter: ParameterArg,
+    /// Curve family with --mean-annual and no scenario (a scenario's [hydrology] method decides otherwise).
+    #[arg(long, value_enum, requires = "mean_annual")]
+    pub method: Option<MethodArg>,
+    /// With --mean-annual: leave out catchments whose snow_fraction is above this (0–1; e.g. 0.15).
+    #[arg(long, value_name = "FRACTION", requires = "mean_annual")]
+    pub max_snow_fraction: Option<f64>,
     /// Moving average (years) applied to observed and simulated yields in the annual-series fit.
-    #[arg(long, value_name = "YEARS", default_value_t = 1)]
+    #[arg(long, value_name = "YEARS", default_value_t = 1, conflicts_with = "mean_annual")]
     pub moving_average_yr: usize,
     /// Bootstrap resamples of the record years for the interval (0 = none).
-    #[arg(long, value_name = "N", default_value_t = 1000)]
+    #[arg(long, value_name = "N", default_value_t = 1000, conflicts_with = "mean_annual")]
     pub bootstrap: usize,
     /// Seed of the bootstrap's random numbers (same seed, same interval).
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, conflicts_with = "mean_annual")]
     pub seed: u64,
     /// Give an ungauged catchment a gauged catchment's fitted values in calibration.toml (repeatable).
-    #[arg(long, value_name = "UNGAUGED=GAUGED")]
+    #[arg(long, value_name = "UNGAUGED=GAUGED", conflicts_with = "mean_annual")]
     pub donor: Vec<String>,
     /// Print nothing but errors.
     #[arg(long, short)]
     pub quiet: bool,
+}
+
+/// `--method` values.
+#[derive(Debug, Clone, Copy, clap::ValueEnum)]
+pub enum MethodArg {
+    /// Zhang et al. (2001): `w`.
+    Zhang,
+    /// Fu (1981): `omega`.
+    Fu,
 }
 
 /// `--parameter` values.
@@ -54,6 +79,8 @@ pub enum ParameterArg {
     Grass,
     /// Forest: `w_forest` (zhang) or `omega_forest` (fu).
     Forest,
+    /// With --mean-annual only: one curve for the whole catchment (forest fraction not used).
+    Catchment,
 }
 
 /// Checks the numeric options and parses `--donor`; every problem together.
@@ -90,6 +117,12 @@ fn options(a: &FitArgs) -> yieldshift::Result<FitOptions> {
         cover: match a.parameter {
             ParameterArg::Grass => Cover::Grass,
             ParameterArg::Forest => Cover::Forest,
+            ParameterArg::Catchment => {
+                return Err(Error::invalid(
+                    Problem::new("catchment (one curve for the whole catchment) is only for --mean-annual; use grass or forest")
+                        .column("--parameter"),
+                ))
+            }
         },
         settings: FitSettings { moving_average_yr: a.moving_average_yr, bootstrap_samples: a.bootstrap, seed: a.seed, level: 0.95 },
         donors,
@@ -99,12 +132,21 @@ fn options(a: &FitArgs) -> yieldshift::Result<FitOptions> {
 
 /// Runs `yieldshift fit`.
 pub fn run(a: &FitArgs) -> anyhow::Result<()> {
+    if let Some(table) = &a.mean_annual {
+        return run_mean_annual(a, table);
+    }
+    let (Some(scenario_path), Some(observed_path)) = (&a.scenario, &a.observed) else {
+        return Err(Error::invalid(
+            Problem::new("give a SCENARIO and --observed FLOWS.csv, or --mean-annual MEANS.csv").column("--observed"),
+        )
+        .into());
+    };
     let opts = options(a)?;
-    let scenario = load_scenario(&a.scenario)?;
-    let observed = read_observed(&a.observed, &scenario)?;
+    let scenario = load_scenario(scenario_path)?;
+    let observed = read_observed(observed_path, &scenario)?;
     if !a.quiet {
         for l in &observed.left_out {
-            say!("note: {}, row {}: {} {} left out: {}", a.observed.display(), l.row, l.catchment, l.year, l.reason)?;
+            say!("note: {}, row {}: {} {} left out: {}", observed_path.display(), l.row, l.catchment, l.year, l.reason)?;
         }
     }
     let outcome = fit::run(&scenario, &observed, &opts)?;
@@ -139,6 +181,90 @@ pub fn run(a: &FitArgs) -> anyhow::Result<()> {
         }
         say!("wrote {} (fit.csv, fit_years.csv, left_out.csv, calibration.toml, {} figures)", outcome.out.display(), outcome.figures)?;
         say!("PBIAS > 0 means the simulation overestimates. Screening estimates only; see run_info.json for cautions.")?;
+    }
+    Ok(())
+}
+
+/// `yieldshift fit --mean-annual`: every catchment of the table fitted from its long-term
+/// means, the left-out ones reported, and the regional distribution written.
+fn run_mean_annual(a: &FitArgs, table_path: &Path) -> anyhow::Result<()> {
+    let mut p = Vec::new();
+    if let Some(m) = a.max_snow_fraction {
+        if !(0.0..=1.0).contains(&m) {
+            p.push(
+                Problem::new(format!("{m} is out of range; allowed 0 to 1 (fraction of precipitation as snow)"))
+                    .column("--max-snow-fraction"),
+            );
+        }
+    }
+    if a.scenario.is_some() && a.method.is_some() {
+        p.push(Problem::new("the scenario's [hydrology] method decides the curve; drop --method or the scenario").column("--method"));
+    }
+    if !p.is_empty() {
+        return Err(Error::Invalid(p).into());
+    }
+    let target = match a.parameter {
+        ParameterArg::Grass => Target::Cover(Cover::Grass),
+        ParameterArg::Forest => Target::Cover(Cover::Forest),
+        ParameterArg::Catchment => Target::Catchment,
+    };
+    let setup = match &a.scenario {
+        Some(path) => {
+            let s = load_scenario(path)?;
+            CurveSetup { curves: s.params.curves, forest_pet_factor: s.params.forest_pet_factor, interception: s.params.interception }
+        }
+        None => CurveSetup::defaults(match a.method {
+            Some(MethodArg::Fu) => "fu",
+            _ => "zhang",
+        }),
+    };
+    let table = read_mean_annual(table_path)?;
+    let opts = MeanAnnualOptions {
+        out: a.out.clone(),
+        force: a.force,
+        target,
+        max_snow_fraction: a.max_snow_fraction,
+        formats: Formats::default(),
+    };
+    let outcome = regional::run(&setup, a.scenario.as_deref(), &table, &opts)?;
+    if !a.quiet {
+        let f = &outcome.fit;
+        let label = f.setup.label(f.target);
+        say!(
+            "{}: fitted {} of {} catchments ({label}, method {}; {})",
+            table_path.display(),
+            f.fitted.len(),
+            f.rows_in_table,
+            f.setup.curves.method_name(),
+            f.subset()
+        )?;
+        for (code, n) in f.left_out_by_reason() {
+            say!("  left out, {code}: {n}")?;
+        }
+        if let Some(s) = f.summary {
+            let q = s.quantiles;
+            say!(
+                "  {label}: n {}, mean {:.3}, sd {:.3}, 5/25/50/75/95 % {:.3} / {:.3} / {:.3} / {:.3} / {:.3}",
+                s.n,
+                s.mean,
+                s.sd,
+                q[0],
+                q[1],
+                q[2],
+                q[3],
+                q[4]
+            )?;
+        }
+        match &f.regional {
+            Ok(r) => say!(
+                "  regional distribution ({}): {}",
+                r.best().shape.name(),
+                regional::distribution_toml(&r.best().dist).unwrap_or_default()
+            )?,
+            Err(e) => say!("  no regional distribution: {e}")?,
+        }
+        say!("wrote {} (fit_mean_annual.csv, catchments_left_out.csv, regional.csv, regional.toml, figures/)", outcome.out.display())?;
+        say!("Screening estimates only; see run_info.json for cautions.")?;
     }
     Ok(())
 }

@@ -42,7 +42,7 @@ pub enum Command {
     Curve(curve::CurveArgs),
     /// Combine the output folders of a sharded run (`run --shard K/N`) into one.
     Merge(run::MergeArgs),
-    /// Fit the water-balance curve parameter of gauged catchments to observed annual flows.
+    /// Fit the water-balance curve parameter of gauged catchments to observed annual flows, or to long-term means (--mean-annual) with a regional distribution.
     Fit(fit::FitArgs),
     /// Compute reference evapotranspiration (FAO-56) from weather records.
     Pet(pet::PetArgs),

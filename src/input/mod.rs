@@ -7,6 +7,7 @@ pub mod budget;
 pub mod catchments;
 pub mod climate;
 pub mod gis;
+pub mod mean_annual;
 pub mod observed;
 pub mod scenario;
 pub mod stands;

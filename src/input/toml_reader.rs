@@ -549,7 +549,7 @@ impl<'a> Section<'a> {
         }
         if msgs.is_empty() {
             let (a, b) = dist.support();
-            if a < lo || (b > hi && !matches!(dist, Distribution::LogNormal { .. })) {
+            if !matches!(dist, Distribution::LogNormal { .. }) && (a < lo || b > hi) {
                 msgs.push(format!(
                     "the distribution reaches {}–{}, outside the allowed {}",
                     fmt_value(a),
@@ -558,10 +558,11 @@ impl<'a> Section<'a> {
                 ));
             }
         }
-        // A log-normal reaches beyond any finite upper bound: draw it truncated to the
-        // allowed range (by inverse CDF, so no probability piles up on the bound).
+        // A log-normal reaches from 0 to infinity, beyond any finite upper bound and
+        // below any lower bound above 0: draw it truncated to the allowed range (by
+        // inverse CDF, so no probability piles up on a bound).
         let dist = match (&dist, msgs.is_empty()) {
-            (Distribution::LogNormal { .. }, true) if dist.support().1 > hi => match dist.truncated(lo, hi) {
+            (Distribution::LogNormal { .. }, true) if dist.support().1 > hi || dist.support().0 < lo => match dist.truncated(lo, hi) {
                 Ok(d) => d,
                 Err(m) => {
                     msgs.push(format!("{kind} distribution cannot be truncated to {}: {m}", range_words(range, unit)));

@@ -22,6 +22,8 @@
 //!    fitted model therefore reproduces the observed mean yield over the years
 //!    used (percent bias 0). When `g` has no sign change on the range, the
 //!    observed mean is impossible for the curve and a [`FitError`] says which way.
+//!    A mean-annual record ([`GaugeRecord::long_term`]) is the case `n = 1`: the
+//!    root of `Q(θ) − Q_obs` for the long-term means themselves.
 //! 2. **Annual-series fit.** The minimum of the sum of squares
 //!    `S(θ) = Σ_w (Q̄_w(θ) − Q̄_obs,w)²` over the allowed range, where `Q̄_w` is the
 //!    mean of window `w` of `k` consecutive calendar years (`k = 1`: the annual
@@ -107,6 +109,8 @@ pub const ROOT_TOL: f64 = 1e-12;
 pub const SERIES_TOL: f64 = 1e-10;
 /// Grid values scanned before the series fit's minimiser refines the best one.
 pub const GRID_POINTS: usize = 121;
+/// The `year` of the single entry of a long-term mean record ([`GaugeRecord::long_term`]).
+pub const LONG_TERM_YEAR: i32 = 0;
 /// Key of the bootstrap's sampling dimension; a record with a catchment id uses
 /// `"fit.bootstrap@<id>"` ([`GaugeRecord::bootstrap_dimension`]).
 pub const BOOTSTRAP_DIMENSION: &str = "fit.bootstrap";
@@ -441,6 +445,17 @@ impl GaugeRecord {
             return Err(FitError::TooFewYears { available: years.len(), needed: MIN_YEARS, window_yr: 1 });
         }
         Ok(GaugeRecord { id: None, curves, cover, canopy_fraction, interception: CanopyInterception::NONE, years })
+    }
+
+    /// A record of one long-term mean (the mean-annual fit mode): mean rainfall, PET
+    /// and observed yield, all mm/yr, held as a single record entry with year
+    /// [`LONG_TERM_YEAR`]. Only [`Self::fit_mean`] applies to it (the series fit and the
+    /// bootstrap need [`MIN_YEARS`] years). Values are checked as in [`Self::new`].
+    pub fn long_term(curves: CoverCurves, cover: Cover, canopy_fraction: f64, mean: GaugeYear) -> Result<GaugeRecord, FitError> {
+        let mut three = GaugeRecord::new(curves, cover, canopy_fraction, vec![mean; MIN_YEARS])?;
+        three.years.truncate(1);
+        three.years[0].year = LONG_TERM_YEAR;
+        Ok(three)
     }
 
     /// The record of catchment `c` under `params`: its curves (with any earlier

@@ -40,6 +40,7 @@ pub mod network;
 pub mod params;
 pub mod pet;
 pub mod projection;
+pub mod regional;
 pub mod roots;
 pub mod skill;
 pub mod stats;

@@ -14,5 +14,6 @@ pub mod deterministic;
 pub mod ensemble;
 pub mod finish;
 pub mod fit;
+pub mod regional;
 pub mod sensitivity;
 pub mod shard;

@@ -571,3 +571,85 @@ mod tests {
         }
     }
 }
+
+// Mean-annual fit and regional distribution (`yieldshift fit --mean-annual`).
+
+/// `fit_mean_annual.csv`: one row per catchment fitted from its long-term means.
+pub mod fit_mean_annual {
+    /// File name.
+    pub const FILE: &str = "fit_mean_annual.csv";
+    /// The header.
+    pub const COLUMNS: [&str; 15] = [
+        super::CATCHMENT,
+        "name",
+        "row",
+        "method",
+        "parameter",
+        "value_fit",
+        "rain_mm",
+        "pet_mm",
+        "flow_mm",
+        "simulated_flow_mm",
+        "evaporative_ratio_observed",
+        "aridity_index",
+        "forest_fraction",
+        "snow_fraction",
+        "canopy_fraction_used",
+    ];
+}
+
+/// `catchments_left_out.csv`: catchments of the mean-annual table that were not fitted, with the reason.
+pub mod catchments_left_out {
+    /// File name.
+    pub const FILE: &str = "catchments_left_out.csv";
+    /// The header.
+    pub const COLUMNS: [&str; 11] = [
+        super::CATCHMENT,
+        "name",
+        "row",
+        "reason_code",
+        "reason",
+        "rain_mm",
+        "pet_mm",
+        "flow_mm",
+        "evaporative_ratio_observed",
+        "aridity_index",
+        "snow_fraction",
+    ];
+}
+
+/// `regional.csv`: the distribution of the fitted parameter, one statistic a row.
+pub mod regional {
+    /// File name.
+    pub const FILE: &str = "regional.csv";
+    /// The scenario snippet written beside it.
+    pub const TOML_FILE: &str = "regional.toml";
+    /// The header.
+    pub const COLUMNS: [&str; 2] = ["statistic", "value"];
+    /// Statistic names, in the order written (quantiles follow `q05` … `q95`).
+    pub const STATISTICS: [&str; 23] = [
+        "method",
+        "parameter",
+        "subset",
+        "catchments_in_table",
+        "catchments_fitted",
+        "catchments_left_out",
+        "n",
+        "mean",
+        "sd",
+        "min",
+        "q05",
+        "q25",
+        "q50",
+        "q75",
+        "q95",
+        "max",
+        "distribution",
+        "distribution_toml",
+        "misfit_truncated_normal",
+        "misfit_lognormal",
+        "misfit_pert",
+        "q05_distribution",
+        "q95_distribution",
+    ];
+}

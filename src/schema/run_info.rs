@@ -463,6 +463,54 @@ impl FitRunInfo {
     }
 }
 
+/// The `run_info.json` of `yieldshift fit --mean-annual` (long-term means, regional distribution).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct MeanAnnualFitRunInfo {
+    /// Catchments fitted.
+    pub catchments_fitted: usize,
+    /// Rows of the mean-annual table.
+    pub catchments_in_table: usize,
+    /// Catchments left out (every reason).
+    pub catchments_left_out: usize,
+    /// The general cautions and those of the regional distribution.
+    pub cautions: String,
+    /// [`FIT_COMMAND`].
+    pub command: String,
+    /// What was fitted: `grass`, `forest` or `catchment` (one curve for the whole catchment).
+    pub cover_fitted: String,
+    /// The regional distribution as written in `regional.toml`, if one was fitted.
+    pub distribution: Option<String>,
+    /// [`MEAN_ANNUAL_FIT_MODE`].
+    pub fit_mode: String,
+    /// Forest PET as a multiple of grass PET.
+    pub forest_pet_factor: f64,
+    /// `zhang` or `fu`.
+    pub hydrology_method: String,
+    /// Canopy interception: share of the loss taken from the transpiration demand.
+    pub interception_demand_share: f64,
+    /// Canopy interception: fraction of rain of a closed canopy (0 = off).
+    pub interception_fraction: f64,
+    /// Catchments left out, by reason code.
+    pub left_out_by_reason: std::collections::BTreeMap<String, usize>,
+    /// `--max-snow-fraction`, if given.
+    pub max_snow_fraction: Option<f64>,
+    /// The mean-annual table as given.
+    pub mean_annual_table: String,
+    /// Scenario key of the fitted parameter (`w_grass`, ...).
+    pub parameter: String,
+    /// Scenario file as given, if any (without one, the parameter table's defaults).
+    pub scenario: Option<String>,
+    /// Which catchments the distribution describes.
+    pub subset: String,
+    /// [`TOOL`].
+    pub tool: String,
+    /// Version of yieldshift.
+    pub version: String,
+}
+
+/// `fit_mode` of [`MeanAnnualFitRunInfo`].
+pub const MEAN_ANNUAL_FIT_MODE: &str = "mean-annual";
+
 /// Pretty JSON and a final line end, as every JSON file of a run folder is written.
 pub fn to_json<T: Serialize>(value: &T) -> Result<String> {
     serde_json::to_string_pretty(value).map(|t| t + "\n").map_err(|e| Error::Other(format!("writing JSON: {e}")))
