@@ -84,7 +84,14 @@ fn demo_run_writes_every_output() {
                 .iter()
                 .any(|suf| p.file_name().unwrap().to_string_lossy().ends_with(suf))
         })
+        .filter(|p| !p.file_name().unwrap().to_string_lossy().contains("_arriving_"))
         .count();
+    // What arrives at each receiving node: its change and each concentration.
+    for node in ["cairn", "ardmere-lower"] {
+        for what in ["yield", "nitrate_n", "total_p"] {
+            assert!(out.join("figures").join(format!("{node}_arriving_{what}.png")).exists(), "{node}_arriving_{what}");
+        }
+    }
     for id in ["scree", "tussock-flat", "mistle", "cairn", "greywacke", "ardmere-lower"] {
         for suffix in ["yield_range", "sensitivity"] {
             assert!(out.join("figures").join(format!("{id}_{suffix}.png")).exists(), "{id}_{suffix}");
@@ -237,6 +244,19 @@ fn pet_from_weather_feeds_the_projection_and_matches_the_pet_command() {
     assert!(o.status.success(), "{}", text(&o));
     let info = std::fs::read_to_string(out.join("run_info.json")).unwrap();
     assert!(info.contains("\"method\": \"hargreaves\""), "{info}");
+    // The weather covers 2020–2021 of the 2020–2023 projection: warned, recorded per
+    // catchment and stated in the report's methods, never spliced silently.
+    assert!(text(&o).contains("warning:") && text(&o).contains("in 2 of its 4 projected years"), "{}", text(&o));
+    let ri: serde_json::Value = serde_json::from_str(&info).unwrap();
+    let partial = ri["pet_from_weather"]["partial"].as_array().unwrap();
+    assert_eq!(partial.len(), 6, "{info}");
+    assert_eq!(partial[0]["weather_years"], 2);
+    assert_eq!(partial[0]["long_term_years"], 2);
+    let md = std::fs::read_to_string(out.join("report.md")).unwrap();
+    assert!(
+        md.contains("by the hargreaves method") && md.contains("covers only part of the projection"),
+        "report methods lack the PET source"
+    );
     let o = run(&[
         "pet",
         dir.join("weather.csv").to_str().unwrap(),

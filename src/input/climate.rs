@@ -38,9 +38,9 @@ pub struct ClimateTable {
 }
 
 impl ClimateTable {
-    /// The climate of `id` in `year`, filling absent variables from `mean`.
-    pub fn year_for(&self, id: &str, year: i32, mean: ClimateYear, rule: BeyondRecord) -> ClimateYear {
-        let Some((first, vals)) = self.series.get(id) else { return mean };
+    /// The record year that projected `year` of `id` uses, if any.
+    fn record_year(&self, id: &str, year: i32, rule: BeyondRecord) -> Option<&RecordYear> {
+        let (first, vals) = self.series.get(id)?;
         let n = vals.len() as i32;
         let offset = year - first;
         let idx = if (0..n).contains(&offset) {
@@ -51,10 +51,20 @@ impl ClimateTable {
                 BeyondRecord::Mean | BeyondRecord::Error => None,
             }
         };
-        match idx {
-            Some(i) => ClimateYear { rain_mm: vals[i].0.unwrap_or(mean.rain_mm), pet_mm: vals[i].1.unwrap_or(mean.pet_mm) },
+        idx.map(|i| &vals[i])
+    }
+
+    /// The climate of `id` in `year`, filling absent variables from `mean`.
+    pub fn year_for(&self, id: &str, year: i32, mean: ClimateYear, rule: BeyondRecord) -> ClimateYear {
+        match self.record_year(id, year, rule) {
+            Some(v) => ClimateYear { rain_mm: v.0.unwrap_or(mean.rain_mm), pet_mm: v.1.unwrap_or(mean.pet_mm) },
             None => mean,
         }
+    }
+
+    /// How many of `years` take their PET from the record (the rest use the long-term mean).
+    pub fn pet_record_years(&self, id: &str, years: impl Iterator<Item = i32>, rule: BeyondRecord) -> usize {
+        years.filter(|&y| self.record_year(id, y, rule).is_some_and(|v| v.1.is_some())).count()
     }
 
     /// `(catchment, first year, last year)` of each record, sorted by catchment.

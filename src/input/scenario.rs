@@ -73,6 +73,9 @@ pub struct Scenario {
     pub warnings: Vec<String>,
     /// When PET comes from a weather table (`[climate] weather`): the file and the FAO-56 method used.
     pub pet_source: Option<(PathBuf, String)>,
+    /// Catchments whose projection takes PET from the weather table in only some years:
+    /// `(catchment, years from the weather, years at the long-term mean)`.
+    pub pet_fallback: Vec<(String, usize, usize)>,
     /// Ensemble settings (`[ensemble]`), if any.
     pub ensemble: Option<EnsembleConfig>,
 }
@@ -270,6 +273,7 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
         _ => None,
     };
     let mut pet_source = None;
+    let mut pet_fallback = Vec::new();
     let mut climate = climate;
     if let (Some(w), false) = (&raw.weather, catchments.is_empty()) {
         match crate::input::weather::compute_pet_file(&w.path, &w.site, w.choice) {
@@ -302,7 +306,25 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
                         None => records.extend(ids.iter().map(|id| (id.to_string(), a.year, a.pet_mm))),
                     }
                 }
-                climate = Some(climate.unwrap_or_default().with_pet(&records));
+                let table = climate.unwrap_or_default().with_pet(&records);
+                // Where the weather covers only part of a catchment's projection, the
+                // other years fall back to its long-term PET: say so (issue: a silent splice).
+                let n_years = raw.horizon_years + 1;
+                for c in &catchments {
+                    let years = raw.start_year..=raw.start_year + raw.horizon_years as i32;
+                    let from_weather = table.pet_record_years(&c.id, years, raw.beyond_record);
+                    if from_weather < n_years {
+                        warnings.push(format!(
+                            "{}: catchment '{}' has PET from the weather table in {from_weather} of its {n_years} projected years; \
+                             the other {} use its long-term pet_mm from the catchment table",
+                            w.path.display(),
+                            c.id,
+                            n_years - from_weather
+                        ));
+                        pet_fallback.push((c.id.clone(), from_weather, n_years - from_weather));
+                    }
+                }
+                climate = Some(table);
                 pet_source = Some((w.path.clone(), out.method.name().to_string()));
             }
         }
@@ -361,6 +383,7 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
         uncertain: raw.uncertain,
         ensemble: raw.ensemble,
         pet_source,
+        pet_fallback,
         calibration_links,
         gis,
         warnings,

@@ -202,7 +202,10 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
         }
     }
 
-    // 4. Ensemble ranges over time.
+    // 4. What arrives at the receiving nodes.
+    arriving_figures(d, &dir, formats, &mut out)?;
+
+    // 5. Ensemble ranges over time.
     if let Some(e) = &d.ensemble {
         // Only for the catchments the report details (all of them in small basins).
         let mut subjects: Vec<(String, String)> = d.detailed_catchments().into_iter().map(|c| (c.0.clone(), c.1.clone())).collect();
@@ -269,6 +272,87 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
         }
     }
     Ok(out)
+}
+
+/// Stem of the figures of what arrives at a receiving node (kept apart from the
+/// node catchment's own figures).
+pub fn arriving_stem(id: &str) -> String {
+    format!("{}_arriving", file_stem(id))
+}
+
+/// Figures of what arrives at each receiving node without control: the yield change
+/// (each year and its 10-year mean, central run) and each concentration, with the
+/// ensemble's bands when an ensemble ran.
+fn arriving_figures(d: &RunData, dir: &std::path::Path, formats: Formats, out: &mut Vec<Drawn>) -> Result<()> {
+    use crate::schema::columns::ensemble::YIELD_CHANGE_10YR_MEAN_PCT;
+    for ((id, strategy), years) in &d.nodes {
+        if strategy != NO_CONTROL || years.is_empty() {
+            continue;
+        }
+        let name = d.arriving.iter().find(|r| &r.catchment == id).map_or_else(|| id.clone(), |r| r.name.clone());
+        let stem = arriving_stem(id);
+        let vol: Vec<f64> = years.iter().map(|y| y.yield_m3).collect();
+        let base: Vec<f64> = years.iter().map(|y| y.baseline_yield_m3).collect();
+        let mut lines = vec![
+            Line {
+                label: "Each year (central parameters)".into(),
+                points: years.iter().map(|y| (y.year as f64, y.change_pct)).collect(),
+                colour: palette::BASELINE,
+                dashed: true,
+            },
+            Line {
+                label: "10-year mean (central parameters)".into(),
+                points: years
+                    .iter()
+                    .enumerate()
+                    .map(|(t, y)| (y.year as f64, crate::model::summary::window_change_pct(&vol, &base, t)))
+                    .collect(),
+                colour: palette::YIELD,
+                dashed: false,
+            },
+        ];
+        let qs = d.ensemble.as_ref().map(|e| e.series_arriving(id, NO_CONTROL, YIELD_CHANGE_10YR_MEAN_PCT)).unwrap_or_default();
+        if !qs.is_empty() {
+            lines.push(Line {
+                label: "Ensemble median (10-year mean)".into(),
+                points: qs.iter().map(|(y, q)| (*y as f64, Some(q.p50))).collect(),
+                colour: palette::RANGE,
+                dashed: true,
+            });
+        }
+        let mut chart =
+            LineChart::over_years(format!("{name} — change of the water arriving"), "Yield change vs baseline (%)".into(), lines);
+        chart.bands = if qs.is_empty() { Vec::new() } else { bands(&qs, palette::YIELD) };
+        chart.legend_at = Corner::LowerLeft;
+        save_figure(&chart, &dir.join(format!("{stem}_yield")), formats)?;
+        out.push(Drawn { stem: format!("{stem}_yield"), note: id.clone() });
+        for (k, c) in d.info.contaminants.iter().enumerate() {
+            let qs = d.ensemble.as_ref().map(|e| e.series_arriving(id, NO_CONTROL, &format!("{}_mg_per_l", c.name))).unwrap_or_default();
+            let mut lines = vec![Line {
+                label: "Central parameters".into(),
+                points: years.iter().map(|y| (y.year as f64, y.conc.get(k).copied().flatten())).collect(),
+                colour: palette::series(k + 1),
+                dashed: false,
+            }];
+            if !qs.is_empty() {
+                lines.push(Line {
+                    label: "Ensemble median".into(),
+                    points: qs.iter().map(|(y, q)| (*y as f64, Some(q.p50))).collect(),
+                    colour: palette::RANGE,
+                    dashed: true,
+                });
+            }
+            let mut chart = LineChart::over_years(format!("{name} — {} arriving", c.name), format!("{} (mg/L)", c.name), lines);
+            chart.bands = if qs.is_empty() { Vec::new() } else { bands(&qs, palette::series(k + 1)) };
+            chart.thresholds =
+                c.guideline_mg_per_l.map(|g| vec![(format!("Guideline {g} mg/L"), g, palette::GUIDELINE)]).unwrap_or_default();
+            chart.legend_at = Corner::UpperLeft;
+            let stem_c = format!("{stem}_{}", c.name);
+            save_figure(&chart, &dir.join(&stem_c), formats)?;
+            out.push(Drawn { stem: stem_c, note: id.clone() });
+        }
+    }
+    Ok(())
 }
 
 /// Starts of `window`-year windows over `n` years, evenly spaced from the first

@@ -425,10 +425,15 @@ fn run_info(s: &Scenario) -> RunInfo {
         inputs_copied_to: ri::INPUTS_COPIED_TO.into(),
         invasion: (&s.params.invasion).into(),
         min_runoff_mm: Some(s.params.min_runoff_mm),
-        pet_from_weather: s
-            .pet_source
-            .as_ref()
-            .map(|(p, m)| ri::PetFromWeather { method: m.clone(), weather_table: p.display().to_string() }),
+        pet_from_weather: s.pet_source.as_ref().map(|(p, m)| ri::PetFromWeather {
+            method: m.clone(),
+            weather_table: p.display().to_string(),
+            partial: s
+                .pet_fallback
+                .iter()
+                .map(|(c, w, l)| ri::PetPartial { catchment: c.clone(), weather_years: *w, long_term_years: *l })
+                .collect(),
+        }),
         scenario: s.path.display().to_string(),
         stand_table: s.stands_path.as_ref().map(|p| p.display().to_string()),
         start_year: s.start_year,

@@ -360,6 +360,21 @@ pub struct PetFromWeather {
     pub method: String,
     /// Weather table as given.
     pub weather_table: String,
+    /// Catchments whose projection has PET from the weather table in only some years;
+    /// the other years use the catchment table's long-term `pet_mm`.
+    #[serde(default)]
+    pub partial: Vec<PetPartial>,
+}
+
+/// A catchment whose PET comes from the weather table in only some projected years.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct PetPartial {
+    /// Catchment id.
+    pub catchment: String,
+    /// Projected years with PET from the weather table.
+    pub weather_years: usize,
+    /// Projected years at the long-term `pet_mm`.
+    pub long_term_years: usize,
 }
 
 impl RunInfo {

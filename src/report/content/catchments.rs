@@ -1,4 +1,4 @@
-//! Section 4, by place: the catchment overview and details, and the receiving nodes.
+//! Section 4, by place: the catchment overview and details (the receiving nodes are in `intakes`).
 
 use super::economics::economics_table;
 use super::*;
@@ -180,7 +180,13 @@ pub(super) fn catchment_detail(d: &RunData, doc: &mut Doc, id: &str, name: &str)
                                 Some(
                                     Source::new(
                                         "ensemble.csv",
-                                        &[id, NO_CONTROL, &i.end_year().to_string(), &format!("{}_mg_per_l", c.name)],
+                                        &[
+                                            id,
+                                            crate::schema::columns::scope::LOCAL,
+                                            NO_CONTROL,
+                                            &i.end_year().to_string(),
+                                            &format!("{}_mg_per_l", c.name),
+                                        ],
                                         "prob_above_guideline",
                                     )
                                     .scaled(0.01),
@@ -246,63 +252,4 @@ pub(super) fn catchment_detail(d: &RunData, doc: &mut Doc, id: &str, name: &str)
         figure_if(d, doc, &s, Text::new().plain(format!("{name}: {} concentration without control{g}{bands}.", c.name)));
     }
     figure_if(d, doc, &format!("{stem}_cover"), Text::new().plain(format!("{name}: infested area by density class without control.")));
-}
-
-pub(super) fn nodes_results(d: &RunData, doc: &mut Doc) {
-    let i = &d.info;
-    let nodes: Vec<&String> = d.nodes.keys().filter(|(_, st)| st == NO_CONTROL).map(|(n, _)| n).collect();
-    if nodes.is_empty() {
-        return;
-    }
-    doc.heading(3, "Receiving nodes");
-    let mut head = vec!["Node".to_string(), "Catchments upstream (incl. itself)".into(), format!("Yield change in {}, %", i.end_year())];
-    for c in &i.contaminants {
-        head.push(format!("{} in {}, mg/L", c.name, i.end_year()));
-        head.push(format!("{} first year above guideline", c.name));
-    }
-    let mut rows = Vec::new();
-    for n in &nodes {
-        let ys = &d.nodes[&((*n).clone(), NO_CONTROL.to_string())];
-        let Some(last) = ys.last() else { continue };
-        let key = |y: i32| vec![n.as_str().to_string(), NO_CONTROL.to_string(), y.to_string()];
-        let src = |y: i32, col: &str| {
-            let k = key(y);
-            Some(Source { file: "nodes.csv".into(), key: k, column: col.into(), scale: 1.0 })
-        };
-        let mut row = vec![
-            Text::new().plain(display_name(d, n)).plain(" (").code(n.as_str()).plain(")"),
-            Text::new().num(last.upstream.to_string(), src(last.year, "upstream_catchments")),
-            match last.change_pct {
-                Some(v) => Text::new().num(signed(v, 1), src(last.year, "yield_change_pct")),
-                None => undefined(),
-            },
-        ];
-        for (k, c) in i.contaminants.iter().enumerate() {
-            let col = format!("{}_mg_per_l", c.name);
-            row.push(match last.conc.get(k).copied().flatten() {
-                Some(v) => Text::new().num(sig(v, 3), src(last.year, &col)),
-                None => undefined(),
-            });
-            row.push(match c.guideline_mg_per_l {
-                None => Text::from("no guideline"),
-                Some(g) => match ys.iter().find(|y| y.conc.get(k).copied().flatten().is_some_and(|v| v > g)) {
-                    Some(y) => Text::new()
-                        .num(y.year.to_string(), src(y.year, &col))
-                        .plain(" (")
-                        .num(sig(y.conc[k].unwrap_or(f64::NAN), 3), src(y.year, &col))
-                        .plain(" mg/L)"),
-                    None => Text::from("not exceeded"),
-                },
-            });
-        }
-        rows.push(row);
-    }
-    let n = head.len();
-    doc.table(Table {
-        caption: "Catchments that receive flow from others (e.g. a supply intake): pooled volumes and flow-weighted concentrations without control".into(),
-        align: (0..n).map(|k| if k == 0 || (k >= 4 && (k - 4) % 2 == 0) { Align::Left } else { Align::Right }).collect(),
-        head,
-        rows,
-        note: Some(Text::new().plain("Source: ").code("nodes.csv").plain("; the first year above a guideline is the first row of the node whose concentration exceeds it.")),
-    });
 }

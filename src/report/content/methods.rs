@@ -95,6 +95,7 @@ pub(super) fn methods_section(d: &RunData, doc: &mut Doc) {
                 ),
         );
     }
+    doc.para(pet_provenance(d));
     if d.scenario.as_ref().is_some_and(|s| s.table.contains_key("calibration")) {
         doc.para("The scenario has [[calibration]] entries: the catchments named there use their own fitted curve parameters (listed under Inputs) instead of the values above.");
     }
@@ -238,4 +239,46 @@ pub(super) fn methods_section(d: &RunData, doc: &mut Doc) {
             );
         }
     }
+}
+
+/// Where each catchment's potential evapotranspiration comes from.
+fn pet_provenance(d: &RunData) -> Text {
+    let i = &d.info;
+    let mut t = Text::new().strong("Potential evapotranspiration (E0). ");
+    match &i.pet_from_weather {
+        Some(w) => {
+            t = t.plain(format!(
+                "Computed from the daily weather table {} by the {} method (FAO Irrigation and Drainage Paper 56, Allen et al. 1998; \
+                 yieldshift pet), summed to annual totals for every catchment and year the table covers",
+                w.weather_table, w.method
+            ));
+            if w.partial.is_empty() {
+                t = t.plain("; every projected year of every catchment has it.");
+            } else {
+                t = t.plain(
+                    ". The table covers only part of the projection of these catchments, whose other years use the long-term pet_mm \
+                     of the catchment table (a step between the two is possible): ",
+                );
+                for (k, p) in w.partial.iter().enumerate() {
+                    if k > 0 {
+                        t = t.plain("; ");
+                    }
+                    t = t.code(&p.catchment).plain(format!(
+                        " {} of {} years from the weather table",
+                        p.weather_years,
+                        p.weather_years + p.long_term_years
+                    ));
+                }
+                t = t.plain(".");
+            }
+        }
+        None if i.climate_table.is_some() => {
+            t = t.plain(
+                "From the climate table's pet_mm where it gives one for the year (as given by the user: its method is the user's), \
+                 otherwise the catchment table's long-term pet_mm.",
+            )
+        }
+        None => t = t.plain("The catchment table's long-term pet_mm, every year (as given by the user: its method is the user's)."),
+    }
+    t
 }

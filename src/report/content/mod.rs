@@ -8,6 +8,7 @@ mod catchments;
 mod cautions;
 mod economics;
 mod inputs;
+mod intakes;
 mod methods;
 mod sensitivity;
 mod summary;
@@ -16,6 +17,7 @@ use super::doc::{Align, Doc, Figure, Source, Table, Text};
 use super::figures::{self as figs, Drawn};
 use super::fmt::{fixed, sig, signed, UNDEFINED};
 use crate::report::folder::{RunData, SummaryRow};
+use crate::schema::columns::scope;
 use crate::schema::columns::summary as sc;
 use crate::schema::file_stem;
 use crate::schema::run_info::Curves;
@@ -32,8 +34,23 @@ const SUMMARY: &str = "summary.csv";
 const RANKED_RESULT: &str = "yield change against the baseline";
 const MILLION: f64 = 1e6;
 
+/// The scope of a catchment's own row, or of the basin row.
+fn own_scope(catchment: &str) -> &'static str {
+    if catchment == BASIN_ID {
+        scope::BASIN
+    } else {
+        scope::LOCAL
+    }
+}
+
+/// A cell of a catchment's own (or the basin's) row of `summary.csv`.
 fn s_src(catchment: &str, strategy: &str, col: &str) -> Source {
-    Source::new(SUMMARY, &[catchment, strategy], col)
+    Source::new(SUMMARY, &[catchment, own_scope(catchment), strategy], col)
+}
+
+/// A cell of this row of `summary.csv` (any scope).
+fn row_src(r: &SummaryRow, col: &str) -> Source {
+    Source::new(SUMMARY, &[&r.catchment, &r.scope, &r.strategy], col)
 }
 
 fn undefined() -> Text {
@@ -43,17 +60,38 @@ fn undefined() -> Text {
 /// A summary value as a change in % (1 decimal, signed).
 fn pct_cell(r: &SummaryRow, col: &str, v: Option<f64>) -> Text {
     match v {
-        Some(v) => Text::new().num(signed(v, 1), Some(s_src(&r.catchment, &r.strategy, col))),
+        Some(v) => Text::new().num(signed(v, 1), Some(row_src(r, col))),
         None => undefined(),
     }
 }
 
-/// The ensemble range of `variable` for a catchment, strategy and year as " (p5 to p95)".
+/// The ensemble range of `variable` for a catchment (its own rows) or the basin,
+/// strategy and year as " (p5 to p95)".
 fn range_text(d: &RunData, catchment: &str, strategy: &str, variable: &str, year: i32, decimals: usize, signed_fmt: bool) -> Text {
+    range_text_in(d, own_scope(catchment), catchment, strategy, variable, year, decimals, signed_fmt)
+}
+
+/// [`range_text`] for rows of any scope (`arriving` rows of a receiving node).
+#[allow(clippy::too_many_arguments)]
+fn range_text_in(
+    d: &RunData,
+    in_scope: &str,
+    catchment: &str,
+    strategy: &str,
+    variable: &str,
+    year: i32,
+    decimals: usize,
+    signed_fmt: bool,
+) -> Text {
     let Some(e) = &d.ensemble else { return Text::new() };
-    let Some(q) = e.get(catchment, strategy, variable, year) else { return Text::new() };
+    let q = if in_scope == scope::ARRIVING {
+        e.get_arriving(catchment, strategy, variable, year)
+    } else {
+        e.get(catchment, strategy, variable, year)
+    };
+    let Some(q) = q else { return Text::new() };
     let f = |v: f64| if signed_fmt { signed(v, decimals) } else { fixed(v, decimals) };
-    let key = [catchment, strategy, &year.to_string(), variable];
+    let key = [catchment, in_scope, strategy, &year.to_string(), variable];
     let src = |c: &str| Some(Source::new("ensemble.csv", &key, c));
     Text::new().plain(" (").num(f(q.p5), src("p5")).plain(" to ").num(f(q.p95), src("p95")).plain(")")
 }
@@ -70,8 +108,9 @@ fn change_cells(d: &RunData, r: &SummaryRow) -> Vec<Text> {
         .zip(&r.at_offsets)
         .map(|(&o, val)| {
             pct_cell(r, &offset_col(o), *val).then(if val.is_some() {
-                range_text(
+                range_text_in(
                     d,
+                    &r.scope,
                     &r.catchment,
                     &r.strategy,
                     crate::schema::columns::ensemble::YIELD_CHANGE_10YR_MEAN_PCT,
@@ -84,8 +123,9 @@ fn change_cells(d: &RunData, r: &SummaryRow) -> Vec<Text> {
             })
         })
         .collect();
-    v.push(pct_cell(r, sc::YIELD_CHANGE_HORIZON_PCT, r.get(sc::YIELD_CHANGE_HORIZON_PCT)).then(range_text(
+    v.push(pct_cell(r, sc::YIELD_CHANGE_HORIZON_PCT, r.get(sc::YIELD_CHANGE_HORIZON_PCT)).then(range_text_in(
         d,
+        &r.scope,
         &r.catchment,
         &r.strategy,
         crate::schema::columns::ensemble::YIELD_CHANGE_10YR_MEAN_PCT,
@@ -97,26 +137,38 @@ fn change_cells(d: &RunData, r: &SummaryRow) -> Vec<Text> {
 }
 
 fn change_heads(d: &RunData) -> Vec<String> {
-    let mut h: Vec<String> = d.offsets.iter().map(|&o| format!("Yield change at {o} y ({}), %", d.info.start_year + o)).collect();
-    h.push(format!("At horizon ({}), %", d.info.end_year()));
+    let mut h: Vec<String> =
+        d.offsets.iter().map(|&o| format!("Yield change, 10-yr mean to {} ({o} y), %", d.info.start_year + o)).collect();
+    h.push(format!("10-yr mean to the horizon ({}), %", d.info.end_year()));
     h
 }
 
 fn num_cell(r: &SummaryRow, col: &str, f: impl Fn(f64) -> String, scale: f64) -> Text {
     match r.get(col) {
-        Some(v) => Text::new().num(f(v / scale), Some(s_src(&r.catchment, &r.strategy, col).scaled(scale))),
+        Some(v) => Text::new().num(f(v / scale), Some(row_src(r, col).scaled(scale))),
         None => undefined(),
     }
 }
 
+/// A contaminant's guideline status in words: above at the start, first exceeded in a
+/// year, or not exceeded; and the years exceeded because of the invasion.
 fn exceed_cell(r: &SummaryRow, k: usize, name: &str, has_guideline: bool) -> Text {
     if !has_guideline {
         return Text::new().plain("no guideline");
     }
-    match r.first_exceedance.get(k).copied().flatten() {
-        Some(y) => Text::new().num(y.to_string(), Some(s_src(&r.catchment, &r.strategy, &format!("{name}_first_exceedance_year")))),
-        None => Text::new().plain("not exceeded"),
+    let mut t = match (r.status.get(k).map(String::as_str), r.first_exceedance.get(k).copied().flatten()) {
+        (Some("above-at-start"), _) => Text::new().plain("above at the start"),
+        (_, Some(y)) => Text::new().plain("first exceeded in ").num(y.to_string(), Some(row_src(r, &sc::first_exceedance_year(name)))),
+        _ => Text::new().plain("not exceeded"),
+    };
+    if let (Some(Some(y)), Some(Some(n))) = (r.invasion_first.get(k), r.invasion_years.get(k)) {
+        t = t
+            .plain("; because of the invasion in ")
+            .num(n.to_string(), Some(row_src(r, &sc::invasion_exceedance_years(name))))
+            .plain(if *n == 1 { " year, from " } else { " years, from " })
+            .num(y.to_string(), Some(row_src(r, &sc::invasion_exceedance_first_year(name))));
     }
+    t
 }
 
 fn display_name(d: &RunData, id: &str) -> String {
@@ -200,10 +252,11 @@ pub fn build(d: &RunData, drawn: &[Drawn]) -> Doc {
     doc
 }
 
-use catchments::{catchment_detail, catchment_overview, nodes_results};
+use catchments::{catchment_detail, catchment_overview};
 use cautions::{about_section, cautions_section, limitations_section, references_section};
 use economics::{delay_results, economics_results};
 use inputs::inputs_section;
+use intakes::intakes_section;
 use methods::methods_section;
 use sensitivity::sensitivity_results;
 use summary::summary_section;
@@ -215,6 +268,7 @@ fn results_section(d: &RunData, doc: &mut Doc, drawn: &[Drawn]) {
     doc.heading(2, "Results");
     let note_of = |stem: &str| drawn.iter().find(|x| x.stem == stem).map(|x| x.note.clone()).unwrap_or_default();
 
+    intakes_section(d, doc);
     doc.heading(3, "The basin");
     if let Some((_, o)) = figs::comparison_offset(d) {
         figure_if(
@@ -281,7 +335,6 @@ fn results_section(d: &RunData, doc: &mut Doc, drawn: &[Drawn]) {
         catchment_detail(d, doc, id, name);
     }
 
-    nodes_results(d, doc);
     if d.programmes().next().is_some() {
         economics_results(d, doc);
         delay_results(d, doc);

@@ -98,7 +98,7 @@ pub(super) fn summary_section(d: &RunData, doc: &mut Doc) {
             bullets.push(
                 Text::new()
                     .strong("Catchments. ")
-                    .plain(format!("After {o} years the largest change is in {} (", worst.name))
+                    .plain(format!("Over the 10 years to {} the largest change is in {} (", i.start_year + o, worst.name))
                     .then(cell(worst))
                     .plain(format!(" %), the smallest in {} (", best.name))
                     .then(cell(best))
@@ -106,31 +106,43 @@ pub(super) fn summary_section(d: &RunData, doc: &mut Doc) {
             );
         }
     }
-    // Guidelines.
+    // Guidelines: at the intakes (what arrives there) first, then the catchments' own runoff.
     for (k, c) in i.contaminants.iter().enumerate() {
         let Some(g) = c.guideline_mg_per_l else { continue };
-        let mut first: Vec<(&SummaryRow, i32)> = d
-            .summary
-            .iter()
-            .filter(|r| r.strategy == NO_CONTROL && r.catchment != BASIN_ID)
-            .filter_map(|r| r.first_exceedance.get(k).copied().flatten().map(|y| (r, y)))
-            .collect();
-        first.sort_by_key(|x| x.1);
         let mut t = Text::new()
             .strong(format!("{}. ", c.name))
             .plain("Guideline ")
             .num(num_plain(g), Some(Source::new("run_info.json", &[], &format!("contaminants.{}.guideline_mg_per_l", c.name))))
-            .plain(" mg/L: ");
-        if first.is_empty() {
-            t = t.plain("not exceeded in any catchment without control.");
-        } else {
-            t = t.plain(format!("exceeded without control in {} of {} catchments, first in ", first.len(), d.catchments.len()));
-            let (r, y) = first[0];
+            .plain(" mg/L, without control. ");
+        let nodes: Vec<&SummaryRow> = d.arriving.iter().filter(|r| r.strategy == NO_CONTROL).collect();
+        for (n, r) in nodes.iter().enumerate() {
             t = t
-                .plain(format!("{} (", r.name))
-                .num(y.to_string(), Some(s_src(&r.catchment, NO_CONTROL, &format!("{}_first_exceedance_year", c.name))))
-                .plain(").");
+                .plain(if n == 0 { "Arriving at " } else { "; at " })
+                .plain(format!("{}: ", r.name))
+                .then(exceed_cell(r, k, &c.name, true));
         }
+        if !nodes.is_empty() {
+            t = t.plain(". ");
+        }
+        let local: Vec<&SummaryRow> = d.summary.iter().filter(|r| r.strategy == NO_CONTROL && r.catchment != BASIN_ID).collect();
+        let at_start = local.iter().filter(|r| r.status.get(k).is_some_and(|s| s == "above-at-start")).count();
+        let mut first: Vec<(&SummaryRow, i32)> =
+            local.iter().filter_map(|r| r.first_exceedance.get(k).copied().flatten().map(|y| (*r, y))).collect();
+        first.sort_by_key(|x| x.1);
+        let invasion = local.iter().filter(|r| r.invasion_years.get(k).copied().flatten().is_some_and(|n| n > 0)).count();
+        t = t.plain(format!("In the catchments' own (local) runoff: {at_start} of {} above the guideline at the start", local.len()));
+        match first.first() {
+            Some((r, y)) => {
+                t = t
+                    .plain(format!(", {} first exceeded later, earliest {} (", first.len(), r.name))
+                    .num(y.to_string(), Some(s_src(&r.catchment, NO_CONTROL, &sc::first_exceedance_year(&c.name))))
+                    .plain(")");
+            }
+            None => t = t.plain(", none first exceeded later"),
+        }
+        t = t.plain(format!(
+            "; {invasion} exceeded because of the invasion (above the guideline in years when the same catchment without invader is not)."
+        ));
         bullets.push(t);
     }
     // Best programme by benefit-cost ratio (when water has a value) or levelised cost.
@@ -162,7 +174,7 @@ pub(super) fn summary_section(d: &RunData, doc: &mut Doc) {
     if d.ensemble.is_some() {
         let members = d.ensemble.as_ref().map_or(0.0, |e| e.members);
         bullets.push(Text::new().strong("Ranges. ").plain(format!(
-            "Values in brackets are the 5th to 95th percentiles across the {} ensemble members (ensemble.csv); the value before them is the projection with central parameter values.",
+            "Values in brackets are the 5th to 95th percentiles across the {} ensemble members (ensemble.csv) of the same 10-year mean; the value before them is the projection with central parameter values.",
             fixed(members, 0)
         )));
     } else {
@@ -176,7 +188,7 @@ pub(super) fn summary_section(d: &RunData, doc: &mut Doc) {
     let mut head = vec!["Strategy".to_string()];
     head.extend(change_heads(d));
     head.push("Canopy fraction, start → end".into());
-    head.push("Water lost in last year, million m³/yr".into());
+    head.push("Water lost, 10-yr mean to the horizon, million m³/yr".into());
     let rows: Vec<Vec<Text>> = i
         .strategies
         .iter()

@@ -210,6 +210,10 @@ pub struct NodeYear {
     pub upstream: i32,
     /// Yield change vs baseline, %.
     pub change_pct: Option<f64>,
+    /// Volume arriving, m³ (0 in runs that did not write it).
+    pub yield_m3: f64,
+    /// Baseline volume arriving, m³ (0 in runs that did not write it).
+    pub baseline_yield_m3: f64,
     /// Concentrations per contaminant, mg/L.
     pub conc: Vec<Option<f64>>,
 }
@@ -338,6 +342,7 @@ pub(super) fn read_yearly(t: &CsvTable, contaminants: &[String], problems: &mut 
 pub(super) fn read_nodes(t: &CsvTable, contaminants: &[String], problems: &mut Vec<Problem>) -> BTreeMap<(String, String), Vec<NodeYear>> {
     let c = t.require(&[nodes::NODE, nodes::STRATEGY, nodes::YEAR, nodes::UPSTREAM_CATCHMENTS, nodes::YIELD_CHANGE_PCT], problems);
     let conc: Vec<usize> = contaminants.iter().map(|n| t.require(&[columns::mg_per_l(n).as_str()], problems)[0]).collect();
+    let (vol, base) = (t.col(nodes::YIELD_M3), t.col(nodes::BASELINE_YIELD_M3));
     let mut out: BTreeMap<(String, String), Vec<NodeYear>> = BTreeMap::new();
     if !problems.is_empty() {
         return out;
@@ -348,6 +353,8 @@ pub(super) fn read_nodes(t: &CsvTable, contaminants: &[String], problems: &mut V
             year,
             upstream: up,
             change_pct: t.num(r, c[4], problems),
+            yield_m3: vol.and_then(|k| t.num(r, k, problems)).unwrap_or(0.0),
+            baseline_yield_m3: base.and_then(|k| t.num(r, k, problems)).unwrap_or(0.0),
             conc: conc.iter().map(|&k| t.num(r, k, problems)).collect(),
         });
     }
