@@ -609,7 +609,7 @@ mod tests {
                 spread_rate_per_yr: 0.06,
             },
             min_runoff_mm: Some(5.0),
-            pet_from_weather: Some(PetFromWeather { method: "fao56".into(), weather_table: "w.csv".into() }),
+            pet_from_weather: Some(PetFromWeather { method: "fao56".into(), weather_table: "w.csv".into(), partial: Vec::new() }),
             scenario: "s.toml".into(),
             stand_table: None,
             start_year: 2027,
