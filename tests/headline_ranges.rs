@@ -21,7 +21,7 @@ fn bin() -> Command {
 
 /// Parses a number as the report writes it (Unicode minus, thousands separators, `+`).
 fn parse_num(s: &str) -> Option<f64> {
-    s.replace('\u{2212}', "-").replace(',', "").replace('+', "").trim().parse().ok()
+    s.replace('\u{2212}', "-").replace([',', '+'], "").trim().parse().ok()
 }
 
 /// Every "x (a to b)" of the Markdown report, with the line it is on: the token before
