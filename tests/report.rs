@@ -6,7 +6,7 @@
 //! every figure decodes (PNG) or parses (SVG), and the HTML refers to nothing
 //! outside itself.
 
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, BTreeSet};
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 use std::sync::OnceLock;
@@ -504,12 +504,22 @@ fn report_of_the_demo_run_matches_its_files() {
     for r in refs.iter().filter(|r| !r.starts_with("data:")) {
         assert!(r.starts_with('#'), "only in-page links: {r}");
     }
+    // Each figure embedded as a self-contained SVG or as a PNG at report resolution.
     for img in images {
-        let b64 = img.strip_prefix("data:image/png;base64,").expect("PNG data URI");
-        let (size, var) = png_stats(&base64_decode(b64));
-        assert_eq!(size, yieldshift::plot::SIZE);
-        assert!(var > 50.0, "an embedded figure looks blank");
+        if let Some(b64) = img.strip_prefix("data:image/png;base64,") {
+            let (size, var) = png_stats(&base64_decode(b64));
+            assert_eq!(size.0, yieldshift::report::embed::EMBED_WIDTH_PX);
+            assert!(var > 50.0, "an embedded figure looks blank");
+        } else {
+            let b64 = img.strip_prefix("data:image/svg+xml;base64,").expect("PNG or SVG data URI");
+            let svg = String::from_utf8(base64_decode(b64)).unwrap();
+            xml_well_formed(&svg).unwrap();
+            assert!(svg.contains("<text") && !svg.contains("href=\"http"), "an embedded SVG with text, fetching nothing");
+        }
     }
+    // Small enough to e-mail.
+    let bytes = std::fs::metadata(dir.join("report.html")).unwrap().len();
+    assert!(bytes < yieldshift::report::MAX_HTML_BYTES, "report.html is {bytes} bytes");
 
     // The report's own figures were drawn, and the Markdown links figures that exist.
     for stem in ["basin_budyko_space", "basin_yield_change_by_catchment"] {
@@ -710,4 +720,74 @@ fn an_svg_only_run_gets_svg_figures_embedded() {
             panic!("an embedded SVG is not XML: {e}");
         }
     }
+}
+
+/// The HTML between the heading `<h2 …>…title</h2>` and the next `<h2`.
+fn h2_section<'a>(html: &'a str, title: &str) -> &'a str {
+    let start = html.find(&format!("{title}</h2>")).unwrap_or_else(|| panic!("no section {title}"));
+    let rest = &html[start..];
+    &rest[..rest[5..].find("<h2").map_or(rest.len(), |e| e + 5)]
+}
+
+#[test]
+fn the_report_opens_with_an_executive_summary_of_what_reaches_the_nodes() {
+    let html = std::fs::read_to_string(demo_run().join("report.html")).unwrap();
+    let first = html.split("<h2").nth(1).expect("a section");
+    assert!(first.contains("Executive summary</h2>"), "first section: {}", &first[..first.len().min(120)]);
+    let exec = h2_section(&html, "Executive summary");
+    // Every number of the section equals its cell.
+    let counts = check_sources(demo_run(), exec);
+    for f in ["nodes.csv", "summary.csv", "delay.csv", "run_info.json"] {
+        assert!(counts.get(f).copied().unwrap_or(0) > 0, "no numbers from {f}: {counts:?}");
+    }
+    // Each receiving node's change at 20 and 50 years is its nodes.csv cell, and
+    // the node's own local summary.csv row is not used.
+    let nodes = read_csv(&demo_run().join("nodes.csv"));
+    let (nc, sc, yc) = (nodes.col("node"), nodes.col("strategy"), nodes.col("year"));
+    let ids: BTreeSet<String> = nodes.rows.iter().filter(|r| r[sc] == "no-control").map(|r| r[nc].clone()).collect();
+    assert!(ids.contains("ardmere-lower"), "the demo's intake is a node");
+    let sourced = sourced_numbers(exec);
+    for id in &ids {
+        for year in ["2047", "2077"] {
+            assert!(nodes.rows.iter().any(|r| &r[nc] == id && r[yc] == year));
+            let hit = sourced.iter().find(|s| {
+                s.file == "nodes.csv" && s.key == [id.clone(), "no-control".into(), year.into()] && s.column == "yield_change_pct"
+            });
+            assert!(hit.is_some(), "{id} {year}: no nodes.csv yield change in the executive summary");
+        }
+        assert!(
+            !sourced.iter().any(|s| s.file == "summary.csv" && s.key.first() == Some(id)),
+            "{id}: the executive summary uses the node catchment's local row"
+        );
+    }
+    assert!(exec.contains("guideline"), "guideline status");
+    assert!(exec.contains("levelised cost") && exec.contains("years later"), "best programme and delay");
+    assert!(exec.contains("Not a substitute for a site hydrological assessment"), "cautions");
+    let md = std::fs::read_to_string(demo_run().join("report.md")).unwrap();
+    assert!(md.find("Executive summary").unwrap() < md.find("Scenario summary").unwrap());
+}
+
+#[test]
+fn a_report_with_png_figures_only_embeds_them_at_report_resolution_under_the_size_limit() {
+    let (_tmp, dir) = fresh_copy("pngonly");
+    for e in std::fs::read_dir(dir.join("figures")).unwrap() {
+        let p = e.unwrap().path();
+        if p.extension().is_some_and(|x| x == "svg") {
+            std::fs::remove_file(p).unwrap();
+        }
+    }
+    ok(&report(&dir), "yieldshift report");
+    let html = std::fs::read_to_string(dir.join("report.html")).unwrap();
+    assert!((html.len() as u64) < yieldshift::report::MAX_HTML_BYTES, "report.html is {} bytes", html.len());
+    let images: Vec<String> = references(&html).into_iter().filter(|r| r.starts_with("data:")).collect();
+    assert!(images.len() >= 30);
+    for img in images {
+        let b64 = img.strip_prefix("data:image/png;base64,").expect("only PNG figures are there");
+        let ((w, h), var) = png_stats(&base64_decode(b64));
+        assert_eq!((w, h), (yieldshift::report::embed::EMBED_WIDTH_PX, 750));
+        assert!(var > 50.0, "an embedded figure looks blank");
+    }
+    // The files in figures/ keep their full size.
+    let (size, _) = png_stats(&std::fs::read(dir.join("figures").join("basin_budyko_space.png")).unwrap());
+    assert_eq!(size, yieldshift::plot::SIZE);
 }

@@ -68,7 +68,7 @@ pub struct RunData {
     pub climate_input: Option<CsvTable>,
     /// File names present in `figures/`.
     pub figures: BTreeSet<String>,
-    /// Catchments given a detailed section (all, or the [`MAX_DETAILED`] largest losses).
+    /// Catchments given a detailed section (all, or the largest losses up to the limit read with).
     pub detailed: BTreeSet<String>,
     /// Catchments drawn in Budyko space (all, or the [`BUDYKO_MAX`] largest changes).
     pub budyko: BTreeSet<String>,
@@ -80,7 +80,7 @@ pub struct RunData {
 
 impl RunData {
     /// The catchments given a detailed subsection, in table order: all of them, or
-    /// the [`MAX_DETAILED`] with the largest yield loss at the horizon.
+    /// those with the largest yield loss at the horizon up to the limit ([`read_run_with`]).
     pub fn detailed_catchments(&self) -> Vec<&(String, String, f64)> {
         self.catchments.iter().filter(|c| self.detailed.contains(&c.0)).collect()
     }
@@ -110,8 +110,14 @@ fn file_name(p: &str) -> Option<String> {
     Path::new(p).file_name().map(|n| n.to_string_lossy().into_owned())
 }
 
-/// Reads the run folder `dir`.
+/// Reads the run folder `dir`, detailing at most [`MAX_DETAILED`] catchments.
 pub fn read_run(dir: &Path) -> Result<RunData> {
+    read_run_with(dir, MAX_DETAILED)
+}
+
+/// Reads the run folder `dir`; the `detail_limit` catchments with the largest
+/// yield loss at the horizon are given their own pages (and range figures).
+pub fn read_run_with(dir: &Path, detail_limit: usize) -> Result<RunData> {
     if !dir.is_dir() {
         return Err(Error::invalid(Problem::in_file(dir, "is not a folder; give the output folder of `yieldshift run`")));
     }
@@ -142,7 +148,7 @@ pub fn read_run(dir: &Path) -> Result<RunData> {
         ids.sort_by(|a, b| key(a).total_cmp(&key(b)).then_with(|| a.cmp(b)));
         ids.into_iter().take(n).cloned().collect()
     };
-    let detailed = largest(MAX_DETAILED, &|id| horizon(id).unwrap_or(0.0));
+    let detailed = largest(detail_limit, &|id| horizon(id).unwrap_or(0.0));
     let budyko = largest(BUDYKO_MAX, &|id| -horizon(id).map_or(0.0, f64::abs));
 
     let keep: BTreeSet<&String> = detailed.iter().chain(budyko.iter()).collect();
