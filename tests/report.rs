@@ -791,3 +791,53 @@ fn a_report_with_png_figures_only_embeds_them_at_report_resolution_under_the_siz
     let (size, _) = png_stats(&std::fs::read(dir.join("figures").join("basin_budyko_space.png")).unwrap());
     assert_eq!(size, yieldshift::plot::SIZE);
 }
+
+#[test]
+fn report_catchments_limits_the_pages_to_the_most_affected_and_names_the_rest() {
+    let (_tmp, dir) = fresh_copy("pages");
+    let out = bin().arg("report").arg(&dir).arg("--report-catchments").arg("2").output().unwrap();
+    ok(&out, "yieldshift report --report-catchments 2");
+    let html = std::fs::read_to_string(dir.join("report.html")).unwrap();
+    let summary = read_csv(&dir.join("summary.csv"));
+    let (cc, nc, sc, hc) =
+        (summary.col("catchment"), summary.col("name"), summary.col("strategy"), summary.col("yield_change_horizon_pct"));
+    let mut rows: Vec<&Vec<String>> = summary.rows.iter().filter(|r| r[sc] == "no-control" && r[cc] != "basin").collect();
+    rows.sort_by(|a, b| a[hc].parse::<f64>().unwrap().total_cmp(&b[hc].parse::<f64>().unwrap()));
+    let note = html.split("<p>Pages follow for the 2 catchments").nth(1).expect("the note on pages").split("</p>").next().unwrap();
+    for (k, r) in rows.iter().enumerate() {
+        let page = format!("</span>{}</h4>", unescape_name(&r[nc]));
+        if k < 2 {
+            assert!(html.contains(&page), "{} has its page", r[nc]);
+            assert!(!note.contains(&format!("<code>{}</code>", r[cc])), "{} is not left out", r[cc]);
+        } else {
+            assert!(!html.contains(&page), "{} has no page", r[nc]);
+            assert!(note.contains(&format!("<code>{}</code>", r[cc])), "{} is named as left out", r[cc]);
+        }
+    }
+    assert!(note.contains("--report-catchments all"), "how to get every page");
+    // All pages: no note; a word that is not a number is a usage error.
+    ok(&bin().arg("report").arg(&dir).arg("--report-catchments").arg("all").output().unwrap(), "all");
+    let html = std::fs::read_to_string(dir.join("report.html")).unwrap();
+    assert!(!html.contains("left out:"));
+    let bad = bin().arg("report").arg(&dir).arg("--report-catchments").arg("some").output().unwrap();
+    assert_eq!(bad.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&bad.stderr).contains("not a number of catchments"));
+}
+
+fn unescape_name(s: &str) -> String {
+    yieldshift::report::html::escape(s)
+}
+
+#[test]
+fn sensitivity_names_parameters_for_readers_and_keeps_the_key_path() {
+    let sens = read_csv(&demo_run().join("sensitivity.csv"));
+    let (p, l) = (sens.col("parameter"), sens.col("label"));
+    assert!(sens.rows.iter().all(|r| !r[l].is_empty()));
+    assert!(sens.rows.iter().any(|r| r[p] == "invasion.spread_rate_per_yr" && r[l] == "spread_rate_per_yr (invasion)"));
+    let html = std::fs::read_to_string(demo_run().join("report.html")).unwrap();
+    let section = h2_section(&html, "Results");
+    assert!(
+        section.contains("spread_rate_per_yr (invasion) (<code>invasion.spread_rate_per_yr</code>)"),
+        "label and path in the ranking table"
+    );
+}

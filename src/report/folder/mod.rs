@@ -4,6 +4,7 @@
 //! the row (spreadsheet numbering, header = row 1) and the column — never a panic.
 
 mod csv_table;
+mod labels;
 mod rows;
 
 pub use crate::schema::run_info::{ContaminantInfo, RunInfo};
@@ -60,6 +61,8 @@ pub struct RunData {
     pub ensemble: Option<Ensemble>,
     /// `sensitivity.csv`, when present.
     pub sensitivity: Option<Vec<SensitivityRow>>,
+    /// Readable parameter names of `sensitivity.csv` by key path (its `label` column).
+    pub param_labels: BTreeMap<String, String>,
     /// The scenario copied into `inputs/`.
     pub scenario: Option<ScenarioDoc>,
     /// The catchment table copied into `inputs/`.
@@ -98,6 +101,11 @@ impl RunData {
     /// True when `figures/<file>` exists.
     pub fn has_figure(&self, file: &str) -> bool {
         self.figures.contains(file)
+    }
+
+    /// A ranked parameter as a reader names it (its key path when the folder has no label).
+    pub fn param_label<'a>(&'a self, path: &'a str) -> &'a str {
+        self.param_labels.get(path).map_or(path, String::as_str)
     }
 
     /// Strategies other than `no-control`.
@@ -182,6 +190,7 @@ pub fn read_run_with(dir: &Path, detail_limit: usize) -> Result<RunData> {
         budget,
         ensemble,
         sensitivity,
+        param_labels: labels::read_param_labels(dir)?,
         scenario,
         catchment_input,
         climate_input,
