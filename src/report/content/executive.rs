@@ -386,7 +386,7 @@ mod tests {
 
     #[test]
     fn node_sentence_reads_and_keeps_sources() {
-        let r = Ranged { central: v(-3.14, "yield_change_pct"), range: None };
+        let r = Ranged { central: v(-3.12, "yield_change_pct"), range: None };
         let t = node_water_sentence("Lower (intake)", "lower", Some(v(4.0, "upstream_catchments")), &[(20, 2047, r)]);
         assert_eq!(
             t.plain_text(),
@@ -396,7 +396,7 @@ mod tests {
             .0
             .iter()
             .any(|s| matches!(s, Span::Num { src: Some(src), .. } if src.file == "nodes.csv" && src.column == "yield_change_pct")));
-        let ranged = Ranged { central: v(-3.14, "p50"), range: Some((v(-5.0, "p5"), v(-1.04, "p95"))) };
+        let ranged = Ranged { central: v(-3.12, "p50"), range: Some((v(-5.0, "p5"), v(-1.04, "p95"))) };
         assert_eq!(ranged.text(pct).plain_text(), "−3.1 (−5.0 to −1.0)");
     }
 
