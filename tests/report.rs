@@ -6,7 +6,7 @@
 //! every figure decodes (PNG) or parses (SVG), and the HTML refers to nothing
 //! outside itself.
 
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, BTreeSet};
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 use std::sync::OnceLock;
@@ -507,12 +507,22 @@ fn report_of_the_demo_run_matches_its_files() {
     for r in refs.iter().filter(|r| !r.starts_with("data:")) {
         assert!(r.starts_with('#'), "only in-page links: {r}");
     }
+    // Each figure embedded as a self-contained SVG or as a PNG at report resolution.
     for img in images {
-        let b64 = img.strip_prefix("data:image/png;base64,").expect("PNG data URI");
-        let (size, var) = png_stats(&base64_decode(b64));
-        assert_eq!(size, yieldshift::plot::SIZE);
-        assert!(var > 50.0, "an embedded figure looks blank");
+        if let Some(b64) = img.strip_prefix("data:image/png;base64,") {
+            let (size, var) = png_stats(&base64_decode(b64));
+            assert_eq!(size.0, yieldshift::report::embed::EMBED_WIDTH_PX);
+            assert!(var > 50.0, "an embedded figure looks blank");
+        } else {
+            let b64 = img.strip_prefix("data:image/svg+xml;base64,").expect("PNG or SVG data URI");
+            let svg = String::from_utf8(base64_decode(b64)).unwrap();
+            xml_well_formed(&svg).unwrap();
+            assert!(svg.contains("<text") && !svg.contains("href=\"http"), "an embedded SVG with text, fetching nothing");
+        }
     }
+    // Small enough to e-mail.
+    let bytes = std::fs::metadata(dir.join("report.html")).unwrap().len();
+    assert!(bytes < yieldshift::report::MAX_HTML_BYTES, "report.html is {bytes} bytes");
 
     // The report's own figures were drawn, and the Markdown links figures that exist.
     for stem in ["basin_budyko_space", "basin_yield_change_by_catchment"] {
@@ -713,4 +723,124 @@ fn an_svg_only_run_gets_svg_figures_embedded() {
             panic!("an embedded SVG is not XML: {e}");
         }
     }
+}
+
+/// The HTML between the heading `<h2 …>…title</h2>` and the next `<h2`.
+fn h2_section<'a>(html: &'a str, title: &str) -> &'a str {
+    let start = html.find(&format!("{title}</h2>")).unwrap_or_else(|| panic!("no section {title}"));
+    let rest = &html[start..];
+    &rest[..rest[5..].find("<h2").map_or(rest.len(), |e| e + 5)]
+}
+
+#[test]
+fn the_report_opens_with_an_executive_summary_of_what_reaches_the_nodes() {
+    let html = std::fs::read_to_string(demo_run().join("report.html")).unwrap();
+    let first = html.split("<h2").nth(1).expect("a section");
+    assert!(first.contains("Executive summary</h2>"), "first section: {}", &first[..first.len().min(120)]);
+    let exec = h2_section(&html, "Executive summary");
+    // Every number of the section equals its cell.
+    let counts = check_sources(demo_run(), exec);
+    for f in ["nodes.csv", "summary.csv", "delay.csv", "run_info.json"] {
+        assert!(counts.get(f).copied().unwrap_or(0) > 0, "no numbers from {f}: {counts:?}");
+    }
+    // Each receiving node's change at 20 and 50 years is its nodes.csv cell, and
+    // the node's own local summary.csv row is not used.
+    let nodes = read_csv(&demo_run().join("nodes.csv"));
+    let (nc, sc, yc) = (nodes.col("node"), nodes.col("strategy"), nodes.col("year"));
+    let ids: BTreeSet<String> = nodes.rows.iter().filter(|r| r[sc] == "no-control").map(|r| r[nc].clone()).collect();
+    assert!(ids.contains("ardmere-lower"), "the demo's intake is a node");
+    let sourced = sourced_numbers(exec);
+    for id in &ids {
+        for year in ["2047", "2077"] {
+            assert!(nodes.rows.iter().any(|r| &r[nc] == id && r[yc] == year));
+            let hit = sourced.iter().find(|s| {
+                s.file == "nodes.csv" && s.key == [id.clone(), "no-control".into(), year.into()] && s.column == "yield_change_pct"
+            });
+            assert!(hit.is_some(), "{id} {year}: no nodes.csv yield change in the executive summary");
+        }
+        assert!(
+            !sourced.iter().any(|s| s.file == "summary.csv" && s.key.first() == Some(id)),
+            "{id}: the executive summary uses the node catchment's local row"
+        );
+    }
+    assert!(exec.contains("guideline"), "guideline status");
+    assert!(exec.contains("levelised cost") && exec.contains("years later"), "best programme and delay");
+    assert!(exec.contains("Not a substitute for a site hydrological assessment"), "cautions");
+    let md = std::fs::read_to_string(demo_run().join("report.md")).unwrap();
+    assert!(md.find("Executive summary").unwrap() < md.find("Scenario summary").unwrap());
+}
+
+#[test]
+fn a_report_with_png_figures_only_embeds_them_at_report_resolution_under_the_size_limit() {
+    let (_tmp, dir) = fresh_copy("pngonly");
+    for e in std::fs::read_dir(dir.join("figures")).unwrap() {
+        let p = e.unwrap().path();
+        if p.extension().is_some_and(|x| x == "svg") {
+            std::fs::remove_file(p).unwrap();
+        }
+    }
+    ok(&report(&dir), "yieldshift report");
+    let html = std::fs::read_to_string(dir.join("report.html")).unwrap();
+    assert!((html.len() as u64) < yieldshift::report::MAX_HTML_BYTES, "report.html is {} bytes", html.len());
+    let images: Vec<String> = references(&html).into_iter().filter(|r| r.starts_with("data:")).collect();
+    assert!(images.len() >= 30);
+    for img in images {
+        let b64 = img.strip_prefix("data:image/png;base64,").expect("only PNG figures are there");
+        let ((w, h), var) = png_stats(&base64_decode(b64));
+        assert_eq!((w, h), (yieldshift::report::embed::EMBED_WIDTH_PX, 750));
+        assert!(var > 50.0, "an embedded figure looks blank");
+    }
+    // The files in figures/ keep their full size.
+    let (size, _) = png_stats(&std::fs::read(dir.join("figures").join("basin_budyko_space.png")).unwrap());
+    assert_eq!(size, yieldshift::plot::SIZE);
+}
+
+#[test]
+fn report_catchments_limits_the_pages_to_the_most_affected_and_names_the_rest() {
+    let (_tmp, dir) = fresh_copy("pages");
+    let out = bin().arg("report").arg(&dir).arg("--report-catchments").arg("2").output().unwrap();
+    ok(&out, "yieldshift report --report-catchments 2");
+    let html = std::fs::read_to_string(dir.join("report.html")).unwrap();
+    let summary = read_csv(&dir.join("summary.csv"));
+    let (cc, nc, sc, hc) =
+        (summary.col("catchment"), summary.col("name"), summary.col("strategy"), summary.col("yield_change_horizon_pct"));
+    let mut rows: Vec<&Vec<String>> = summary.rows.iter().filter(|r| r[sc] == "no-control" && r[cc] != "basin").collect();
+    rows.sort_by(|a, b| a[hc].parse::<f64>().unwrap().total_cmp(&b[hc].parse::<f64>().unwrap()));
+    let note = html.split("<p>Pages follow for the 2 catchments").nth(1).expect("the note on pages").split("</p>").next().unwrap();
+    for (k, r) in rows.iter().enumerate() {
+        let page = format!("</span>{}</h4>", unescape_name(&r[nc]));
+        if k < 2 {
+            assert!(html.contains(&page), "{} has its page", r[nc]);
+            assert!(!note.contains(&format!("<code>{}</code>", r[cc])), "{} is not left out", r[cc]);
+        } else {
+            assert!(!html.contains(&page), "{} has no page", r[nc]);
+            assert!(note.contains(&format!("<code>{}</code>", r[cc])), "{} is named as left out", r[cc]);
+        }
+    }
+    assert!(note.contains("--report-catchments all"), "how to get every page");
+    // All pages: no note; a word that is not a number is a usage error.
+    ok(&bin().arg("report").arg(&dir).arg("--report-catchments").arg("all").output().unwrap(), "all");
+    let html = std::fs::read_to_string(dir.join("report.html")).unwrap();
+    assert!(!html.contains("left out:"));
+    let bad = bin().arg("report").arg(&dir).arg("--report-catchments").arg("some").output().unwrap();
+    assert_eq!(bad.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&bad.stderr).contains("not a number of catchments"));
+}
+
+fn unescape_name(s: &str) -> String {
+    yieldshift::report::html::escape(s)
+}
+
+#[test]
+fn sensitivity_names_parameters_for_readers_and_keeps_the_key_path() {
+    let sens = read_csv(&demo_run().join("sensitivity.csv"));
+    let (p, l) = (sens.col("parameter"), sens.col("label"));
+    assert!(sens.rows.iter().all(|r| !r[l].is_empty()));
+    assert!(sens.rows.iter().any(|r| r[p] == "invasion.spread_rate_per_yr" && r[l] == "spread_rate_per_yr (invasion)"));
+    let html = std::fs::read_to_string(demo_run().join("report.html")).unwrap();
+    let section = h2_section(&html, "Results");
+    assert!(
+        section.contains("spread_rate_per_yr (invasion) (<code>invasion.spread_rate_per_yr</code>)"),
+        "label and path in the ranking table"
+    );
 }

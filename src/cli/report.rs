@@ -9,11 +9,16 @@ use std::path::PathBuf;
 pub struct ReportArgs {
     /// Output folder of an earlier `yieldshift run` (holds run_info.json, summary.csv, yearly.csv).
     pub dir: PathBuf,
+    /// Per-catchment pages for only the N catchments with the largest yield loss at the horizon (a number, or `all`; default 30).
+    #[arg(long, value_name = "N|all")]
+    pub report_catchments: Option<yieldshift::report::CatchmentPages>,
 }
 
 /// Runs `yieldshift report`.
 pub fn run(a: &ReportArgs) -> anyhow::Result<()> {
-    let out = yieldshift::report::write_report(&a.dir).with_context(|| format!("writing the report of {}", a.dir.display()))?;
+    let opts = yieldshift::report::ReportOptions::for_folder(&a.dir);
+    let out = yieldshift::report::write_report_pages(&a.dir, &opts, a.report_catchments.unwrap_or_default())
+        .with_context(|| format!("writing the report of {}", a.dir.display()))?;
     say!(
         "wrote {} and {} ({} figures embedded, {} of them drawn from the run's tables)",
         out.html.display(),

@@ -29,6 +29,9 @@ pub struct RunArgs {
     /// Run only the K-th of N deterministic slices of the catchments (e.g. 3/8); combine with `merge`.
     #[arg(long, value_name = "K/N", value_parser = yieldshift::run::shard::parse_shard)]
     pub shard: Option<(usize, usize)>,
+    /// Per-catchment pages of the report for only the N catchments with the largest yield loss at the horizon (a number, or `all`; default 30).
+    #[arg(long, value_name = "N|all")]
+    pub report_catchments: Option<yieldshift::report::CatchmentPages>,
     /// Print nothing but errors (no progress bar).
     #[arg(long, short)]
     pub quiet: bool,
@@ -108,6 +111,15 @@ pub fn run(a: &RunArgs) -> anyhow::Result<()> {
         shard: a.shard,
     };
     let outcome = deterministic::run(&scenario, &opts).with_context(|| format!("running {}", a.scenario.display()))?;
+    // The run wrote its report with the default pages; another choice writes it again
+    // (figures as the run drew them, so range figures exist for every page).
+    if let Some(pages) = a.report_catchments.filter(|p| *p != yieldshift::report::CatchmentPages::default()) {
+        if outcome.out.join(yieldshift::report::HTML_FILE).is_file() {
+            let report = yieldshift::report::ReportOptions { figures: !matches!(a.figures, FigureArg::None), formats: opts.formats };
+            yieldshift::report::write_report_pages(&outcome.out, &report, pages)
+                .with_context(|| format!("writing the report of {}", outcome.out.display()))?;
+        }
+    }
     if !a.quiet {
         say!(
             "{}: {} catchments × {} years ({}–{}), method {}",

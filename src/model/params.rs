@@ -270,6 +270,83 @@ impl ParamId {
     pub const fn default_value(self) -> Option<f64> {
         TABLE[self as usize].absent.value()
     }
+
+    /// What part of the model the parameter enters (exhaustive, so a new
+    /// parameter must say where it belongs).
+    pub const fn role(self) -> Role {
+        use ParamId::*;
+        match self {
+            StartYear | HorizonYears | RainScale | PetScale | LatitudeDeg | ElevationM | WindHeightM | Members | Seed | BlockYears
+            | RainCv | RainLag1 | PetCv => Role::Climate,
+            WForest
+            | WGrass
+            | OmegaForest
+            | OmegaGrass
+            | ForestPetFactor
+            | InterceptionFraction
+            | InterceptionDemandShare
+            | CalibrationWForest
+            | CalibrationWGrass
+            | CalibrationOmegaForest
+            | CalibrationOmegaGrass => Role::WaterBalance,
+            SpreadRate | ArealGrowth | SeedBearingAge | SeedRain | MediumAge | DenseAge | InitialDenseSpan | HalfClosureAge
+            | ClosureSteepness | ClosureMaxFraction | ClosureAges | ClosureFractions => Role::Cover,
+            MinRunoff | OpenExport | ForestExport | Guideline | CqExponent => Role::WaterQuality,
+            TreatmentCost | StrategyStartYear | StrategyEndYear | BudgetPerYr | AreaPerYr | Efficacy | RegrowthFraction | RegrowthYears
+            | FollowUpCost | Delays => Role::Control,
+            DiscountRate | WaterValue => Role::Economics,
+            AreaTolerance => Role::Checks,
+        }
+    }
+
+    /// True when a change of this parameter can change `result`; false when the
+    /// result does not depend on it at all (e.g. a treatment cost cannot move the
+    /// yield without control). Rankings of a result leave out the parameters that
+    /// cannot move it.
+    pub const fn can_move(self, result: Outcome) -> bool {
+        let r = self.role();
+        let drives_flow = matches!(r, Role::Climate | Role::WaterBalance | Role::Cover);
+        match result {
+            Outcome::NoControlYield => drives_flow,
+            Outcome::NoControlConcentration => drives_flow || matches!(r, Role::WaterQuality) && !matches!(self, ParamId::Guideline),
+            // A budget buys fewer hectares when a treatment costs more, so costs move
+            // the controlled yield too.
+            Outcome::ControlledYield => drives_flow || matches!(r, Role::Control),
+            Outcome::Economics => drives_flow || matches!(r, Role::Control | Role::Economics),
+        }
+    }
+}
+
+/// Where a parameter enters the model ([`ParamId::role`]).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum Role {
+    /// The years and the climate (record, scaling, stochastic generation, PET site).
+    Climate,
+    /// The water-balance curves and interception.
+    WaterBalance,
+    /// Spread, density classes and canopy closure of the invader.
+    Cover,
+    /// Loads, dilution and guidelines.
+    WaterQuality,
+    /// Treatments and control strategies.
+    Control,
+    /// Discounting and the value of water.
+    Economics,
+    /// Input checks only (changes no result).
+    Checks,
+}
+
+/// A result a parameter may move ([`ParamId::can_move`]).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum Outcome {
+    /// Water yield (and its change against the baseline) without control.
+    NoControlYield,
+    /// Contaminant concentrations without control.
+    NoControlConcentration,
+    /// Water yield under a control strategy.
+    ControlledYield,
+    /// Costs, water saved and present values of a programme.
+    Economics,
 }
 
 /// A parameter an ensemble draws: which key, and for a key of an array of
@@ -428,6 +505,30 @@ const TABLE: [ParamSpec; 54] = [
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn control_and_economics_cannot_move_the_yield_without_control() {
+        use super::Outcome as R;
+        for p in &PARAMS {
+            let id = p.id;
+            let flow = matches!(p.section, "hydrology" | "invasion" | "canopy_closure" | "calibration")
+                || matches!(id, ParamId::RainScale | ParamId::PetScale);
+            if flow {
+                assert!(id.can_move(R::NoControlYield), "{}", p.path());
+            }
+            if matches!(p.section, "strategy" | "treatment" | "economics" | "contaminant" | "dilution" | "gis") {
+                assert!(!id.can_move(R::NoControlYield), "{} cannot move the yield without control", p.path());
+            }
+        }
+        assert!(ParamId::Efficacy.can_move(R::ControlledYield));
+        assert!(ParamId::TreatmentCost.can_move(R::ControlledYield), "a budget buys less when costs rise");
+        assert!(!ParamId::TreatmentCost.can_move(R::NoControlConcentration));
+        assert!(ParamId::OpenExport.can_move(R::NoControlConcentration));
+        assert!(!ParamId::Guideline.can_move(R::NoControlConcentration));
+        assert!(!ParamId::WaterValue.can_move(R::ControlledYield));
+        assert!(ParamId::WaterValue.can_move(R::Economics));
+        assert!(!ParamId::AreaTolerance.can_move(R::Economics));
+    }
 
     #[test]
     fn rows_are_in_id_order_and_keys_are_unique() {

@@ -185,7 +185,7 @@ pub fn draw_all(d: &RunData, formats: Formats) -> Result<Vec<Drawn>> {
                         .filter(|r| r.catchment == catchment && r.strategy == strategy && &r.at == at && r.year == *year)
                         .filter_map(|r| {
                             r.spearman_rho.map(|rho| Influence {
-                                parameter: r.parameter.clone(),
+                                parameter: d.param_label(&r.parameter).to_string(),
                                 spearman_rho: rho,
                                 src: r.src,
                                 rank: r.rank,

@@ -103,13 +103,6 @@ fn spans(t: &Text) -> String {
     s
 }
 
-/// An SVG file that refers to nothing outside itself (no external `href`), so it
-/// can be embedded as a `data:` URI without breaking self-containment.
-fn is_svg(bytes: &[u8]) -> bool {
-    let text = String::from_utf8_lossy(bytes);
-    text.contains("<svg") && !text.contains("href=\"http") && !text.contains("href='http")
-}
-
 /// Renders `doc` as a self-contained HTML page; figures are read from `run_dir/figures/`.
 // Over 100 lines on purpose: one HTML document written in order (head, style, blocks, footer); the template reads best as one piece.
 pub fn render(doc: &Doc, run_dir: &Path, footer: &Text) -> String {
@@ -184,29 +177,26 @@ pub fn render(doc: &Doc, run_dir: &Path, footer: &Text) -> String {
                     h.push_str("<p class=\"tnote\"></p>\n");
                 }
             }
-            Block::Figure { number, figure } => {
-                let path = run_dir.join("figures").join(figure.shown());
-                let mime = if figure.png.is_some() { "image/png" } else { "image/svg+xml" };
-                match std::fs::read(&path) {
-                    Ok(bytes) if bytes.starts_with(b"\x89PNG") || (mime == "image/svg+xml" && is_svg(&bytes)) => {
-                        let _ = writeln!(
-                            h,
-                            "<figure>\n<img alt=\"{}\" src=\"data:{mime};base64,{}\">\n<figcaption><span class=\"no\">Figure {number}.</span>{}</figcaption>\n</figure>",
-                            escape(&figure.caption.plain_text()),
-                            base64::encode(&bytes),
-                            spans(&figure.caption)
-                        );
-                    }
-                    _ => {
-                        let _ = writeln!(
-                            h,
-                            "<p class=\"missing\">Figure {number} ({}) is not in this run folder's figures/. {}</p>",
-                            escape(figure.shown()),
-                            spans(&figure.caption)
-                        );
-                    }
+            Block::Figure { number, figure } => match super::embed::embed(&run_dir.join("figures"), figure) {
+                Some(e) => {
+                    let _ = writeln!(
+                        h,
+                        "<figure>\n<img alt=\"{}\" src=\"data:{};base64,{}\">\n<figcaption><span class=\"no\">Figure {number}.</span>{}</figcaption>\n</figure>",
+                        escape(&figure.caption.plain_text()),
+                        e.mime,
+                        base64::encode(&e.bytes),
+                        spans(&figure.caption)
+                    );
                 }
-            }
+                None => {
+                    let _ = writeln!(
+                        h,
+                        "<p class=\"missing\">Figure {number} ({}) is not in this run folder's figures/. {}</p>",
+                        escape(figure.shown()),
+                        spans(&figure.caption)
+                    );
+                }
+            },
             Block::Notice { title, lines } => {
                 let _ = writeln!(h, "<aside class=\"notice\">\n<h3>{}</h3>", escape(title));
                 for l in lines {

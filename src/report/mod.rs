@@ -17,6 +17,7 @@
 pub mod base64;
 pub mod content;
 pub mod doc;
+pub mod embed;
 pub mod figures;
 pub mod fmt;
 pub mod folder;
@@ -32,6 +33,10 @@ use std::path::{Path, PathBuf};
 pub const HTML_FILE: &str = "report.html";
 /// File name of the Markdown report inside the run folder.
 pub const MARKDOWN_FILE: &str = "report.md";
+/// Largest `report.html` the report is designed to stay under, bytes (5 MB,
+/// small enough to e-mail): figures are embedded at report resolution
+/// ([`embed`]); the demo's report is tested against it.
+pub const MAX_HTML_BYTES: u64 = 5_000_000;
 
 /// What [`write_report`] wrote.
 #[derive(Debug, Clone, PartialEq)]
@@ -54,8 +59,8 @@ pub struct ReportOptions {
     /// Draw the report's figures (catchment comparison, Budyko space, sensitivity,
     /// ensemble ranges); when false the report embeds only figures already there.
     pub figures: bool,
-    /// Formats of the figures drawn. The HTML embeds the PNG, or the SVG when
-    /// only SVG is written.
+    /// Formats of the figures drawn. The HTML embeds the smaller of the SVG and
+    /// the PNG at report resolution ([`embed`]).
     pub formats: Formats,
 }
 
@@ -64,6 +69,46 @@ impl ReportOptions {
     /// ([`Formats::default_from`]: both when `figures/` is empty).
     pub fn for_folder(run_dir: &Path) -> ReportOptions {
         ReportOptions { figures: true, formats: Formats::default_from(run_dir) }
+    }
+}
+
+/// How many catchments get their own pages (text, tables, figures) in the report.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum CatchmentPages {
+    /// The `n` catchments with the largest yield loss at the horizon without control.
+    Most(usize),
+    /// Every catchment.
+    All,
+}
+
+impl Default for CatchmentPages {
+    /// [`folder::MAX_DETAILED`] catchments.
+    fn default() -> CatchmentPages {
+        CatchmentPages::Most(folder::MAX_DETAILED)
+    }
+}
+
+impl CatchmentPages {
+    /// The most catchments detailed.
+    pub fn limit(self) -> usize {
+        match self {
+            CatchmentPages::Most(n) => n,
+            CatchmentPages::All => usize::MAX,
+        }
+    }
+}
+
+impl std::str::FromStr for CatchmentPages {
+    type Err = String;
+    /// A whole number (0 for none) or `all`.
+    fn from_str(s: &str) -> std::result::Result<CatchmentPages, String> {
+        match s.trim() {
+            "all" => Ok(CatchmentPages::All),
+            t => t
+                .parse::<usize>()
+                .map(CatchmentPages::Most)
+                .map_err(|_| format!("'{s}' is not a number of catchments; give a whole number such as 10, or 'all'")),
+        }
     }
 }
 
@@ -81,7 +126,13 @@ pub fn write_report(run_dir: &Path) -> Result<ReportOutcome> {
 
 /// [`write_report`] with explicit options (e.g. no figures for `--figures none`).
 pub fn write_report_with(run_dir: &Path, opts: &ReportOptions) -> Result<ReportOutcome> {
-    let data = folder::read_run(run_dir)?;
+    write_report_pages(run_dir, opts, CatchmentPages::default())
+}
+
+/// [`write_report_with`], giving own pages to the catchments `pages` selects (the
+/// report names those left out and how to include them).
+pub fn write_report_pages(run_dir: &Path, opts: &ReportOptions, pages: CatchmentPages) -> Result<ReportOutcome> {
+    let data = folder::read_run_with(run_dir, pages.limit())?;
     let drawn = if opts.figures && (opts.formats.png || opts.formats.svg) { figures::draw_all(&data, opts.formats)? } else { Vec::new() };
     // Re-list figures/ so the report embeds what is there now.
     let data = folder::RunData {

@@ -294,8 +294,8 @@ impl DelaySums {
 /// Basin sums for the ensemble's basin-level sensitivity.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct SensitivitySums {
-    /// Parameter labels.
-    pub labels: Vec<String>,
+    /// The uncertain parameters (path, label, what they can move).
+    pub labels: Vec<crate::run::sensitivity::RankedParam>,
     /// `(label, year)` of each ranking point.
     pub points: Vec<(String, i32)>,
     /// Total area, ha.
@@ -308,7 +308,7 @@ pub struct SensitivitySums {
 
 impl SensitivitySums {
     /// Empty sums.
-    pub fn new(labels: Vec<String>, points: Vec<(String, i32)>, members: usize) -> SensitivitySums {
+    pub fn new(labels: Vec<crate::run::sensitivity::RankedParam>, points: Vec<(String, i32)>, members: usize) -> SensitivitySums {
         let np = points.len();
         let nl = labels.len();
         SensitivitySums {
@@ -487,7 +487,7 @@ impl Partials {
     }
 
     /// Basin sensitivity rankings `(at, year, ranking)`.
-    pub fn basin_rankings(&self) -> Vec<(String, i32, crate::run::sensitivity::Ranking)> {
+    pub fn basin_rankings(&self) -> Vec<(String, i32, Vec<crate::run::sensitivity::Ranked>)> {
         let Some(s) = &self.sensitivity else { return Vec::new() };
         let area = s.area_ha.value();
         let xs: Vec<Vec<f64>> = s.weighted_draws.iter().map(|v| v.iter().map(|x| x.value() / area).collect()).collect();
@@ -507,7 +507,7 @@ impl Partials {
                         }
                     })
                     .collect();
-                (at.clone(), *year, crate::run::sensitivity::rank(&s.labels, &xs, &y))
+                (at.clone(), *year, crate::run::sensitivity::rank(&s.labels, &xs, &y, None))
             })
             .collect()
     }

@@ -33,7 +33,7 @@ use crate::plot::tornado::Tornado;
 use crate::plot::{save_figure, Formats};
 use crate::run::bands::{self, BandLayout, MemberValues, Vars};
 use crate::run::basin_totals::{EnsembleBasinSums, Sum};
-use crate::run::sensitivity::{rank, write_sensitivity_rows, Ranking};
+use crate::run::sensitivity::{for_figure, rank, ranked_params, write_sensitivity_rows, RankedParam, Ranking};
 use crate::schema::columns;
 use crate::schema::columns::scope;
 use crate::schema::numbers::{num, opt_num};
@@ -521,7 +521,7 @@ pub fn run_ensemble(
     let k = s.params.contaminants.len();
     let n_years = s.horizon_years + 1;
     let q = flow_len(k);
-    let labels: Vec<String> = s.uncertain.iter().map(|u| u.param.path.clone()).collect();
+    let labels: Vec<RankedParam> = ranked_params(s);
     let shared: Vec<Option<Vec<f64>>> =
         s.uncertain.iter().map(|u| (!u.param.per_catchment).then(|| draw_values(&u.param, cfg, None))).collect();
     let climates = member_climates(s, cfg);
@@ -737,7 +737,7 @@ fn no_control_catchment(
     shared: &[Option<Vec<f64>>],
     climates: &MemberClimate,
     layout: &BandLayout,
-    labels: &[String],
+    labels: &[RankedParam],
     points: &[(&'static str, usize)],
     keep_reference: bool,
 ) -> Result<CatchmentResult> {
@@ -800,10 +800,10 @@ fn no_control_catchment(
     let mut ranking = None;
     if !labels.is_empty() {
         for (at, off) in points {
-            let r = rank(labels, &draws, &mv.vars[1][*off]);
+            let r = rank(labels, &draws, &mv.vars[1][*off], Some(&c.id));
             write_sensitivity_rows(&mut sensitivity, &c.id, NO_CONTROL, at, s.start_year + *off as i32, &r)?;
             if *at == columns::sensitivity::AT_HORIZON {
-                ranking = Some(r);
+                ranking = Some(for_figure(&r));
             }
         }
     }

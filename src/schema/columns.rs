@@ -424,18 +424,22 @@ pub mod sensitivity {
     pub use super::{CATCHMENT, STRATEGY, YEAR};
     /// When evaluated ([`AT_YEAR_20`], [`AT_HORIZON`]).
     pub const AT: &str = "at";
-    /// Parameter (scenario key path).
+    /// Parameter (scenario key path, e.g. `strategy[2].efficacy`).
     pub const PARAMETER: &str = "parameter";
+    /// The parameter as a reader names it (e.g. `efficacy of strategy 'best-value'`).
+    pub const LABEL: &str = "label";
     /// Spearman rank correlation.
     pub const SPEARMAN_RHO: &str = "spearman_rho";
-    /// Standardised regression coefficient.
+    /// Standardised regression coefficient: the coefficient of the parameter in a
+    /// least-squares regression of the result on all ranked parameters, each
+    /// variable scaled by its standard deviation across members.
     pub const SRC: &str = "src";
     /// Rank, 1 = most influential.
     pub const RANK: &str = "rank";
     /// Optional column of some files: the output variable ranked against.
     pub const VARIABLE: &str = "variable";
     /// The header.
-    pub const COLUMNS: [&str; 8] = [CATCHMENT, STRATEGY, AT, YEAR, PARAMETER, SPEARMAN_RHO, SRC, RANK];
+    pub const COLUMNS: [&str; 9] = [CATCHMENT, STRATEGY, AT, YEAR, PARAMETER, LABEL, SPEARMAN_RHO, SRC, RANK];
     /// [`AT`] value: 20 years after the start.
     pub const AT_YEAR_20: &str = "year-20";
     /// [`AT`] value: the last year.

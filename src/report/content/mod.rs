@@ -7,9 +7,11 @@
 mod catchments;
 mod cautions;
 mod economics;
+mod executive;
 mod inputs;
 mod intakes;
 mod methods;
+mod pages;
 mod sensitivity;
 mod summary;
 
@@ -241,6 +243,7 @@ pub fn build(d: &RunData, drawn: &[Drawn]) -> Doc {
             .plain("“Cautions”")
             .plain(" before using any number in this report.")],
     );
+    executive::executive_summary(d, &mut doc);
     summary_section(d, &mut doc);
     inputs_section(d, &mut doc);
     methods_section(d, &mut doc);
@@ -326,11 +329,7 @@ fn results_section(d: &RunData, doc: &mut Doc, drawn: &[Drawn]) {
     doc.heading(3, "Catchments");
     catchment_overview(d, doc);
     let order = d.detailed_catchments();
-    if order.len() < d.catchments.len() {
-        doc.para(format!(
-            "Detailed results follow for the {MAX_DETAILED} catchments with the largest yield loss at the horizon; every catchment is in the table above and in summary.csv."
-        ));
-    }
+    pages::left_out_note(d, doc);
     for (id, name, _) in order {
         catchment_detail(d, doc, id, name);
     }

@@ -17,7 +17,7 @@ pub(super) fn sensitivity_results(d: &RunData, doc: &mut Doc) {
     let subject = display_name(d, &catchment);
     let result = rows.iter().find_map(|r| r.variable.clone()).unwrap_or_else(|| RANKED_RESULT.to_string());
     doc.para(format!(
-        "Which uncertain parameters drive the {result} of {subject} under {strategy}: the Spearman rank correlation ρ between each parameter's draws and that result across ensemble members (its sign gives the direction: ρ > 0, a higher value of the parameter gives a higher result, i.e. less loss), and the standardised regression coefficient. Rank 1 is the most influential."
+        "Which uncertain parameters drive the {result} of {subject} under {strategy}: the Spearman rank correlation ρ between each parameter's draws and that result across ensemble members (its sign gives the direction: ρ > 0, a higher value of the parameter gives a higher result, i.e. less loss), and the standardised regression coefficient. Rank 1 is the most influential. Parameters that cannot change this result (those of control programmes, treatments, economics and water quality) are not ranked."
     ));
     for (at, year) in &ats {
         let mut rs: Vec<&crate::report::folder::SensitivityRow> =
@@ -30,7 +30,11 @@ pub(super) fn sensitivity_results(d: &RunData, doc: &mut Doc) {
                 let key = [catchment.as_str(), strategy.as_str(), at.as_str(), r.parameter.as_str()];
                 vec![
                     Text::new().num(r.rank.to_string(), Some(Source::new("sensitivity.csv", &key, "rank"))),
-                    Text::new().code(&r.parameter),
+                    if d.param_label(&r.parameter) == r.parameter {
+                        Text::new().code(&r.parameter)
+                    } else {
+                        Text::new().plain(d.param_label(&r.parameter)).plain(" (").code(&r.parameter).plain(")")
+                    },
                     match r.spearman_rho {
                         Some(v) => Text::new().num(fixed(v, 2), Some(Source::new("sensitivity.csv", &key, "spearman_rho"))),
                         None => undefined(),

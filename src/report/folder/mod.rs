@@ -4,6 +4,7 @@
 //! the row (spreadsheet numbering, header = row 1) and the column — never a panic.
 
 mod csv_table;
+mod labels;
 mod rows;
 
 pub use crate::schema::run_info::{ContaminantInfo, RunInfo};
@@ -62,6 +63,8 @@ pub struct RunData {
     pub ensemble: Option<Ensemble>,
     /// `sensitivity.csv`, when present.
     pub sensitivity: Option<Vec<SensitivityRow>>,
+    /// Readable parameter names of `sensitivity.csv` by key path (its `label` column).
+    pub param_labels: BTreeMap<String, String>,
     /// The scenario copied into `inputs/`.
     pub scenario: Option<ScenarioDoc>,
     /// The catchment table copied into `inputs/`.
@@ -70,7 +73,7 @@ pub struct RunData {
     pub climate_input: Option<CsvTable>,
     /// File names present in `figures/`.
     pub figures: BTreeSet<String>,
-    /// Catchments given a detailed section (all, or the [`MAX_DETAILED`] largest losses).
+    /// Catchments given a detailed section (all, or the largest losses up to the limit read with).
     pub detailed: BTreeSet<String>,
     /// Catchments drawn in Budyko space (all, or the [`BUDYKO_MAX`] largest changes).
     pub budyko: BTreeSet<String>,
@@ -82,7 +85,7 @@ pub struct RunData {
 
 impl RunData {
     /// The catchments given a detailed subsection, in table order: all of them, or
-    /// the [`MAX_DETAILED`] with the largest yield loss at the horizon.
+    /// those with the largest yield loss at the horizon up to the limit ([`read_run_with`]).
     pub fn detailed_catchments(&self) -> Vec<&(String, String, f64)> {
         self.catchments.iter().filter(|c| self.detailed.contains(&c.0)).collect()
     }
@@ -102,6 +105,11 @@ impl RunData {
         self.figures.contains(file)
     }
 
+    /// A ranked parameter as a reader names it (its key path when the folder has no label).
+    pub fn param_label<'a>(&'a self, path: &'a str) -> &'a str {
+        self.param_labels.get(path).map_or(path, String::as_str)
+    }
+
     /// Strategies other than `no-control`.
     pub fn programmes(&self) -> impl Iterator<Item = &String> {
         self.info.strategies.iter().filter(|s| s.as_str() != NO_CONTROL)
@@ -112,8 +120,14 @@ fn file_name(p: &str) -> Option<String> {
     Path::new(p).file_name().map(|n| n.to_string_lossy().into_owned())
 }
 
-/// Reads the run folder `dir`.
+/// Reads the run folder `dir`, detailing at most [`MAX_DETAILED`] catchments.
 pub fn read_run(dir: &Path) -> Result<RunData> {
+    read_run_with(dir, MAX_DETAILED)
+}
+
+/// Reads the run folder `dir`; the `detail_limit` catchments with the largest
+/// yield loss at the horizon are given their own pages (and range figures).
+pub fn read_run_with(dir: &Path, detail_limit: usize) -> Result<RunData> {
     if !dir.is_dir() {
         return Err(Error::invalid(Problem::in_file(dir, "is not a folder; give the output folder of `yieldshift run`")));
     }
@@ -146,7 +160,7 @@ pub fn read_run(dir: &Path) -> Result<RunData> {
         ids.sort_by(|a, b| key(a).total_cmp(&key(b)).then_with(|| a.cmp(b)));
         ids.into_iter().take(n).cloned().collect()
     };
-    let detailed = largest(MAX_DETAILED, &|id| horizon(id).unwrap_or(0.0));
+    let detailed = largest(detail_limit, &|id| horizon(id).unwrap_or(0.0));
     let budyko = largest(BUDYKO_MAX, &|id| -horizon(id).map_or(0.0, f64::abs));
 
     let keep: BTreeSet<&String> = detailed.iter().chain(budyko.iter()).collect();
@@ -181,6 +195,7 @@ pub fn read_run(dir: &Path) -> Result<RunData> {
         budget,
         ensemble,
         sensitivity,
+        param_labels: labels::read_param_labels(dir)?,
         scenario,
         catchment_input,
         climate_input,
