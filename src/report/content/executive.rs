@@ -12,6 +12,7 @@
 
 use super::*;
 use crate::report::folder::NodeYear;
+use crate::schema::columns::ensemble::YIELD_CHANGE_10YR_MEAN_PCT;
 use crate::schema::columns::{delay as dc, nodes as nc};
 
 /// A number shown in a sentence and the cell it came from (`None`: derived).
@@ -91,7 +92,7 @@ pub(super) fn node_water_sentence(name: &str, id: &str, upstream: Option<Valued>
     if changes.is_empty() {
         return t.plain("the run is too short to report the change at 20 or 50 years.");
     }
-    let parts = changes.iter().map(|(o, y, r)| r.text(pct).plain(format!(" % after {o} years ({y})"))).collect();
+    let parts = changes.iter().map(|(o, y, r)| r.text(pct).plain(format!(" % over the 10 years to {y} ({o} years on)"))).collect();
     t.plain("without control, the water arriving there changes by ").then(list(parts)).plain(" against today's cover held fixed.")
 }
 
@@ -132,14 +133,14 @@ pub(super) fn basin_sentence(changes: &[(i32, i32, Ranged)], lost_last_year: Opt
     if changes.is_empty() {
         t = t.plain("The run is too short to report the basin's change at 20 or 50 years");
     } else {
-        let parts = changes.iter().map(|(o, y, r)| r.text(pct).plain(format!(" % after {o} years ({y})"))).collect();
+        let parts = changes.iter().map(|(o, y, r)| r.text(pct).plain(format!(" % over the 10 years to {y} ({o} years on)"))).collect();
         t = t.plain("Without control the whole basin's water yield changes by ").then(list(parts));
     }
     match lost_last_year {
         Some(l) => t
-            .plain(format!("; in {end_year} it yields "))
+            .plain(format!("; over the 10 years to {end_year} it yields on average "))
             .then(l.text(|v| fixed(v, 2)))
-            .plain(" million m³ less water than with today's cover held fixed (negative: more)."),
+            .plain(" million m³/yr less water than with today's cover held fixed (negative: more)."),
         None => t.plain("."),
     }
 }
@@ -230,9 +231,14 @@ pub const EXECUTIVE_OFFSETS: [i32; 2] = [20, 50];
 pub const EXECUTIVE_DELAY_YR: i32 = 10;
 
 /// The 5–95 % range of `variable` in `ensemble.csv` for a row key.
-fn ensemble_range(d: &RunData, catchment: &str, strategy: &str, variable: &str, year: i32) -> Option<(Valued, Valued)> {
-    let q = d.ensemble.as_ref()?.get(catchment, strategy, variable, year)?;
-    let key = [catchment, strategy, &year.to_string(), variable];
+fn ensemble_range(d: &RunData, in_scope: &str, catchment: &str, strategy: &str, variable: &str, year: i32) -> Option<(Valued, Valued)> {
+    let e = d.ensemble.as_ref()?;
+    let q = if in_scope == scope::ARRIVING {
+        e.get_arriving(catchment, strategy, variable, year)?
+    } else {
+        e.get(catchment, strategy, variable, year)?
+    };
+    let key = [catchment, in_scope, strategy, &year.to_string(), variable];
     Some((Valued::new(q.p5, Source::new("ensemble.csv", &key, "p5")), Valued::new(q.p95, Source::new("ensemble.csv", &key, "p95"))))
 }
 
@@ -249,23 +255,25 @@ pub(super) fn executive_summary(d: &RunData, doc: &mut Doc) {
         doc.para("No catchment receives flow from another in this run, so there are no receiving nodes (supply intakes) to report.");
     } else {
         doc.para(Text::new().plain(
-            "At each catchment that receives flow from others (a supply intake, for example), the numbers below are what arrives there: volumes pooled and concentrations flow-weighted over its upstream catchments (nodes.csv), not the node catchment's own runoff.",
+            "At each catchment that receives flow from others (a supply intake, for example), the numbers below are what arrives there: volumes pooled and concentrations flow-weighted over its upstream catchments (summary.csv and ensemble.csv rows with scope arriving; nodes.csv by year), not the node catchment's own runoff. Changes are 10-year means, so that one wet or dry year does not set them.",
         ));
     }
     for (node, ys) in nodes {
+        // The 10-year means of what arrives (the node's `arriving` row of summary.csv),
+        // with the members' range of the same quantity (its `arriving` rows of ensemble.csv).
+        let arriving = d.arriving.iter().find(|r| &r.catchment == node && r.strategy == NO_CONTROL);
         let changes: Vec<(i32, i32, Ranged)> = reported
             .iter()
             .filter_map(|&(o, y)| {
-                let row = ys.iter().find(|r| r.year == y)?;
-                let v = row.change_pct?;
-                // ensemble.csv holds no node rows: its rows under the node's id are the
-                // node catchment's local runoff, so no range is given here.
+                let r = arriving?;
+                let k = d.offsets.iter().position(|&x| x == o)?;
+                let v = r.at_offsets.get(k).copied().flatten()?;
                 Some((
                     o,
                     y,
                     Ranged {
-                        central: Valued::new(v, Source::new(NODES, &[node, NO_CONTROL, &y.to_string()], nc::YIELD_CHANGE_PCT)),
-                        range: None,
+                        central: Valued::new(v, row_src(r, &offset_col(o))),
+                        range: ensemble_range(d, scope::ARRIVING, node, NO_CONTROL, YIELD_CHANGE_10YR_MEAN_PCT, y),
                     },
                 ))
             })
@@ -305,7 +313,7 @@ pub(super) fn executive_summary(d: &RunData, doc: &mut Doc) {
                     y,
                     Ranged {
                         central: Valued::new(v, s_src(BASIN_ID, NO_CONTROL, &offset_col(o))),
-                        range: ensemble_range(d, BASIN_ID, NO_CONTROL, crate::schema::columns::ensemble::YIELD_CHANGE_PCT, y),
+                        range: ensemble_range(d, scope::BASIN, BASIN_ID, NO_CONTROL, YIELD_CHANGE_10YR_MEAN_PCT, y),
                     },
                 ))
             })
@@ -330,7 +338,7 @@ pub(super) fn executive_summary(d: &RunData, doc: &mut Doc) {
         let levelised = Ranged {
             central: cell(sc::LEVELISED_COST_PER_M3, 1.0).unwrap_or(Valued { value: f64::NAN, src: None }),
             // ensemble.csv ranges no programme economics yet.
-            range: ensemble_range(d, BASIN_ID, &r.strategy, sc::LEVELISED_COST_PER_M3, i.end_year()),
+            range: ensemble_range(d, scope::BASIN, BASIN_ID, &r.strategy, sc::LEVELISED_COST_PER_M3, i.end_year()),
         };
         bullets.push(best_strategy_sentence(
             &r.strategy,
@@ -390,7 +398,7 @@ mod tests {
         let t = node_water_sentence("Lower (intake)", "lower", Some(v(4.0, "upstream_catchments")), &[(20, 2047, r)]);
         assert_eq!(
             t.plain_text(),
-            "Lower (intake) (lower, where the flow of 4 catchments meets): without control, the water arriving there changes by −3.1 % after 20 years (2047) against today's cover held fixed."
+            "Lower (intake) (lower, where the flow of 4 catchments meets): without control, the water arriving there changes by −3.1 % over the 10 years to 2047 (20 years on) against today's cover held fixed."
         );
         assert!(t
             .0
@@ -405,7 +413,14 @@ mod tests {
         let ys = |c: [f64; 3]| -> Vec<NodeYear> {
             c.iter()
                 .enumerate()
-                .map(|(k, &x)| NodeYear { year: 2027 + k as i32, upstream: 2, change_pct: Some(0.0), conc: vec![Some(x)] })
+                .map(|(k, &x)| NodeYear {
+                    year: 2027 + k as i32,
+                    upstream: 2,
+                    change_pct: Some(0.0),
+                    yield_m3: 0.0,
+                    baseline_yield_m3: 0.0,
+                    conc: vec![Some(x)],
+                })
                 .collect()
         };
         assert!(matches!(node_status("n", &ys([2.0, 1.0, 1.0]), 0, "no3", 1.5), GuidelineStatus::AboveAtStart { year: 2027, .. }));
