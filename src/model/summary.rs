@@ -168,7 +168,7 @@ pub struct CatchmentSummary {
     pub change_vs_uninvaded_at_horizon_pct: Option<f64>,
     /// Water lost against the baseline, mean over the window ending in the last year, m³/yr (positive = less water).
     pub water_lost_at_horizon_m3: f64,
-    /// Canopy fraction in the first and last year.
+    /// Canopy fraction in the first year.
     pub canopy_fraction_start: f64,
     /// Canopy fraction in the last year.
     pub canopy_fraction_end: f64,

@@ -325,7 +325,7 @@ pub mod budget {
     pub const SPENT: &str = "spent";
     /// Unspent, $ (empty when unlimited).
     pub const UNSPENT: &str = "unspent";
-    /// Carried over from the year before, $.
+    /// Unspent budget carried into the next year, $ (0 without `carry_over`).
     pub const CARRIED_OVER: &str = "carried_over";
     /// The value of [`AVAILABLE`] without a limit.
     pub const UNLIMITED: &str = "unlimited";

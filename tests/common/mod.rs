@@ -53,3 +53,14 @@ pub fn tussock(area_ha: f64, rain_mm: f64, pet_mm: f64, vulnerable_ha: f64, infe
         curves: None,
     }
 }
+
+/// The `yieldshift` binary, for tests that run it on temporary folders.
+pub fn bin() -> std::process::Command {
+    std::process::Command::new(env!("CARGO_BIN_EXE_yieldshift"))
+}
+
+/// The header row of a CSV file written by yieldshift.
+pub fn csv_header(path: &std::path::Path) -> Vec<String> {
+    let mut r = csv::Reader::from_path(path).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
+    r.headers().unwrap_or_else(|e| panic!("{}: {e}", path.display())).iter().map(str::to_string).collect()
+}
