@@ -85,7 +85,7 @@ fn demo_run_writes_every_output() {
                 .any(|suf| p.file_name().unwrap().to_string_lossy().ends_with(suf))
         })
         .count();
-    for id in ["scree", "tussock-flat", "mistle", "cairn", "greywacke", "ardmere-lower"] {
+    for id in ["skelvane", "fennigrue", "tamsquil", "corvisk", "wendlescar", "quessendale-lower"] {
         for suffix in ["yield_range", "sensitivity"] {
             assert!(out.join("figures").join(format!("{id}_{suffix}.png")).exists(), "{id}_{suffix}");
         }
@@ -227,7 +227,7 @@ fn pet_from_weather_feeds_the_projection_and_matches_the_pet_command() {
     let s = dir.join("s.toml");
     std::fs::write(
         &s,
-        "start_year = 2020\nhorizon_years = 3\ncatchments = \"catchments.csv\"\n\n[climate]\nweather = \"weather.csv\"\nlatitude_deg = -44.1\nelevation_m = 640\nbeyond_record = \"mean\"\n\n\
+        "start_year = 2020\nhorizon_years = 3\ncatchments = \"catchments.csv\"\n\n[climate]\nweather = \"weather.csv\"\nlatitude_deg = -44.3\nelevation_m = 600\nbeyond_record = \"mean\"\n\n\
          [[contaminant]]\nname = \"nitrate_n\"\nopen_export_kg_per_ha_yr = 2.5\nforest_export_kg_per_ha_yr = 2.2\n\n\
          [[contaminant]]\nname = \"total_p\"\nopen_export_kg_per_ha_yr = 0.3\nforest_export_kg_per_ha_yr = 0.25\n",
     )
@@ -243,19 +243,19 @@ fn pet_from_weather_feeds_the_projection_and_matches_the_pet_command() {
         "--out",
         dir.join("pet.csv").to_str().unwrap(),
         "--latitude-deg",
-        "-44.1",
+        "-44.3",
         "--elevation-m",
-        "640",
+        "600",
     ]);
     assert!(o.status.success(), "{}", text(&o));
     let annual = std::fs::read_to_string(dir.join("pet_annual.csv")).unwrap();
     let pet2021: f64 = annual.lines().find(|l| l.contains(",2021,")).unwrap().split(',').nth(2).unwrap().parse().unwrap();
     let yearly = std::fs::read_to_string(out.join("yearly.csv")).unwrap();
-    let row = yearly.lines().find(|l| l.starts_with("scree,no-control,2021,")).unwrap();
+    let row = yearly.lines().find(|l| l.starts_with("skelvane,no-control,2021,")).unwrap();
     let used: f64 = row.split(',').nth(4).unwrap().parse().unwrap();
     assert!((used - pet2021).abs() < 0.051, "projection PET {used} vs pet command {pet2021}");
-    // 2023 is beyond the weather record: the catchment's long-term mean (800 mm for scree).
-    let row = yearly.lines().find(|l| l.starts_with("scree,no-control,2023,")).unwrap();
+    // 2023 is beyond the weather record: the catchment's long-term mean (800 mm for skelvane).
+    let row = yearly.lines().find(|l| l.starts_with("skelvane,no-control,2023,")).unwrap();
     assert_eq!(row.split(',').nth(4).unwrap(), "800.0");
     // A gap that cannot be filled is refused, naming the year.
     let w = std::fs::read_to_string(dir.join("weather.csv")).unwrap();
