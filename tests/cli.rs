@@ -209,6 +209,70 @@ fn curve_json_and_table() {
     assert!(text(&o).contains("--canopy-fraction"));
 }
 
+/// Regression (issue 14): a bad command-line value was reported as
+/// "column '--shard'"; it is an option, and every command says so.
+#[test]
+fn command_line_problems_name_the_option_not_a_column() {
+    let tmp = tempfile::tempdir().unwrap();
+    let dir = tmp.path();
+    let out = |name: &str| dir.join(name).to_str().unwrap().to_string();
+    let observed = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data/observed_flows.csv");
+    let weather = dir.join("w.csv");
+    std::fs::write(&weather, "date,tmax_c,tmin_c\n2021-01-01,20,8\n").unwrap();
+    let demo = demo();
+    let cases: Vec<(Vec<String>, Vec<&str>)> = vec![
+        (
+            ["curve", "--rain-mm", "1000", "--pet-mm", "1000", "--canopy-fraction", "1.5"].map(String::from).to_vec(),
+            vec!["--canopy-fraction"],
+        ),
+        (["curve", "--rain-mm", "0", "--pet-mm", "800"].map(String::from).to_vec(), vec!["--rain-mm"]),
+        (["curve", "--rain-mm", "900", "--pet-mm=-5", "--w-grass", "0"].map(String::from).to_vec(), vec!["--pet-mm", "--w-grass"]),
+        // The demo's strategies share one basin budget, which a shard cannot split.
+        (vec!["run".into(), demo.to_str().unwrap().into(), "--out".into(), out("r"), "--shard".into(), "1/2".into()], vec!["--shard"]),
+        (
+            vec![
+                "fit".into(),
+                demo.to_str().unwrap().into(),
+                "--observed".into(),
+                observed.to_str().unwrap().into(),
+                "--out".into(),
+                out("f"),
+                "--moving-average-yr".into(),
+                "0".into(),
+                "--bootstrap".into(),
+                "3".into(),
+                "--donor".into(),
+                "nothing".into(),
+            ],
+            vec!["--moving-average-yr", "--bootstrap", "--donor"],
+        ),
+        (vec!["pet".into(), weather.to_str().unwrap().into(), "--out".into(), out("pet.csv")], vec!["--latitude-deg", "--elevation-m"]),
+        (
+            vec![
+                "pet".into(),
+                weather.to_str().unwrap().into(),
+                "--out".into(),
+                weather.to_str().unwrap().into(),
+                "--latitude-deg".into(),
+                "-44.3".into(),
+                "--elevation-m".into(),
+                "600".into(),
+            ],
+            vec!["--out"],
+        ),
+    ];
+    for (args, options) in cases {
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        let o = run(&args);
+        let t = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{args:?}: {t}");
+        for opt in options {
+            assert!(t.contains(&format!("option '{opt}'")), "{args:?} should name option '{opt}': {t}");
+        }
+        assert!(!t.contains("column '--"), "{args:?}: {t}");
+    }
+}
+
 #[test]
 fn pet_from_weather_feeds_the_projection_and_matches_the_pet_command() {
     let tmp = tempfile::tempdir().unwrap();
