@@ -547,7 +547,8 @@ fn maps_are_drawn_for_no_control_and_every_strategy() {
         assert!(colours > 20, "{stem}: {colours} colours, the map looks empty");
         let svg = std::fs::read_to_string(dir.join("figures").join(format!("{stem}.svg"))).unwrap();
         assert!(svg.contains("<polygon"), "{stem}");
-        for text in ["Yield change vs baseline (%)", " km", "Projection: equirectangular", "flows into", "Skelvane Creek", "Corvisk Water"] {
+        for text in ["Yield change vs baseline (%)", " km", "Projection: equirectangular", "flows into", "Skelvane Creek", "Corvisk Water"]
+        {
             assert!(svg.contains(text), "{stem}.svg lacks '{text}'");
         }
     }

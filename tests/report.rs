@@ -596,9 +596,13 @@ fn ensemble_ranges_distributions_and_sensitivity_come_from_the_run() {
         assert!(html.contains(d) && md.contains(d), "distribution {d:?}");
     }
     assert!(!html.contains("no ensemble.csv"));
-    for stem in
-        ["basin_sensitivity_year-20", "basin_sensitivity_horizon", "corvisk_yield_range", "corvisk_nitrate_n_range", "corvisk_total_p_range"]
-    {
+    for stem in [
+        "basin_sensitivity_year-20",
+        "basin_sensitivity_horizon",
+        "corvisk_yield_range",
+        "corvisk_nitrate_n_range",
+        "corvisk_total_p_range",
+    ] {
         let (size, var) = png_stats(&std::fs::read(dir.join("figures").join(format!("{stem}.png"))).unwrap());
         assert_eq!(size, yieldshift::plot::SIZE);
         assert!(var > 50.0, "{stem}");
