@@ -294,8 +294,10 @@ mod tests {
     fn missing_site_values_are_reported_together() {
         let w = Wrap::try_parse_from(["x", "w.csv", "--out", "pet.csv"]).unwrap();
         let e = site_meta(&w.args).unwrap_err();
+        // Without a site file the missing values are options of the command line.
         let cols: Vec<_> = e.problems().iter().filter_map(|p| p.column.clone()).collect();
-        assert_eq!(cols, vec!["latitude_deg", "elevation_m"]);
+        assert_eq!(cols, vec!["--latitude-deg", "--elevation-m"]);
+        assert!(e.problems().iter().all(|p| p.place == yieldshift::error::Place::Option), "{e}");
     }
 
     #[test]
