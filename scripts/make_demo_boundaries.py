@@ -1,17 +1,23 @@
 #!/usr/bin/env python3
 """Regenerate demo-data/catchments.geojson: INVENTED boundaries of the six demo
-catchments of the invented Ardmere basin (ids and areas in demo-data/catchments.csv).
+catchments of the invented Quessendale basin (ids and areas in demo-data/catchments.csv).
 
 Nothing here is a real boundary. The basin is drawn in a local kilometre grid
 (x east, y north) from a handful of hand-placed junction points; every edge is
 roughened by deterministic midpoint displacement so it looks like a ridge line.
 An edge shared by two catchments is generated once, so neighbours meet exactly
-(no gaps, no overlaps). The grid is then placed, arbitrarily, in open high
-country around 44.3 degrees S 170.0 degrees E.
+(no gaps, no overlaps). The grid is then placed over open ocean, around
+44.3 degrees S 100.0 degrees E in the southern Indian Ocean, where there is no
+land: a mid-latitude southern site (the demo's climate comes from its own
+invented table, not from the place), chosen so that no coordinate of the demo
+falls in any real, named region. Checked with the GLOBE 1-km land mask (the
+`global-land-mask` Python package, not needed to run this script): the nearest
+land is about 1,700 km away (the south-west corner of Australia, near 34.4 S
+115.1 E), and no island lies closer.
 
 Features:
-* tussock-flat has a hole: an invented tarn excluded from the catchment area;
-* greywacke is a MultiPolygon: a main block and a detached headwater block.
+* fennigrue has a hole: an invented tarn excluded from the catchment area;
+* wendlescar is a MultiPolygon: a main block and a detached headwater block.
 
 Plain Python 3, no packages. Deterministic: the same file on every run.
 Checks each catchment's ellipsoidal area against the table's area_ha and fails
@@ -48,33 +54,34 @@ E2 = F * (2 - F)
 E = math.sqrt(E2)
 
 # Where the invented grid is placed (its origin), degrees.
-LON0 = 169.93
+LON0 = 99.93
 LAT0 = -44.36
 
 # Junction points of the invented basin, km from the origin (hand-placed, then
-# nudged once so that each catchment's area matches the demo table).
+# nudged, by at most 0.12 km, so that each catchment's area matches the demo
+# table with the edge roughening of the "demo-edge-" seeds).
 NODES = {
-    "A": (0.14, 1.63), "B": (5.48, 0.65), "C": (12.15, 1.10), "D": (12.54, 2.87),
-    "E": (7.90, 2.38), "F": (3.27, 2.96), "G": (-0.19, 3.55), "H": (-0.56, 6.89),
-    "I": (0.57, 10.13), "J": (3.18, 10.21), "K": (7.24, 9.79), "L": (12.01, 9.38),
-    "M": (13.16, 6.18), "N": (8.17, 12.94), "O": (5.49, 13.58), "P": (2.84, 12.79),
-    "Q": (7.05, 6.25), "R": (3.27, 6.59),
-    # greywacke: main block west of scree, and a detached block to its north
-    "S": (-4.13, 3.31), "T": (-2.21, 7.27), "U": (-3.69, 7.10),
-    "V": (-5.46, 9.40), "W": (-2.66, 9.60), "X": (-3.07, 11.50), "Y": (-5.01, 11.40),
+    "A": (0.11, 1.59), "B": (5.49, 0.57), "C": (12.16, 1.06), "D": (12.58, 2.86),
+    "E": (7.84, 2.43), "F": (3.32, 3.05), "G": (-0.18, 3.50), "H": (-0.52, 6.91),
+    "I": (0.57, 10.14), "J": (3.20, 10.19), "K": (7.18, 9.77), "L": (12.04, 9.41),
+    "M": (13.22, 6.18), "N": (8.19, 12.95), "O": (5.49, 13.61), "P": (2.82, 12.80),
+    "Q": (6.93, 6.22), "R": (3.33, 6.61),
+    # wendlescar: main block west of skelvane, and a detached block to its north
+    "S": (-4.18, 3.27), "T": (-2.21, 7.31), "U": (-3.75, 7.13),
+    "V": (-5.49, 9.38), "W": (-2.62, 9.57), "X": (-3.04, 11.54), "Y": (-5.04, 11.44),
 }
 
 # Exterior rings, counter-clockwise (RFC 7946 right-hand rule), as node lists.
 CATCHMENTS = [
-    ("scree", [["G", "F", "R", "J", "I", "H"]]),
-    ("tussock-flat", [["E", "D", "M", "L", "K", "Q"]]),
-    ("mistle", [["J", "K", "N", "O", "P"]]),
-    ("cairn", [["F", "E", "Q", "K", "J", "R"]]),
-    ("greywacke", [["S", "G", "H", "T", "U"], ["V", "W", "X", "Y"]]),
-    ("ardmere-lower", [["A", "B", "C", "D", "E", "F", "G"]]),
+    ("skelvane", [["G", "F", "R", "J", "I", "H"]]),
+    ("fennigrue", [["E", "D", "M", "L", "K", "Q"]]),
+    ("tamsquil", [["J", "K", "N", "O", "P"]]),
+    ("corvisk", [["F", "E", "Q", "K", "J", "R"]]),
+    ("wendlescar", [["S", "G", "H", "T", "U"], ["V", "W", "X", "Y"]]),
+    ("quessendale-lower", [["A", "B", "C", "D", "E", "F", "G"]]),
 ]
 
-# The invented tarn cut out of tussock-flat: centre, semi-axes (km), rotation.
+# The invented tarn cut out of fennigrue: centre, semi-axes (km), rotation.
 TARN = ((10.4, 6.0), 0.95, 0.55, 0.5)
 
 
@@ -83,7 +90,7 @@ def rough_edge(a, b, levels=4, amplitude=0.10):
     perpendicular to each piece, seeded by the (unordered) node pair so the
     edge is the same, reversed, for both neighbours."""
     key = "-".join(sorted((a, b)))
-    rng = random.Random("ardmere-edge-" + key)
+    rng = random.Random("demo-edge-" + key)
     p, q = (NODES[a], NODES[b]) if a < b else (NODES[b], NODES[a])
     pts = [p, q]
     amp = amplitude
@@ -110,7 +117,7 @@ def ring_km(names):
 
 def tarn_km():
     (cx, cy), ax, ay, rot = TARN
-    rng = random.Random("ardmere-tarn")
+    rng = random.Random("demo-tarn")
     pts = []
     n = 28
     for k in range(n):
@@ -160,14 +167,14 @@ def main():
         polygons = []
         for p, names in enumerate(parts):
             rings = [closed([to_lonlat(x, y) for x, y in ring_km(names)])]
-            if cid == "tussock-flat" and p == 0:
+            if cid == "fennigrue" and p == 0:
                 rings.append(closed([to_lonlat(x, y) for x, y in tarn_km()]))
             polygons.append(rings)
         area_ha = sum(ring_area_m2(r[0]) - sum(ring_area_m2(h) for h in r[1:]) for r in polygons) / 1e4
         want = float(table[cid]["area_ha"])
         diff = area_ha / want - 1
         worst = max(worst, abs(diff))
-        print(f"{cid:14s} {area_ha:8.1f} ha  table {want:7.1f} ha  {100 * diff:+5.2f}%", file=sys.stderr)
+        print(f"{cid:18s} {area_ha:8.1f} ha  table {want:7.1f} ha  {100 * diff:+5.2f}%", file=sys.stderr)
         if len(polygons) == 1:
             geometry = {"type": "Polygon", "coordinates": polygons[0]}
         else:
@@ -179,7 +186,7 @@ def main():
         })
     fc = {
         "type": "FeatureCollection",
-        "description": "INVENTED boundaries of the invented Ardmere demo basin "
+        "description": "INVENTED boundaries of the invented Quessendale demo basin "
         "(scripts/make_demo_boundaries.py); not a real place.",
         "features": features,
     }

@@ -5,8 +5,8 @@ import csv, math, random
 
 random.seed(20270101)
 catchments = {  # id: (mean rain mm, mean PET mm)
-    "scree": (1650, 800), "tussock-flat": (1100, 860), "mistle": (1400, 830),
-    "cairn": (950, 880), "greywacke": (2100, 760), "ardmere-lower": (900, 900),
+    "skelvane": (1650, 800), "fennigrue": (1100, 860), "tamsquil": (1400, 830),
+    "corvisk": (950, 880), "wendlescar": (2100, 760), "quessendale-lower": (900, 900),
 }
 years = range(1997, 2027)
 basin = []

@@ -1,6 +1,6 @@
 #!/usr/bin/env python3
 """Writes demo-data/observed_flows.csv: INVENTED observed annual flows for two
-gauged catchments of the invented demo basin (scree and greywacke), 1997-2026,
+gauged catchments of the invented demo basin (skelvane and wendlescar), 1997-2026,
 for trying `yieldshift fit`. Deterministic (fixed seed). Demo data only: no real
 gauge, no real record.
 
@@ -10,15 +10,15 @@ How the flows are made (so the fit has something known to find):
   the catchment's cover: ET = f ET_forest + (1 - f) ET_grass, with the demo
   scenario's w_forest = 2.0, forest PET = 1.15 x PET (its forest_pet_factor),
   and the starting canopy fraction f that yieldshift computes for the demo's
-  current cover (fit.csv column canopy_fraction): scree 0.081787, greywacke
+  current cover (fit.csv column canopy_fraction): skelvane 0.081787, wendlescar
   0.335639.
-* The chosen ("true") grass w differs from the scenario's 0.5: scree 0.75,
-  greywacke 0.30.
+* The chosen ("true") grass w differs from the scenario's 0.5: skelvane 0.75,
+  wendlescar 0.30.
 * Invented storage carry-over: a quarter of each year's yield leaves in the next
   year (flow_t = 0.75 Q_t + 0.25 Q_t-1), then gauging noise: lognormal with a
   coefficient of variation of 6 %.
-* Gaps: scree has no flow in 2003 and 2014 (gauge out of service; empty cells);
-  greywacke's gauge opened in 2001 and its 2019 flow is missing. Greywacke's
+* Gaps: skelvane has no flow in 2003 and 2014 (gauge out of service; empty cells);
+  wendlescar's gauge opened in 2001 and its 2019 flow is missing. Wendlescar's
   flows are given as volumes (flow_m3, over its 1800 ha) to show the conversion.
 """
 import csv
@@ -27,13 +27,13 @@ import random
 
 random.seed(20261202)
 CATCHMENTS = {  # id: (true w_grass, canopy fraction, area ha)
-    "scree": (0.75, 0.081787, 2400.0),
-    "greywacke": (0.30, 0.335639, 1800.0),
+    "skelvane": (0.75, 0.081787, 2400.0),
+    "wendlescar": (0.30, 0.335639, 1800.0),
 }
 W_FOREST = 2.0
 FOREST_PET_FACTOR = 1.15
-GAPS = {"scree": {2003, 2014}, "greywacke": {2019}}
-FIRST_YEAR = {"scree": 1997, "greywacke": 2001}
+GAPS = {"skelvane": {2003, 2014}, "wendlescar": {2019}}
+FIRST_YEAR = {"skelvane": 1997, "wendlescar": 2001}
 
 
 def zhang_et(p, e0, w):
@@ -65,7 +65,7 @@ with open("demo-data/observed_flows.csv", "w", newline="") as f:
                 continue
             if year in GAPS[cid]:
                 out.writerow([cid, year, "", "", "invented gap: gauge out of service"])
-            elif cid == "greywacke":
+            elif cid == "wendlescar":
                 out.writerow([cid, year, "", f"{flow * 10 * area:.0f}", ""])
             else:
                 out.writerow([cid, year, f"{flow:.1f}", "", ""])

@@ -3,8 +3,9 @@
 //! Input problems are collected, not thrown one at a time: a file with ten bad
 //! cells yields one [`Error::Invalid`] listing all ten [`Problem`]s, each naming
 //! the file, the spreadsheet-style row (header = row 1), the column and what is
-//! allowed — or, for a scenario file (TOML), the line and the dotted key. The
-//! command line maps [`Error::Invalid`] to exit code 2.
+//! allowed — or, for a scenario file (TOML), the line and the dotted key, or, for
+//! the command line, the option (`option '--shard'`). The command line maps
+//! [`Error::Invalid`] to exit code 2.
 
 use std::fmt;
 use std::path::{Path, PathBuf};
@@ -16,11 +17,12 @@ pub struct Problem {
     pub file: Option<PathBuf>,
     /// Row as a spreadsheet shows it (1-based; the CSV header is row 1), or a TOML line.
     pub row: Option<usize>,
-    /// Column (CSV) or key (TOML) concerned.
+    /// Column (CSV), key (TOML) or command-line option (`--shard`) concerned.
     pub column: Option<String>,
     /// What is wrong and what is allowed.
     pub message: String,
-    /// Whether `row` and `column` are a table's row and column or a text file's line and key.
+    /// Whether `row` and `column` are a table's row and column, a text file's line
+    /// and key, or a command-line option.
     pub place: Place,
 }
 
@@ -32,6 +34,9 @@ pub enum Place {
     Cell,
     /// A key of a scenario file: `line 8, key 'invasion.spread_rate_per_yr'`.
     Key,
+    /// A command-line option: `option '--shard'` (the file, if any, is the one the
+    /// option names).
+    Option,
 }
 
 impl Problem {
@@ -71,6 +76,14 @@ impl Problem {
         self
     }
 
+    /// Sets the command-line option concerned (with its dashes, `--shard`); the
+    /// problem then reads `option '--shard'`.
+    pub fn option(mut self, option: impl Into<String>) -> Self {
+        self.column = Some(option.into());
+        self.place = Place::Option;
+        self
+    }
+
     /// Sets the file if none is set yet.
     pub fn or_file(mut self, file: &Path) -> Self {
         if self.file.is_none() {
@@ -90,6 +103,7 @@ impl fmt::Display for Problem {
         let (row, column) = match self.place {
             Place::Cell => ("row", "column"),
             Place::Key => ("line", "key"),
+            Place::Option => ("row", "option"),
         };
         if let Some(n) = self.row {
             write!(f, "{}{row} {n}", if wrote { ", " } else { "" })?;
@@ -169,3 +183,22 @@ fn list_problems(problems: &[Problem]) -> String {
 
 /// Result alias for library functions.
 pub type Result<T> = std::result::Result<T, Error>;
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_problem_reads_with_its_place() {
+        let cell = Problem::in_file(Path::new("c.csv"), "must be positive").row(3).column("rain_mm");
+        assert_eq!(cell.to_string(), "c.csv, row 3, column 'rain_mm': must be positive");
+        let key = Problem::in_file(Path::new("s.toml"), "unknown").line(8).key("invasion.x");
+        assert_eq!(key.to_string(), "s.toml, line 8, key 'invasion.x': unknown");
+        // A command-line option is an option, never a column.
+        let opt = Problem::new("1.5 is out of range; allowed 0 to 1").option("--canopy-fraction");
+        assert_eq!(opt.to_string(), "option '--canopy-fraction': 1.5 is out of range; allowed 0 to 1");
+        assert_eq!(opt.column.as_deref(), Some("--canopy-fraction"));
+        let in_file = Problem::in_file(Path::new("s.toml"), "shares one budget").option("--shard");
+        assert_eq!(in_file.to_string(), "s.toml, option '--shard': shares one budget");
+    }
+}

@@ -87,12 +87,12 @@ fn demo_run_writes_every_output() {
         .filter(|p| !p.file_name().unwrap().to_string_lossy().contains("_arriving_"))
         .count();
     // What arrives at each receiving node: its change and each concentration.
-    for node in ["cairn", "ardmere-lower"] {
+    for node in ["corvisk", "quessendale-lower"] {
         for what in ["yield", "nitrate_n", "total_p"] {
             assert!(out.join("figures").join(format!("{node}_arriving_{what}.png")).exists(), "{node}_arriving_{what}");
         }
     }
-    for id in ["scree", "tussock-flat", "mistle", "cairn", "greywacke", "ardmere-lower"] {
+    for id in ["skelvane", "fennigrue", "tamsquil", "corvisk", "wendlescar", "quessendale-lower"] {
         for suffix in ["yield_range", "sensitivity"] {
             assert!(out.join("figures").join(format!("{id}_{suffix}.png")).exists(), "{id}_{suffix}");
         }
@@ -216,6 +216,70 @@ fn curve_json_and_table() {
     assert!(text(&o).contains("--canopy-fraction"));
 }
 
+/// Regression (issue 14): a bad command-line value was reported as
+/// "column '--shard'"; it is an option, and every command says so.
+#[test]
+fn command_line_problems_name_the_option_not_a_column() {
+    let tmp = tempfile::tempdir().unwrap();
+    let dir = tmp.path();
+    let out = |name: &str| dir.join(name).to_str().unwrap().to_string();
+    let observed = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data/observed_flows.csv");
+    let weather = dir.join("w.csv");
+    std::fs::write(&weather, "date,tmax_c,tmin_c\n2021-01-01,20,8\n").unwrap();
+    let demo = demo();
+    let cases: Vec<(Vec<String>, Vec<&str>)> = vec![
+        (
+            ["curve", "--rain-mm", "1000", "--pet-mm", "1000", "--canopy-fraction", "1.5"].map(String::from).to_vec(),
+            vec!["--canopy-fraction"],
+        ),
+        (["curve", "--rain-mm", "0", "--pet-mm", "800"].map(String::from).to_vec(), vec!["--rain-mm"]),
+        (["curve", "--rain-mm", "900", "--pet-mm=-5", "--w-grass", "0"].map(String::from).to_vec(), vec!["--pet-mm", "--w-grass"]),
+        // The demo's strategies share one basin budget, which a shard cannot split.
+        (vec!["run".into(), demo.to_str().unwrap().into(), "--out".into(), out("r"), "--shard".into(), "1/2".into()], vec!["--shard"]),
+        (
+            vec![
+                "fit".into(),
+                demo.to_str().unwrap().into(),
+                "--observed".into(),
+                observed.to_str().unwrap().into(),
+                "--out".into(),
+                out("f"),
+                "--moving-average-yr".into(),
+                "0".into(),
+                "--bootstrap".into(),
+                "3".into(),
+                "--donor".into(),
+                "nothing".into(),
+            ],
+            vec!["--moving-average-yr", "--bootstrap", "--donor"],
+        ),
+        (vec!["pet".into(), weather.to_str().unwrap().into(), "--out".into(), out("pet.csv")], vec!["--latitude-deg", "--elevation-m"]),
+        (
+            vec![
+                "pet".into(),
+                weather.to_str().unwrap().into(),
+                "--out".into(),
+                weather.to_str().unwrap().into(),
+                "--latitude-deg".into(),
+                "-44.3".into(),
+                "--elevation-m".into(),
+                "600".into(),
+            ],
+            vec!["--out"],
+        ),
+    ];
+    for (args, options) in cases {
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        let o = run(&args);
+        let t = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{args:?}: {t}");
+        for opt in options {
+            assert!(t.contains(&format!("option '{opt}'")), "{args:?} should name option '{opt}': {t}");
+        }
+        assert!(!t.contains("column '--"), "{args:?}: {t}");
+    }
+}
+
 #[test]
 fn pet_from_weather_feeds_the_projection_and_matches_the_pet_command() {
     let tmp = tempfile::tempdir().unwrap();
@@ -234,7 +298,7 @@ fn pet_from_weather_feeds_the_projection_and_matches_the_pet_command() {
     let s = dir.join("s.toml");
     std::fs::write(
         &s,
-        "start_year = 2020\nhorizon_years = 3\ncatchments = \"catchments.csv\"\n\n[climate]\nweather = \"weather.csv\"\nlatitude_deg = -44.1\nelevation_m = 640\nbeyond_record = \"mean\"\n\n\
+        "start_year = 2020\nhorizon_years = 3\ncatchments = \"catchments.csv\"\n\n[climate]\nweather = \"weather.csv\"\nlatitude_deg = -44.3\nelevation_m = 600\nbeyond_record = \"mean\"\n\n\
          [[contaminant]]\nname = \"nitrate_n\"\nopen_export_kg_per_ha_yr = 2.5\nforest_export_kg_per_ha_yr = 2.2\n\n\
          [[contaminant]]\nname = \"total_p\"\nopen_export_kg_per_ha_yr = 0.3\nforest_export_kg_per_ha_yr = 0.25\n",
     )
@@ -263,19 +327,19 @@ fn pet_from_weather_feeds_the_projection_and_matches_the_pet_command() {
         "--out",
         dir.join("pet.csv").to_str().unwrap(),
         "--latitude-deg",
-        "-44.1",
+        "-44.3",
         "--elevation-m",
-        "640",
+        "600",
     ]);
     assert!(o.status.success(), "{}", text(&o));
     let annual = std::fs::read_to_string(dir.join("pet_annual.csv")).unwrap();
     let pet2021: f64 = annual.lines().find(|l| l.contains(",2021,")).unwrap().split(',').nth(2).unwrap().parse().unwrap();
     let yearly = std::fs::read_to_string(out.join("yearly.csv")).unwrap();
-    let row = yearly.lines().find(|l| l.starts_with("scree,no-control,2021,")).unwrap();
+    let row = yearly.lines().find(|l| l.starts_with("skelvane,no-control,2021,")).unwrap();
     let used: f64 = row.split(',').nth(4).unwrap().parse().unwrap();
     assert!((used - pet2021).abs() < 0.051, "projection PET {used} vs pet command {pet2021}");
-    // 2023 is beyond the weather record: the catchment's long-term mean (800 mm for scree).
-    let row = yearly.lines().find(|l| l.starts_with("scree,no-control,2023,")).unwrap();
+    // 2023 is beyond the weather record: the catchment's long-term mean (800 mm for skelvane).
+    let row = yearly.lines().find(|l| l.starts_with("skelvane,no-control,2023,")).unwrap();
     assert_eq!(row.split(',').nth(4).unwrap(), "800.0");
     // A gap that cannot be filled is refused, naming the year.
     let w = std::fs::read_to_string(dir.join("weather.csv")).unwrap();

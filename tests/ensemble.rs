@@ -204,7 +204,7 @@ fn same_seed_gives_identical_bytes_with_one_or_two_threads() {
     let ens = std::fs::read_to_string(outputs[0].join("ensemble.csv")).unwrap();
     assert!(ens.starts_with("catchment,scope,strategy,year,variable,p5,p25,p50,p75,p95,mean,members,prob_above_guideline\n"));
     // Bands are ordered and not degenerate for yield.
-    let row = ens.lines().find(|l| l.starts_with("cairn,local,no-control,2057,yield_mm,")).unwrap();
+    let row = ens.lines().find(|l| l.starts_with("corvisk,local,no-control,2057,yield_mm,")).unwrap();
     let q: Vec<f64> = row.split(',').skip(5).take(5).map(|v| v.parse().unwrap()).collect();
     assert!(q.windows(2).all(|w| w[0] <= w[1]) && q[4] > q[0], "{row}");
     let sens = std::fs::read_to_string(outputs[0].join("sensitivity.csv")).unwrap();

@@ -90,7 +90,7 @@ fn one_degree_cells_match_geographiclib() {
 #[test]
 fn irregular_polygons_and_holes_match_geographiclib() {
     let refs = references();
-    // Source: geographiclib 2.1 Geodesic.WGS84 Polygon, invented hexagon near 44.35° S 169.96° E
+    // Source: geographiclib 2.1 Geodesic.WGS84 Polygon, invented hexagon near 44.35° S 99.96° E
     check_reference(&refs, "south_44_irregular");
     // Source: geographiclib 2.1 Geodesic.WGS84 Polygon, the same hexagon minus an invented quadrilateral hole
     check_reference(&refs, "south_44_irregular_with_hole");
@@ -144,10 +144,10 @@ fn demo_polygons_agree_with_the_demo_table_within_5_percent() {
     // The demo exercises a hole and a MultiPolygon.
     assert!(b.iter().any(|f| f.geometry().0.iter().any(|p| !p.interiors().is_empty())), "a polygon with a hole");
     assert!(b.iter().any(|f| f.is_multi() && f.geometry().0.len() > 1), "a MultiPolygon");
-    // Invented placement: open high country around 44° S 170° E.
+    // Invented placement: open ocean around 44° S 100° E, no land within about 1,700 km (DEVELOPERS.md, Demo data).
     for f in b.iter() {
         for c in f.geometry().0.iter().flat_map(|p| p.exterior().0.iter()) {
-            assert!((169.7..170.2).contains(&c.x) && (-44.5..-44.1).contains(&c.y), "{c:?}");
+            assert!((99.7..100.2).contains(&c.x) && (-44.5..-44.1).contains(&c.y), "{c:?}");
         }
     }
 }
@@ -175,15 +175,15 @@ fn area_mismatches_are_reported_with_both_areas() {
     let inflated: Vec<(String, f64)> = demo_table().into_iter().map(|(id, a)| (id, a * 1.25)).collect();
     let m = area_mismatches(&b, &inflated, 0.05);
     assert_eq!(m.len(), 6);
-    let scree = m.iter().find(|x| x.catchment == "scree").unwrap();
-    assert_eq!(scree.table_area_ha, 3000.0);
-    assert!((scree.relative_difference - (scree.geometry_area_ha / 3000.0 - 1.0)).abs() < 1e-12);
-    assert!(scree.relative_difference < -0.19 && scree.relative_difference > -0.21);
-    let msg = scree.message();
+    let skelvane = m.iter().find(|x| x.catchment == "skelvane").unwrap();
+    assert_eq!(skelvane.table_area_ha, 3000.0);
+    assert!((skelvane.relative_difference - (skelvane.geometry_area_ha / 3000.0 - 1.0)).abs() < 1e-12);
+    assert!(skelvane.relative_difference < -0.19 && skelvane.relative_difference > -0.21);
+    let msg = skelvane.message();
     assert!(
-        msg.contains("'scree'")
+        msg.contains("'skelvane'")
             && msg.contains("table's area_ha is 3000 ha")
-            && msg.contains("is 2402 ha")
+            && msg.contains("is 2398 ha")
             && msg.contains("area_from_geometry"),
         "{msg}"
     );
@@ -195,7 +195,7 @@ fn area_mismatches_are_reported_with_both_areas() {
 // Bad GeoJSON
 // ---------------------------------------------------------------------------
 
-const IDS: [&str; 3] = ["scree", "cairn", "mistle"];
+const IDS: [&str; 3] = ["skelvane", "corvisk", "tamsquil"];
 
 fn square(x0: f64, y0: f64) -> String {
     let d = 0.05;
@@ -212,9 +212,9 @@ fn polygon(coords: &str) -> String {
 
 fn good_features() -> Vec<String> {
     vec![
-        feature("\"id\": \"scree\"", &polygon(&square(170.0, -44.3))),
-        feature("\"id\": \"cairn\"", &polygon(&square(170.05, -44.3))),
-        feature("\"id\": \"mistle\"", &polygon(&square(170.1, -44.3))),
+        feature("\"id\": \"skelvane\"", &polygon(&square(100.0, -44.3))),
+        feature("\"id\": \"corvisk\"", &polygon(&square(100.05, -44.3))),
+        feature("\"id\": \"tamsquil\"", &polygon(&square(100.1, -44.3))),
     ]
 }
 
@@ -245,7 +245,7 @@ fn good_collection_is_read() {
 #[test]
 fn missing_id_is_refused_naming_the_feature() {
     let mut f = good_features();
-    f[1] = feature("\"name\": \"Cairn Water\", \"ID\": \"cairn\"", &polygon(&square(170.05, -44.3)));
+    f[1] = feature("\"name\": \"Corvisk Water\", \"ID\": \"corvisk\"", &polygon(&square(100.05, -44.3)));
     let p = refused(&f);
     assert!(
         p.iter().any(|m| m.contains("row 3")
@@ -255,18 +255,18 @@ fn missing_id_is_refused_naming_the_feature() {
         "{p:#?}"
     );
     // ... and the catchment is then reported as having no boundary.
-    assert!(p.iter().any(|m| m.contains("catchment 'cairn' of the catchment table has no feature")), "{p:#?}");
+    assert!(p.iter().any(|m| m.contains("catchment 'corvisk' of the catchment table has no feature")), "{p:#?}");
 }
 
 #[test]
 fn unknown_id_is_refused_with_a_suggestion() {
     let mut f = good_features();
-    f[2] = feature("\"id\": \"mistel\"", &polygon(&square(170.1, -44.3)));
+    f[2] = feature("\"id\": \"tamsqil\"", &polygon(&square(100.1, -44.3)));
     let p = refused(&f);
     assert!(
-        p.iter().any(|m| m.contains("feature 3 (id 'mistel')")
+        p.iter().any(|m| m.contains("feature 3 (id 'tamsqil')")
             && m.contains("not a catchment of the catchment table")
-            && m.contains("did you mean 'mistle'")),
+            && m.contains("did you mean 'tamsquil'")),
         "{p:#?}"
     );
 }
@@ -274,18 +274,18 @@ fn unknown_id_is_refused_with_a_suggestion() {
 #[test]
 fn duplicate_id_is_refused() {
     let mut f = good_features();
-    f[2] = feature("\"id\": \"scree\"", &polygon(&square(170.1, -44.3)));
+    f[2] = feature("\"id\": \"skelvane\"", &polygon(&square(100.1, -44.3)));
     let p = refused(&f);
-    assert!(p.iter().any(|m| m.contains("feature 3 (id 'scree')") && m.contains("also used by feature 1")), "{p:#?}");
+    assert!(p.iter().any(|m| m.contains("feature 3 (id 'skelvane')") && m.contains("also used by feature 1")), "{p:#?}");
 }
 
 #[test]
 fn unclosed_ring_is_refused_naming_the_feature() {
     let mut f = good_features();
-    f[0] = feature("\"id\": \"scree\"", &polygon("[[[170.0, -44.3], [170.05, -44.3], [170.05, -44.25], [170.0, -44.25]]]"));
+    f[0] = feature("\"id\": \"skelvane\"", &polygon("[[[100.0, -44.3], [100.05, -44.3], [100.05, -44.25], [100.0, -44.25]]]"));
     let p = refused(&f);
     assert!(
-        p.iter().any(|m| m.contains("feature 1 (id 'scree')")
+        p.iter().any(|m| m.contains("feature 1 (id 'skelvane')")
             && m.contains("exterior ring is not closed")
             && m.contains("features[0].geometry.coordinates[0]")),
         "{p:#?}"
@@ -297,11 +297,11 @@ fn projected_coordinates_are_refused_naming_the_feature() {
     let mut f = good_features();
     // Metres of a national transverse Mercator grid, as a GIS export without reprojection gives.
     f[1] = feature(
-        "\"id\": \"cairn\"",
+        "\"id\": \"corvisk\"",
         &polygon("[[[1370000, 5090000], [1372000, 5090000], [1372000, 5092000], [1370000, 5092000], [1370000, 5090000]]]"),
     );
     let p = refused(&f);
-    assert!(p.iter().any(|m| m.contains("feature 2 (id 'cairn')") && m.contains("look projected")), "{p:#?}");
+    assert!(p.iter().any(|m| m.contains("feature 2 (id 'corvisk')") && m.contains("look projected")), "{p:#?}");
     assert!(p.iter().any(|m| m.contains("GeoJSON must be WGS84 longitude/latitude")), "{p:#?}");
 }
 
@@ -309,19 +309,19 @@ fn projected_coordinates_are_refused_naming_the_feature() {
 fn self_intersection_is_refused_naming_the_feature() {
     let mut f = good_features();
     f[2] =
-        feature("\"id\": \"mistle\"", &polygon("[[[170.1, -44.3], [170.15, -44.25], [170.15, -44.3], [170.1, -44.22], [170.1, -44.3]]]"));
+        feature("\"id\": \"tamsquil\"", &polygon("[[[100.1, -44.3], [100.15, -44.25], [100.15, -44.3], [100.1, -44.22], [100.1, -44.3]]]"));
     let p = refused(&f);
-    assert!(p.iter().any(|m| m.contains("feature 3 (id 'mistle')") && m.contains("crosses or touches itself near")), "{p:#?}");
+    assert!(p.iter().any(|m| m.contains("feature 3 (id 'tamsquil')") && m.contains("crosses or touches itself near")), "{p:#?}");
 }
 
 #[test]
 fn other_geometry_types_and_broken_json_are_refused() {
     let mut f = good_features();
-    f[0] = feature("\"id\": \"scree\"", "{\"type\": \"LineString\", \"coordinates\": [[170, -44], [170.1, -44.1]]}");
-    f[1] = feature("\"id\": \"cairn\"", "null");
+    f[0] = feature("\"id\": \"skelvane\"", "{\"type\": \"LineString\", \"coordinates\": [[100, -44], [100.1, -44.1]]}");
+    f[1] = feature("\"id\": \"corvisk\"", "null");
     let p = refused(&f);
-    assert!(p.iter().any(|m| m.contains("feature 1 (id 'scree')") && m.contains("is a LineString")), "{p:#?}");
-    assert!(p.iter().any(|m| m.contains("feature 2 (id 'cairn')") && m.contains("has no geometry")), "{p:#?}");
+    assert!(p.iter().any(|m| m.contains("feature 1 (id 'skelvane')") && m.contains("is a LineString")), "{p:#?}");
+    assert!(p.iter().any(|m| m.contains("feature 2 (id 'corvisk')") && m.contains("has no geometry")), "{p:#?}");
 
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("broken.geojson");
@@ -339,13 +339,13 @@ fn other_geometry_types_and_broken_json_are_refused() {
 #[test]
 fn every_problem_in_the_file_is_listed_together() {
     let f = vec![
-        feature("\"id\": \"scree\"", &polygon("[[[170.0, -44.3], [170.05, -44.3], [170.05, -44.25], [170.0, -44.25]]]")),
-        feature("\"id\": \"Cairn\"", &polygon(&square(170.05, -44.3))),
-        feature("\"nom\": \"mistle\"", &polygon(&square(170.1, -44.3))),
+        feature("\"id\": \"skelvane\"", &polygon("[[[100.0, -44.3], [100.05, -44.3], [100.05, -44.25], [100.0, -44.25]]]")),
+        feature("\"id\": \"Corvisk\"", &polygon(&square(100.05, -44.3))),
+        feature("\"nom\": \"tamsquil\"", &polygon(&square(100.1, -44.3))),
     ];
     let p = refused(&f);
-    // unclosed ring (scree), unknown id 'Cairn', missing id, and the two catchments
-    // without a feature (cairn, mistle; scree's feature exists, its ring is the fault)
+    // unclosed ring (skelvane), unknown id 'Corvisk', missing id, and the two catchments
+    // without a feature (corvisk, tamsquil; skelvane's feature exists, its ring is the fault)
     assert_eq!(p.len(), 5, "{p:#?}");
     assert!(p[2].contains("has no property 'id' holding the catchment id (its properties: nom)"), "{p:#?}");
 }
@@ -493,16 +493,16 @@ fn results_geojson_round_trip_keeps_every_feature_and_equals_summary_csv() {
         .records()
         .map(|x| x.unwrap())
         .find(|x| {
-            &x[col("catchment")] == "cairn"
+            &x[col("catchment")] == "corvisk"
                 && &x[col("strategy")] == "no-control"
                 && &x[col("year")] == "2087"
                 && &x[col("variable")] == "yield_change_pct"
         })
         .unwrap();
-    let cairn = lines.iter().find(|l| l.contains("\"id\":\"cairn\"")).unwrap();
-    assert_same(cairn, "yield_change_horizon_pct_p50", &row[col("p50")], "cairn p50");
-    assert_same(cairn, "yield_change_horizon_pct_p5", &row[col("p5")], "cairn p5");
-    assert_same(cairn, "yield_change_horizon_pct_p95", &row[col("p95")], "cairn p95");
+    let corvisk = lines.iter().find(|l| l.contains("\"id\":\"corvisk\"")).unwrap();
+    assert_same(corvisk, "yield_change_horizon_pct_p50", &row[col("p50")], "corvisk p50");
+    assert_same(corvisk, "yield_change_horizon_pct_p5", &row[col("p5")], "corvisk p5");
+    assert_same(corvisk, "yield_change_horizon_pct_p95", &row[col("p95")], "corvisk p95");
 
     // The results file reads back as boundaries, without the results it carried.
     let ids: Vec<&str> = want.iter().map(String::as_str).collect();
@@ -547,7 +547,8 @@ fn maps_are_drawn_for_no_control_and_every_strategy() {
         assert!(colours > 20, "{stem}: {colours} colours, the map looks empty");
         let svg = std::fs::read_to_string(dir.join("figures").join(format!("{stem}.svg"))).unwrap();
         assert!(svg.contains("<polygon"), "{stem}");
-        for text in ["Yield change vs baseline (%)", " km", "Projection: equirectangular", "flows into", "Scree Creek", "Cairn Water"] {
+        for text in ["Yield change vs baseline (%)", " km", "Projection: equirectangular", "flows into", "Skelvane Creek", "Corvisk Water"]
+        {
             assert!(svg.contains(text), "{stem}.svg lacks '{text}'");
         }
     }
@@ -565,7 +566,7 @@ mod random_input {
     /// collinear edges common; a few far-out values test the range checks.
     fn coord() -> impl Strategy<Value = f64> {
         prop_oneof![
-            8 => (0i32..6).prop_map(|v| 170.0 + v as f64 * 0.01),
+            8 => (0i32..6).prop_map(|v| 100.0 + v as f64 * 0.01),
             1 => Just(1_370_000.0),
             1 => (-200i32..200).prop_map(f64::from),
         ]
@@ -591,7 +592,7 @@ mod random_input {
         fn random_polygons_are_read_or_refused_never_panic(
             parts in prop::collection::vec(prop::collection::vec(ring(), 1..3), 1..3),
             multi in any::<bool>(),
-            id in prop::sample::select(vec!["scree", "cairn", "mistle", "other", ""]),
+            id in prop::sample::select(vec!["skelvane", "corvisk", "tamsquil", "other", ""]),
         ) {
             let polys: Vec<String> = parts.iter().map(|rings| format!("[{}]", rings.iter().map(|r| ring_json(r)).collect::<Vec<_>>().join(", "))).collect();
             let geometry = if multi {
@@ -629,7 +630,7 @@ mod random_input {
             let dir = tempfile::tempdir().unwrap();
             let path = dir.path().join("m.geojson");
             std::fs::write(&path, &bytes).unwrap();
-            let ids = ["scree", "tussock-flat", "mistle", "cairn", "greywacke", "ardmere-lower"];
+            let ids = ["skelvane", "fennigrue", "tamsquil", "corvisk", "wendlescar", "quessendale-lower"];
             let _ = read_boundaries(&path, "id", &ids);
         }
     }
@@ -707,8 +708,8 @@ fn results_need_the_run_folder_files() {
     // A summary from another basin is refused, not written with gaps.
     std::fs::copy(short_run().join("summary.csv"), dir.path().join("summary.csv")).unwrap();
     std::fs::copy(short_run().join("run_info.json"), dir.path().join("run_info.json")).unwrap();
-    let text = std::fs::read_to_string(dir.path().join("summary.csv")).unwrap().replace("scree,", "other,");
+    let text = std::fs::read_to_string(dir.path().join("summary.csv")).unwrap().replace("skelvane,", "other,");
     std::fs::write(dir.path().join("summary.csv"), text).unwrap();
     let e = write_results_geojson(dir.path(), &b).unwrap_err();
-    assert!(e.to_string().contains("no no-control row for catchment 'scree'"), "{e}");
+    assert!(e.to_string().contains("no no-control row for catchment 'skelvane'"), "{e}");
 }

@@ -507,7 +507,7 @@ fn bom_and_crlf_keep_spreadsheet_rows() {
 /// One day of [`north_year_csv`]: day of year J, Tmax °C, Tmin °C, RH %, u2 m/s, sunshine h.
 type NorthDay = (u32, f64, f64, f64, f64, f64);
 
-/// Invented weather at 64°N for 2021, as CSV for catchment `scree`: January to November a mild, half-sunny season; all of December
+/// Invented weather at 64°N for 2021, as CSV for catchment `skelvane`: January to November a mild, half-sunny season; all of December
 /// clear (sunshine = daylight length N, written to 3 decimals and rounded down),
 /// Tmax −10 °C, Tmin −15 °C, RH 100 %, u2 2 m/s. Returns the text and, per row,
 /// `(day of year, tmax, tmin, rh_mean, u2, sunshine)` as written.
@@ -525,7 +525,7 @@ fn north_year_csv() -> (String, Vec<NorthDay>) {
                 let tmax = (4.0 + 14.0 * summer).round();
                 (tmax, tmax - 8.0, 75.0, 3.0, (0.5 * n_h * 1000.0).floor() / 1000.0)
             };
-            s.push_str(&format!("scree,2021-{month:02}-{day:02},{tmax},{tmin},{rh},{u2},{sun:.3}\n"));
+            s.push_str(&format!("skelvane,2021-{month:02}-{day:02},{tmax},{tmin},{rh},{u2},{sun:.3}\n"));
             rows.push((j, tmax, tmin, rh, u2, sun));
         }
     }
@@ -617,11 +617,11 @@ fn high_latitude_winter_gives_no_negative_day_and_counts_the_clamped_days() {
         let catchments_csv = write(
             dir.path(),
             "catchments.csv",
-            "id,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha\nscree,2400,1650,800,1900,120,40,10\n",
+            "id,area_ha,rain_mm,pet_mm,vulnerable_ha,scattered_ha,medium_ha,dense_ha\nskelvane,2400,1650,800,1900,120,40,10\n",
         );
         let (catchments, _) = yieldshift::input::catchments::read_catchments(&catchments_csv, &[]).unwrap();
         let climate = yieldshift::input::climate::read_climate(&annual_csv, &catchments).unwrap();
-        assert_eq!(climate.coverage(), vec![("scree".to_string(), 2021, 2021)]);
+        assert_eq!(climate.coverage(), vec![("skelvane".to_string(), 2021, 2021)]);
     }
 }
 

@@ -609,9 +609,13 @@ fn ensemble_ranges_distributions_and_sensitivity_come_from_the_run() {
         assert!(html.contains(d) && md.contains(d), "distribution {d:?}");
     }
     assert!(!html.contains("no ensemble.csv"));
-    for stem in
-        ["basin_sensitivity_year-20", "basin_sensitivity_horizon", "cairn_yield_range", "cairn_nitrate_n_range", "cairn_total_p_range"]
-    {
+    for stem in [
+        "basin_sensitivity_year-20",
+        "basin_sensitivity_horizon",
+        "corvisk_yield_range",
+        "corvisk_nitrate_n_range",
+        "corvisk_total_p_range",
+    ] {
         let (size, var) = png_stats(&std::fs::read(dir.join("figures").join(format!("{stem}.png"))).unwrap());
         assert_eq!(size, yieldshift::plot::SIZE);
         assert!(var > 50.0, "{stem}");
@@ -676,7 +680,7 @@ fn hand_edited_files_give_located_errors_not_panics() {
     let (_t2, dir2) = fresh_copy("truncated");
     let p = dir2.join("yearly.csv");
     let text = std::fs::read_to_string(&p).unwrap();
-    let cut: String = text.lines().take(5).map(|l| format!("{l}\n")).collect::<String>() + "scree,no-control,2031,1700\n";
+    let cut: String = text.lines().take(5).map(|l| format!("{l}\n")).collect::<String>() + "skelvane,no-control,2031,1700\n";
     std::fs::write(&p, cut).unwrap();
     expect_invalid(&dir2, &["yearly.csv", "row 6", "fields"]);
 
@@ -687,7 +691,7 @@ fn hand_edited_files_give_located_errors_not_panics() {
 
     // Percentiles out of order in ensemble.csv.
     let (_t4, dir4) = fresh_copy("badens");
-    std::fs::write(dir4.join("ensemble.csv"), "catchment,strategy,year,variable,p5,p25,p50,p75,p95,mean,members,prob_above_guideline\nscree,no-control,2037,yield_mm,5,4,3,2,1,3,10,\n").unwrap();
+    std::fs::write(dir4.join("ensemble.csv"), "catchment,strategy,year,variable,p5,p25,p50,p75,p95,mean,members,prob_above_guideline\nskelvane,no-control,2037,yield_mm,5,4,3,2,1,3,10,\n").unwrap();
     expect_invalid(&dir4, &["ensemble.csv", "row 2", "p5 ≤ p25"]);
 }
 
@@ -748,7 +752,7 @@ fn the_report_opens_with_an_executive_summary_of_what_reaches_the_nodes() {
     let nodes = read_csv(&demo_run().join("nodes.csv"));
     let (nc, sc, yc) = (nodes.col("node"), nodes.col("strategy"), nodes.col("year"));
     let ids: BTreeSet<String> = nodes.rows.iter().filter(|r| r[sc] == "no-control").map(|r| r[nc].clone()).collect();
-    assert!(ids.contains("ardmere-lower"), "the demo's intake is a node");
+    assert!(ids.contains("quessendale-lower"), "the demo's intake is a node");
     let sourced = sourced_numbers(exec);
     for id in &ids {
         for year in ["2047", "2077"] {

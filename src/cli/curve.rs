@@ -57,7 +57,7 @@ pub enum Method {
 
 fn check_range(problems: &mut Vec<Problem>, name: &str, v: f64, lo: f64, hi: f64) {
     if !v.is_finite() || v < lo || v > hi {
-        problems.push(Problem::new(format!("{v} is out of range; allowed {lo} to {hi}")).column(name));
+        problems.push(Problem::new(format!("{v} is out of range; allowed {lo} to {hi}")).option(name));
     }
 }
 
@@ -67,7 +67,7 @@ pub fn run(a: &CurveArgs) -> anyhow::Result<()> {
     if !(a.rain_mm > 0.0) {
         p.push(
             Problem::new(format!("{} mm/yr: the evaporative ratio is undefined without rain; give more than 0", a.rain_mm))
-                .column("--rain-mm"),
+                .option("--rain-mm"),
         );
     } else {
         check_range(&mut p, "--rain-mm", a.rain_mm, 0.0, 30_000.0);
@@ -93,7 +93,7 @@ pub fn run(a: &CurveArgs) -> anyhow::Result<()> {
         return Err(Error::Invalid(p).into());
     }
     let interception = CanopyInterception::new(a.interception_fraction, a.interception_demand_share)
-        .map_err(|e| Error::Invalid(vec![Problem::new(e.to_string()).column("--interception-fraction")]))?;
+        .map_err(|e| Error::Invalid(vec![Problem::new(e.to_string()).option("--interception-fraction")]))?;
     let curves = match a.method {
         Method::Zhang => CoverCurves::Zhang { w_forest: a.w_forest, w_grass: a.w_grass },
         Method::Fu => CoverCurves::Fu { omega_forest: a.omega_forest, omega_grass: a.omega_grass },

@@ -89,7 +89,7 @@ fn options(a: &FitArgs) -> yieldshift::Result<FitOptions> {
     if a.moving_average_yr == 0 || a.moving_average_yr > MAX_MOVING_AVERAGE_YR {
         p.push(
             Problem::new(format!("{} is out of range; allowed 1 to {MAX_MOVING_AVERAGE_YR} years", a.moving_average_yr))
-                .column("--moving-average-yr"),
+                .option("--moving-average-yr"),
         );
     }
     if a.bootstrap != 0 && !(MIN_BOOTSTRAP..=MAX_BOOTSTRAP).contains(&a.bootstrap) {
@@ -98,14 +98,15 @@ fn options(a: &FitArgs) -> yieldshift::Result<FitOptions> {
                 "{} is out of range; allowed 0 (no interval) or {MIN_BOOTSTRAP} to {MAX_BOOTSTRAP} resamples",
                 a.bootstrap
             ))
-            .column("--bootstrap"),
+            .option("--bootstrap"),
         );
     }
     let mut donors = Vec::new();
     for d in &a.donor {
         match parse_donor(d) {
             Ok(d) => donors.push(d),
-            Err(e) => p.push(e),
+            // The problem names the option; say so however the parser placed it.
+            Err(e) => p.push(e.option("--donor")),
         }
     }
     if !p.is_empty() {

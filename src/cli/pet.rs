@@ -104,14 +104,13 @@ fn site_meta(args: &PetArgs) -> Result<SiteMeta, Error> {
     let where_from =
         if args.site.is_some() { "--latitude-deg or latitude_deg in the site file" } else { "--latitude-deg (or a --site file)" };
     if latitude.is_none() {
-        problems
-            .push(Problem::new(format!("the site latitude is required for the radiation terms: give {where_from}")).column("latitude_deg"));
+        let p = Problem::new(format!("the site latitude is required for the radiation terms: give {where_from}"));
+        problems.push(if args.site.is_some() { p.column("latitude_deg") } else { p.option("--latitude-deg") });
     }
     if elevation.is_none() {
         let from = if args.site.is_some() { "--elevation-m or elevation_m in the site file" } else { "--elevation-m (or a --site file)" };
-        problems.push(
-            Problem::new(format!("the site elevation is required for the psychrometric constant: give {from}")).column("elevation_m"),
-        );
+        let p = Problem::new(format!("the site elevation is required for the psychrometric constant: give {from}"));
+        problems.push(if args.site.is_some() { p.column("elevation_m") } else { p.option("--elevation-m") });
     }
     let (Some(latitude_deg), Some(elevation_m)) = (latitude, elevation) else {
         return Err(Error::Invalid(problems));
@@ -146,19 +145,19 @@ fn annual_path(args: &PetArgs) -> Result<PathBuf, Error> {
 fn check_paths(weather: &Path, out: &Path, annual: &Path) -> Result<(), Error> {
     let mut problems = Vec::new();
     if same_file(out, weather) {
-        problems.push(Problem::in_file(out, "is the weather table itself; choose another --out").column("--out"));
+        problems.push(Problem::in_file(out, "is the weather table itself; choose another --out").option("--out"));
     }
     if same_file(annual, weather) {
-        problems.push(Problem::in_file(annual, "is the weather table itself; choose another --annual-out").column("--annual-out"));
+        problems.push(Problem::in_file(annual, "is the weather table itself; choose another --annual-out").option("--annual-out"));
     }
     if same_file(out, annual) {
-        problems.push(Problem::in_file(annual, "is the same file as --out; choose another --annual-out").column("--annual-out"));
+        problems.push(Problem::in_file(annual, "is the same file as --out; choose another --annual-out").option("--annual-out"));
     }
     if out.is_dir() {
-        problems.push(Problem::in_file(out, "is a folder; give --out as a file path like results/pet.csv").column("--out"));
+        problems.push(Problem::in_file(out, "is a folder; give --out as a file path like results/pet.csv").option("--out"));
     }
     if annual.is_dir() {
-        problems.push(Problem::in_file(annual, "is a folder; give --annual-out as a file path").column("--annual-out"));
+        problems.push(Problem::in_file(annual, "is a folder; give --annual-out as a file path").option("--annual-out"));
     }
     if problems.is_empty() {
         Ok(())
@@ -295,8 +294,10 @@ mod tests {
     fn missing_site_values_are_reported_together() {
         let w = Wrap::try_parse_from(["x", "w.csv", "--out", "pet.csv"]).unwrap();
         let e = site_meta(&w.args).unwrap_err();
+        // Without a site file the missing values are options of the command line.
         let cols: Vec<_> = e.problems().iter().filter_map(|p| p.column.clone()).collect();
-        assert_eq!(cols, vec!["latitude_deg", "elevation_m"]);
+        assert_eq!(cols, vec!["--latitude-deg", "--elevation-m"]);
+        assert!(e.problems().iter().all(|p| p.place == yieldshift::error::Place::Option), "{e}");
     }
 
     #[test]

@@ -11,6 +11,8 @@
 //! pale mint through the palette's sea green to its deep blue. Both ramps fall
 //! steadily in lightness, so classes stay in order in greyscale.
 
+pub use super::flow_arrows::MapPolygon;
+use super::flow_arrows::{flow_arrow, inside_ring, KmBox};
 use super::{err, palette, Figure, FONT};
 use crate::schema::numbers::{readable, Thousands};
 use plotters::coord::Shift;
@@ -29,6 +31,10 @@ pub const NO_VALUE: RGBColor = RGBColor(0xd4, 0xd4, 0xd4);
 
 /// Flow arrows.
 pub const FLOW: RGBColor = RGBColor(0x12, 0x2f, 0x55);
+
+/// Half the length of a flow arrow, px at a 1000 px tall figure (shorter where
+/// an area is narrow).
+const ARROW_HALF_PX: f64 = 62.0;
 
 /// Area outlines.
 const OUTLINE: RGBColor = RGBColor(0x3a, 0x3a, 0x3a);
@@ -139,15 +145,6 @@ pub fn map_number(v: f64, decimals: usize) -> String {
     readable(v, decimals, Thousands::Plain).unwrap_or_default()
 }
 
-/// One polygon in map kilometres: exterior ring and holes (closed or not).
-#[derive(Debug, Clone, Default)]
-pub struct MapPolygon {
-    /// Exterior ring.
-    pub exterior: Vec<(f64, f64)>,
-    /// Holes.
-    pub holes: Vec<Vec<(f64, f64)>>,
-}
-
 /// One mapped area (a catchment).
 #[derive(Debug, Clone, Default)]
 pub struct MapArea {
@@ -176,25 +173,13 @@ pub struct ChoroplethMap {
     pub classes: Classes,
     /// The areas.
     pub areas: Vec<MapArea>,
-    /// Flow arrows `(from, to)` as indices into `areas`.
+    /// Flow arrows `(from, to)` as indices into `areas`; each is drawn across the
+    /// two areas' shared boundary ([`flow_arrow`]).
     pub arrows: Vec<(usize, usize)>,
     /// Draw labels (and flow arrows); off for crowded maps.
     pub show_labels: bool,
     /// Notes printed at the foot of the panel (projection, sources), each wrapped.
     pub notes: Vec<String>,
-}
-
-/// Even–odd test of a point against a ring.
-fn inside_ring(p: (f64, f64), ring: &[(f64, f64)]) -> bool {
-    let mut inside = false;
-    let n = ring.len();
-    for i in 0..n {
-        let (a, b) = (ring[i], ring[(i + 1) % n]);
-        if (a.1 > p.1) != (b.1 > p.1) && p.0 < a.0 + (p.1 - a.1) * (b.0 - a.0) / (b.1 - a.1) {
-            inside = !inside;
-        }
-    }
-    inside
 }
 
 /// Pixel transform of the map: km → pixels with one scale for both axes.
@@ -229,6 +214,11 @@ impl View {
 
     fn px(&self, p: (f64, f64)) -> (f64, f64) {
         (self.cx_px + (p.0 - self.cx_km) * self.px_per_km, self.cy_px - (p.1 - self.cy_km) * self.px_per_km)
+    }
+
+    /// Pixels back to km.
+    fn km(&self, p: (f64, f64)) -> (f64, f64) {
+        (self.cx_km + (p.0 - self.cx_px) / self.px_per_km, self.cy_km - (p.1 - self.cy_px) / self.px_per_km)
     }
 
     fn ipx(&self, p: (f64, f64)) -> (i32, i32) {
@@ -394,7 +384,7 @@ impl Figure for ChoroplethMap {
             }
         }
 
-        // Flow arrows between label boxes.
+        // Flow arrows across shared boundaries, off the labels where they can be.
         let arrow_w = px(3.0).max(1) as u32;
         let casing = WHITE.stroke_width(px(8.0).max(2) as u32);
         let draw_arrow = |p: (f64, f64), q: (f64, f64)| -> Result<(), String> {
@@ -418,7 +408,21 @@ impl Figure for ChoroplethMap {
             root.draw(&Polygon::new(tri, FLOW.filled())).map_err(err)
         };
         if self.show_labels {
+            let avoid: Vec<KmBox> = boxes
+                .iter()
+                .map(|b| {
+                    let (lo, hi) = (view.km((b.cx - b.hw, b.cy + b.hh)), view.km((b.cx + b.hw, b.cy - b.hh)));
+                    (lo.0, lo.1, hi.0, hi.1)
+                })
+                .collect();
+            let half_km = sz(ARROW_HALF_PX) / view.px_per_km;
             for &(from, to) in &self.arrows {
+                let (Some(fa), Some(ta)) = (self.areas.get(from), self.areas.get(to)) else { continue };
+                if let Some((tail, head)) = flow_arrow(&fa.polygons, &ta.polygons, half_km, &avoid) {
+                    draw_arrow(view.px(tail), view.px(head))?;
+                    continue;
+                }
+                // Areas that neither touch nor come close: label to label.
                 let (Some(a), Some(b)) = (boxes.get(from), boxes.get(to)) else { continue };
                 let (p, q) = ((a.cx, a.cy), (b.cx, b.cy));
                 let t0 = a.exit(p, q, sz(4.0));

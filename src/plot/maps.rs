@@ -203,3 +203,84 @@ pub fn draw_maps(run_dir: &Path, b: &Boundaries, formats: Formats) -> Result<usi
     }
     Ok(n)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::plot::flow_arrows::{flow_arrow, inside_area, KmBox};
+
+    /// The demo's boundaries projected as the maps project them, with ids, and
+    /// its drainage links as indices.
+    fn demo() -> (Vec<String>, Vec<Projected>, Vec<(usize, usize)>) {
+        let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data");
+        let t = crate::input::table::read_table(&root.join("catchments.csv")).unwrap();
+        let ids: Vec<String> = t.rows.iter().map(|(_, r)| t.text(r, "id").to_string()).collect();
+        let id_refs: Vec<&str> = ids.iter().map(String::as_str).collect();
+        let b = crate::input::gis::read_boundaries(&root.join("catchments.geojson"), "id", &id_refs).unwrap();
+        let order: Vec<String> = b.iter().map(|f| f.id().to_string()).collect();
+        let at = |id: &str| order.iter().position(|o| o == id).unwrap();
+        let links = t
+            .rows
+            .iter()
+            .filter(|(_, r)| !t.text(r, "flows_to").trim().is_empty())
+            .map(|(_, r)| (at(t.text(r, "id")), at(t.text(r, "flows_to").trim())))
+            .collect();
+        (order, project(&b).1, links)
+    }
+
+    /// Which areas a point lies in.
+    fn areas_at(p: (f64, f64), shapes: &[Projected]) -> Vec<usize> {
+        shapes.iter().enumerate().filter(|(_, (polys, _))| inside_area(p, polys)).map(|(i, _)| i).collect()
+    }
+
+    /// `from → to` is readable when the path starts in `from`, ends in `to`,
+    /// passes from one to the other once, and touches no other area; returns
+    /// the other areas it enters.
+    fn trespasses(a: (f64, f64), b: (f64, f64), from: usize, to: usize, shapes: &[Projected]) -> Vec<usize> {
+        let mut others = Vec::new();
+        let mut reached_to = false;
+        for k in 0..=400 {
+            let t = k as f64 / 400.0;
+            let p = (a.0 + t * (b.0 - a.0), a.1 + t * (b.1 - a.1));
+            let here = areas_at(p, shapes);
+            others.extend(here.iter().copied().filter(|&i| i != from && i != to));
+            if here.contains(&to) {
+                reached_to = true;
+            }
+            // Once in the downstream area, never back in the upstream one.
+            assert!(!(reached_to && here.contains(&from)), "{from} → {to} turns back at {p:?}");
+        }
+        others.sort();
+        others.dedup();
+        others
+    }
+
+    /// Regression (issue 14): flow arrows drawn label to label crossed other
+    /// catchments and their labels. Each arrow now crosses the boundary its two
+    /// catchments share and stays within the two.
+    #[test]
+    fn demo_flow_arrows_stay_within_their_two_catchments() {
+        let (ids, shapes, links) = demo();
+        assert_eq!(links.len(), 4, "the demo's four drainage links");
+        // The old route, anchor to anchor, does cross another catchment: the
+        // check below can fail.
+        let crossed: usize = links.iter().map(|&(f, t)| trespasses(shapes[f].1, shapes[t].1, f, t, &shapes).len()).sum();
+        assert!(crossed > 0, "anchor-to-anchor arrows would cross no other catchment");
+        // Label boxes (about what the map draws) at each anchor, to be avoided.
+        let labels: Vec<KmBox> = shapes.iter().map(|(_, (x, y))| (x - 1.6, y - 0.45, x + 1.6, y + 0.45)).collect();
+        for half_km in [0.6, 1.2] {
+            for avoid in [&[][..], &labels[..]] {
+                for &(f, t) in &links {
+                    let (tail, head) = flow_arrow(&shapes[f].0, &shapes[t].0, half_km, avoid)
+                        .unwrap_or_else(|| panic!("no arrow {} → {}", ids[f], ids[t]));
+                    assert_eq!(areas_at(tail, &shapes), vec![f], "{} → {}: tail {tail:?}", ids[f], ids[t]);
+                    assert_eq!(areas_at(head, &shapes), vec![t], "{} → {}: head {head:?}", ids[f], ids[t]);
+                    let others = trespasses(tail, head, f, t, &shapes);
+                    assert!(others.is_empty(), "{} → {} crosses {:?}", ids[f], ids[t], others.iter().map(|&i| &ids[i]).collect::<Vec<_>>());
+                    let len = ((head.0 - tail.0).powi(2) + (head.1 - tail.1).powi(2)).sqrt();
+                    assert!(len > 0.5 * half_km && len <= 2.0 * half_km + 1e-9, "{} → {}: {len} km", ids[f], ids[t]);
+                }
+            }
+        }
+    }
+}

@@ -21,6 +21,7 @@ pub mod bars;
 pub mod basin;
 pub mod budyko_space;
 pub mod fit;
+pub mod flow_arrows;
 pub mod legend;
 pub mod map;
 pub mod maps;

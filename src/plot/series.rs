@@ -2,7 +2,7 @@
 //! optional uncertainty bands), cover classes.
 
 use super::axes::{self, Axes};
-use super::legend::{self, Corner, Entry, Occupied, Placement, PxRect, Swatch};
+use super::legend::{self, Corner, Entry, Occupied, Placement, PxRect, Shape, Swatch};
 use super::{err, palette, Figure, LINE_PX, REF_LINE_PX};
 use plotters::coord::Shift;
 use plotters::prelude::*;
@@ -33,7 +33,23 @@ pub struct Band {
     pub opacity: f64,
 }
 
-/// A line chart over years with optional horizontal thresholds and bands.
+/// Largest number of points of a line that [`LineChart`] marks point by point:
+/// a line through a few points (a cost of delay at 0, 5, 10 and 20 years) shows
+/// where its values are, a yearly series stays a plain line.
+pub const MARKED_MAX_POINTS: usize = 12;
+
+/// Marker radius of a marked line, px.
+const MARKER_PX: i32 = 15;
+
+/// Whether [`LineChart`] draws a marker at each point of `line`.
+pub fn is_marked(line: &Line) -> bool {
+    let n = line.points.iter().filter(|p| p.1.is_some_and(f64::is_finite)).count();
+    (1..=MARKED_MAX_POINTS).contains(&n)
+}
+
+/// A line chart over years with optional horizontal thresholds and bands. A line
+/// of at most [`MARKED_MAX_POINTS`] points carries a marker at each point (a
+/// different shape per line, shown in the legend).
 #[derive(Debug, Clone)]
 pub struct LineChart {
     /// Title at the top.
@@ -74,9 +90,14 @@ impl LineChart {
 
     fn entries(&self) -> Vec<Entry> {
         let mut v = Vec::new();
-        for l in &self.lines {
+        for (i, l) in self.lines.iter().enumerate() {
             if l.points.iter().any(|p| p.1.is_some()) {
-                v.push(Entry { label: l.label.clone(), swatch: Swatch::Line { colour: l.colour, dashed: l.dashed, width: LINE_PX } });
+                let swatch = if is_marked(l) && !l.dashed {
+                    Swatch::LineMarker { colour: l.colour, shape: Shape::nth(i) }
+                } else {
+                    Swatch::Line { colour: l.colour, dashed: l.dashed, width: LINE_PX }
+                };
+                v.push(Entry { label: l.label.clone(), swatch });
             }
         }
         for b in &self.bands {
@@ -192,13 +213,18 @@ impl Figure for LineChart {
             let style = ShapeStyle { color: colour.to_rgba(), filled: false, stroke_width: REF_LINE_PX };
             chart.draw_series(DashedLineSeries::new([(ax.x.start, *v), (ax.x.end, *v)], 22, 12, style)).map_err(err)?;
         }
-        for line in &self.lines {
+        for (i, line) in self.lines.iter().enumerate() {
             let style = ShapeStyle { color: line.colour.to_rgba(), filled: false, stroke_width: LINE_PX };
             for seg in segments(&line.points) {
                 if line.dashed {
-                    chart.draw_series(DashedLineSeries::new(seg, 22, 12, style)).map_err(err)?;
+                    chart.draw_series(DashedLineSeries::new(seg.clone(), 22, 12, style)).map_err(err)?;
                 } else {
-                    chart.draw_series(LineSeries::new(seg, style)).map_err(err)?;
+                    chart.draw_series(LineSeries::new(seg.clone(), style)).map_err(err)?;
+                }
+                if is_marked(line) {
+                    for p in &seg {
+                        legend::draw_marker(&area, chart.backend_coord(p), MARKER_PX, Shape::nth(i), line.colour, true)?;
+                    }
                 }
             }
         }
@@ -279,5 +305,47 @@ impl Figure for CoverChart {
             .draw_series(DashedLineSeries::new([(x.start, self.vulnerable_ha), (x.end, self.vulnerable_ha)], 22, 12, style))
             .map_err(err)?;
         legend::draw(&area, strip.as_ref(), &entries, placement)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn svg_of(chart: &LineChart) -> String {
+        crate::plot::register_font();
+        let mut svg = String::new();
+        {
+            let root = SVGBackend::with_string(&mut svg, crate::plot::SIZE).into_drawing_area();
+            chart.draw(&root).unwrap();
+            root.present().unwrap();
+        }
+        svg
+    }
+
+    fn line(points: Vec<(f64, Option<f64>)>) -> Line {
+        Line { label: "Nominal".into(), points, colour: palette::series(0), dashed: false }
+    }
+
+    /// Regression (issue 14): a cost-of-delay chart has 3–4 points per line and
+    /// showed none of them; each point now has a marker, a yearly series none.
+    #[test]
+    fn lines_of_a_few_points_are_marked_point_by_point() {
+        let delays = vec![(0.0, Some(1.4)), (5.0, Some(2.3)), (10.0, Some(3.1)), (20.0, Some(5.1))];
+        let mut chart = LineChart::over_years("cost of delay".into(), "Total control cost (million $)".into(), vec![line(delays)]);
+        chart.x_label = "Delay of the start (years)".into();
+        let svg = svg_of(&chart);
+        // Four point markers in the plot and one in the legend sample (filled circles).
+        assert_eq!(svg.matches("<circle").count(), 5, "{}", svg.len());
+        assert!(is_marked(&chart.lines[0]));
+
+        let yearly: Vec<(f64, Option<f64>)> = (0..61).map(|i| (2027.0 + i as f64, Some(100.0 - i as f64))).collect();
+        let chart = LineChart::over_years("yield".into(), "Yield (mm)".into(), vec![line(yearly)]);
+        assert!(!is_marked(&chart.lines[0]));
+        assert_eq!(svg_of(&chart).matches("<circle").count(), 0);
+        // Undefined values do not count as points.
+        let gappy = line(vec![(0.0, Some(1.0)), (1.0, None), (2.0, Some(f64::NAN)), (3.0, Some(2.0))]);
+        assert!(is_marked(&gappy));
+        assert!(!is_marked(&line(vec![(0.0, None)])));
     }
 }

@@ -12,7 +12,7 @@
 pub struct Source {
     /// File relative to the run folder, e.g. `summary.csv`.
     pub file: String,
-    /// Row key: the identifying cells of the row, e.g. `["scree", "no-control"]`.
+    /// Row key: the identifying cells of the row, e.g. `["skelvane", "no-control"]`.
     pub key: Vec<String>,
     /// Column (for ensemble rows: the statistic, e.g. `p95`).
     pub column: String,

@@ -64,7 +64,7 @@ pub fn ranked_params(s: &Scenario) -> Vec<RankedParam> {
 /// A parameter's name for readers: plain keys as `key (section)`; keys of an array
 /// of tables by what the entry is: `efficacy of strategy 'best-value'`,
 /// `cost_per_ha of treatment 'aerial' (dense)`, `open_export_kg_per_ha_yr of
-/// contaminant 'nitrate_n'`, `w_forest in calibration of catchment 'scree'`.
+/// contaminant 'nitrate_n'`, `w_forest in calibration of catchment 'skelvane'`.
 pub fn readable_label(s: &Scenario, u: &UncertainKey) -> String {
     let spec = u.target.id().spec();
     let key = spec.key;
@@ -201,9 +201,9 @@ mod tests {
         assert_eq!(by_path("contaminant[2].open_export_kg_per_ha_yr").label, "open_export_kg_per_ha_yr of contaminant 'total_p'");
         assert_eq!(by_path("invasion.spread_rate_per_yr").label, "spread_rate_per_yr (invasion)");
         for p in ["strategy[1].efficacy", "strategy[2].efficacy", "treatment[1].cost_per_ha", "contaminant[2].open_export_kg_per_ha_yr"] {
-            assert!(!by_path(p).ranks_for(None) && !by_path(p).ranks_for(Some("scree")), "{p} cannot move the yield without control");
+            assert!(!by_path(p).ranks_for(None) && !by_path(p).ranks_for(Some("skelvane")), "{p} cannot move the yield without control");
         }
-        assert!(by_path("hydrology.w_forest").ranks_for(Some("scree")));
+        assert!(by_path("hydrology.w_forest").ranks_for(Some("skelvane")));
     }
 
     #[test]

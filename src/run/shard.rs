@@ -82,7 +82,7 @@ pub fn assign_shards(s: &Scenario, n: usize) -> Vec<usize> {
 /// The scenario restricted to shard `k` of `n`.
 pub fn shard_scenario(full: &Scenario, k: usize, n: usize) -> Result<Scenario> {
     if k == 0 || k > n {
-        return Err(Error::invalid(Problem::new(format!("shard {k}/{n}: need 1 ≤ K ≤ N")).column("--shard")));
+        return Err(Error::invalid(Problem::new(format!("shard {k}/{n}: need 1 ≤ K ≤ N")).option("--shard")));
     }
     for st in &full.strategies {
         if !matches!(st.effort, Effort::CatchmentBudget(_)) {
@@ -95,7 +95,7 @@ pub fn shard_scenario(full: &Scenario, k: usize, n: usize) -> Result<Scenario> {
                         st.name
                     ),
                 )
-                .column("--shard"),
+                .option("--shard"),
             ));
         }
     }

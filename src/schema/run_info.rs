@@ -526,9 +526,13 @@ pub struct MeanAnnualFitRunInfo {
 /// `fit_mode` of [`MeanAnnualFitRunInfo`].
 pub const MEAN_ANNUAL_FIT_MODE: &str = "mean-annual";
 
-/// Pretty JSON and a final line end, as every JSON file of a run folder is written.
+/// Pretty JSON and a final line end, as every JSON file of a run folder is
+/// written; floating-point numbers are recorded to
+/// [`RECORDED_DIGITS`](crate::schema::numbers::RECORDED_DIGITS) significant digits
+/// ([`recorded_json`](crate::schema::numbers::recorded_json)), so a derived value
+/// reads 0.525, not 0.5249999999999999.
 pub fn to_json<T: Serialize>(value: &T) -> Result<String> {
-    serde_json::to_string_pretty(value).map(|t| t + "\n").map_err(|e| Error::Other(format!("writing JSON: {e}")))
+    crate::schema::numbers::recorded_json(value).map(|t| t + "\n").map_err(|e| Error::Other(format!("writing JSON: {e}")))
 }
 
 /// Reads a JSON file of a run folder into its type. Errors name the file, the
@@ -629,6 +633,28 @@ mod tests {
         assert_eq!(direct, sorted);
     }
 
+    /// Regression (issue 14): run_info.json printed the middle of the uniform
+    /// 0.35–0.7 w_grass range as 0.5249999999999999, and a derived areal growth
+    /// with 17 digits. Every number is recorded to 12 significant digits.
+    #[test]
+    fn derived_numbers_are_written_as_a_reader_expects() {
+        let logistic = CanopyClosure::Logistic {
+            curve: LogisticCurve::Logistic,
+            half_closure_age_yr: 12.0,
+            max_fraction: 1.0,
+            steepness_per_yr: 0.35,
+        };
+        let mut info = example(logistic, Curves::Zhang { w_forest: 2.0, w_grass: (0.35 + 0.7) / 2.0 });
+        info.invasion.implied_areal_growth_per_yr = Some(0.04288161696269708);
+        let text = info.to_json().unwrap();
+        assert!(text.contains("\"w_grass\": 0.525\n"), "{text}");
+        assert!(text.contains("\"implied_areal_growth_per_yr\": 0.0428816169627,"), "{text}");
+        assert!(!text.contains("99999") && !text.contains("00000"), "{text}");
+        // Values read back are the recorded ones; writing them again changes nothing.
+        let back = parse_json::<RunInfo>(Path::new("run_info.json"), &text).unwrap();
+        assert_eq!(back.to_json().unwrap(), text);
+    }
+
     #[test]
     fn keys_are_in_alphabetical_order_at_every_level_and_read_back() {
         let logistic = CanopyClosure::Logistic {
@@ -638,10 +664,9 @@ mod tests {
             steepness_per_yr: 0.35,
         };
         let table = CanopyClosure::Table { ages_yr: vec![0.0, 30.0], curve: TableCurve::Table, fractions: vec![0.0, 0.9] };
-        for (closure, curves) in [
-            (logistic, Curves::Zhang { w_forest: 2.0, w_grass: 0.5249999999999999 }),
-            (table, Curves::Fu { omega_forest: 3.1, omega_grass: 2.4 }),
-        ] {
+        for (closure, curves) in
+            [(logistic, Curves::Zhang { w_forest: 2.0, w_grass: 0.525 }), (table, Curves::Fu { omega_forest: 3.1, omega_grass: 2.4 })]
+        {
             let info = example(closure, curves);
             keys_sorted(&info);
             let text = info.to_json().unwrap();

@@ -292,7 +292,7 @@ fn feature_catchment_id(f: &Value, id_property: &str) -> Result<String, String> 
 mod tests {
     use super::*;
 
-    const IDS: [&str; 2] = ["scree", "cairn"];
+    const IDS: [&str; 2] = ["skelvane", "corvisk"];
 
     fn feature(id: &str, x0: f64) -> String {
         format!(
@@ -311,26 +311,26 @@ mod tests {
 
     #[test]
     fn reads_a_valid_collection() {
-        let b = parse(&collection(&[feature("scree", 170.0), feature("cairn", 170.1)])).unwrap();
+        let b = parse(&collection(&[feature("skelvane", 100.0), feature("corvisk", 100.1)])).unwrap();
         assert_eq!(b.len(), 2);
-        assert_eq!(b.get("cairn").unwrap().feature_index(), 1);
-        assert!(b.get("scree").unwrap().area_ha() > 0.0);
-        assert_eq!(b.get("scree").unwrap().properties()["name"], "N");
+        assert_eq!(b.get("corvisk").unwrap().feature_index(), 1);
+        assert!(b.get("skelvane").unwrap().area_ha() > 0.0);
+        assert_eq!(b.get("skelvane").unwrap().properties()["name"], "N");
     }
 
     #[test]
     fn every_problem_is_named_by_feature_and_line() {
-        let text = collection(&[feature("scree", 170.0), feature("Cairn", 170.1), feature("scree", 170.2)]);
+        let text = collection(&[feature("skelvane", 100.0), feature("Corvisk", 100.1), feature("skelvane", 100.2)]);
         let e = parse(&text).unwrap_err();
         let all: Vec<String> = e.iter().map(|p| p.to_string()).collect();
         assert_eq!(e.len(), 3, "{all:?}");
         assert!(all[0].contains("row 3") && all[0].contains("features[1].properties.id"), "{all:?}");
         assert!(
-            all[0].contains("feature 2 (id 'Cairn'): 'Cairn' is not a catchment") && all[0].contains("did you mean 'cairn'"),
+            all[0].contains("feature 2 (id 'Corvisk'): 'Corvisk' is not a catchment") && all[0].contains("did you mean 'corvisk'"),
             "{all:?}"
         );
         assert!(all[1].contains("row 4") && all[1].contains("also used by feature 1"), "{all:?}");
-        assert!(all[2].contains("catchment 'cairn' of the catchment table has no feature"), "{all:?}");
+        assert!(all[2].contains("catchment 'corvisk' of the catchment table has no feature"), "{all:?}");
     }
 
     #[test]
@@ -343,7 +343,7 @@ mod tests {
 
     #[test]
     fn not_a_collection() {
-        let e = parse(&feature("scree", 170.0)).unwrap_err();
+        let e = parse(&feature("skelvane", 100.0)).unwrap_err();
         assert!(e[0].message.contains("single Feature"));
         let e = parse("[1, 2]").unwrap_err();
         assert!(e[0].message.contains("an array at the top"));
@@ -355,23 +355,23 @@ mod tests {
 
     #[test]
     fn missing_and_odd_ids() {
-        let no_id = feature("scree", 170.0).replace("\"id\": \"scree\", ", "");
-        let e = parse(&collection(&[no_id, feature("cairn", 170.1)])).unwrap_err();
+        let no_id = feature("skelvane", 100.0).replace("\"id\": \"skelvane\", ", "");
+        let e = parse(&collection(&[no_id, feature("corvisk", 100.1)])).unwrap_err();
         assert!(e[0].message.contains("feature 1: has no property 'id'"), "{e:?}");
-        let numeric = feature("scree", 170.0).replace("\"scree\"", "12");
+        let numeric = feature("skelvane", 100.0).replace("\"skelvane\"", "12");
         let e = parse_boundaries(Path::new("b.geojson"), collection(&[numeric]).as_bytes(), "id", &["12"]);
         assert_eq!(e.unwrap().get("12").unwrap().id(), "12");
     }
 
     #[test]
     fn properties_written_by_a_run_are_not_kept() {
-        let text = collection(&[feature("scree", 170.0), feature("cairn", 170.1)]).replacen(
+        let text = collection(&[feature("skelvane", 100.0), feature("corvisk", 100.1)]).replacen(
             "{\"type\": \"FeatureCollection\",",
             "{\"type\": \"FeatureCollection\", \"yieldshift_run\": {\"properties_written\": [\"name\"]},",
             1,
         );
         let b = parse(&text).unwrap();
-        assert!(!b.get("scree").unwrap().properties().contains_key("name"));
-        assert!(b.get("scree").unwrap().properties().contains_key("id"));
+        assert!(!b.get("skelvane").unwrap().properties().contains_key("name"));
+        assert!(b.get("skelvane").unwrap().properties().contains_key("id"));
     }
 }

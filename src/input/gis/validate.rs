@@ -411,11 +411,11 @@ mod tests {
         i
     }
 
-    const SQUARE: [[f64; 2]; 5] = [[170.0, -44.0], [170.1, -44.0], [170.1, -43.9], [170.0, -43.9], [170.0, -44.0]];
+    const SQUARE: [[f64; 2]; 5] = [[100.0, -44.0], [100.1, -44.0], [100.1, -43.9], [100.0, -43.9], [100.0, -44.0]];
 
     #[test]
     fn a_square_with_a_hole_is_valid_either_way_round() {
-        let hole = [[170.02, -43.98], [170.02, -43.95], [170.05, -43.95], [170.05, -43.98], [170.02, -43.98]];
+        let hole = [[100.02, -43.98], [100.02, -43.95], [100.05, -43.95], [100.05, -43.98], [100.02, -43.98]];
         assert!(polygon(json!({"type": "Polygon", "coordinates": [SQUARE, hole]})).is_empty());
         let mut rev = SQUARE.to_vec();
         rev.reverse();
@@ -424,25 +424,25 @@ mod tests {
 
     #[test]
     fn bow_tie_is_a_self_intersection() {
-        let bow = [[170.0, -44.0], [170.1, -43.9], [170.1, -44.0], [170.0, -43.85], [170.0, -44.0]];
+        let bow = [[100.0, -44.0], [100.1, -43.9], [100.1, -44.0], [100.0, -43.85], [100.0, -44.0]];
         let i = polygon(json!({"type": "Polygon", "coordinates": [bow]}));
         assert_eq!(i.len(), 1, "{i:?}");
-        assert!(i[0].message.contains("exterior ring crosses or touches itself near [170.060000, -43.940000]"), "{i:?}");
+        assert!(i[0].message.contains("exterior ring crosses or touches itself near [100.060000, -43.940000]"), "{i:?}");
     }
 
     #[test]
     fn figure_eight_touching_at_a_vertex_is_refused() {
-        let eight = [[170.0, -44.0], [170.1, -44.0], [170.05, -43.95], [170.1, -43.9], [170.0, -43.9], [170.05, -43.95], [170.0, -44.0]];
+        let eight = [[100.0, -44.0], [100.1, -44.0], [100.05, -43.95], [100.1, -43.9], [100.0, -43.9], [100.05, -43.95], [100.0, -44.0]];
         let i = polygon(json!({"type": "Polygon", "coordinates": [eight]}));
         assert!(i.iter().any(|x| x.message.contains("touches itself")), "{i:?}");
     }
 
     #[test]
     fn hole_outside_and_hole_crossing_are_refused() {
-        let outside = [[171.0, -44.0], [171.0, -43.95], [171.05, -43.95], [171.0, -44.0]];
+        let outside = [[101.0, -44.0], [101.0, -43.95], [101.05, -43.95], [101.0, -44.0]];
         let i = polygon(json!({"type": "Polygon", "coordinates": [SQUARE, outside]}));
         assert!(i[0].message.contains("hole 1 lies outside the exterior ring"), "{i:?}");
-        let crossing = [[170.05, -44.05], [170.05, -43.95], [170.08, -43.95], [170.05, -44.05]];
+        let crossing = [[100.05, -44.05], [100.05, -43.95], [100.08, -43.95], [100.05, -44.05]];
         let i = polygon(json!({"type": "Polygon", "coordinates": [SQUARE, crossing]}));
         assert!(i[0].message.contains("exterior ring and hole 1 cross"), "{i:?}");
     }
@@ -452,10 +452,10 @@ mod tests {
         let shifted: Vec<[f64; 2]> = SQUARE.iter().map(|q| [q[0] + 0.05, q[1]]).collect();
         let i = polygon(json!({"type": "MultiPolygon", "coordinates": [[SQUARE], [shifted]]}));
         assert!(i[0].message.contains("parts 1 and 2 of the MultiPolygon"), "{i:?}");
-        let inner = [[170.02, -43.98], [170.05, -43.98], [170.05, -43.95], [170.02, -43.98]];
+        let inner = [[100.02, -43.98], [100.05, -43.98], [100.05, -43.95], [100.02, -43.98]];
         let i = polygon(json!({"type": "MultiPolygon", "coordinates": [[SQUARE], [inner]]}));
         assert!(i[0].message.contains("part 2 of the MultiPolygon lies inside part 1"), "{i:?}");
-        let corner = [[170.1, -43.9], [170.2, -43.9], [170.2, -43.8], [170.1, -43.8], [170.1, -43.9]];
+        let corner = [[100.1, -43.9], [100.2, -43.9], [100.2, -43.8], [100.1, -43.8], [100.1, -43.9]];
         assert!(polygon(json!({"type": "MultiPolygon", "coordinates": [[SQUARE], [corner]]})).is_empty());
     }
 
@@ -463,9 +463,9 @@ mod tests {
     fn ring_shape_problems() {
         let open = &SQUARE[..4];
         assert!(polygon(json!({"type": "Polygon", "coordinates": [open]}))[0].message.contains("is not closed"));
-        let short = [[170.0, -44.0], [170.1, -44.0], [170.0, -44.0]];
+        let short = [[100.0, -44.0], [100.1, -44.0], [100.0, -44.0]];
         assert!(polygon(json!({"type": "Polygon", "coordinates": [short]}))[0].message.contains("has 3 positions"));
-        let flat = [[170.0, -44.0], [170.1, -44.0], [170.2, -44.0], [170.0, -44.0]];
+        let flat = [[100.0, -44.0], [100.1, -44.0], [100.2, -44.0], [100.0, -44.0]];
         assert!(polygon(json!({"type": "Polygon", "coordinates": [flat]}))[0].message.contains("encloses no area"));
         let nztm = [[1370000.0, 5150000.0], [1371000.0, 5150000.0], [1371000.0, 5151000.0], [1370000.0, 5150000.0]];
         let i = polygon(json!({"type": "Polygon", "coordinates": [nztm]}));
