@@ -63,6 +63,10 @@ impl Summary {
             let rec = rec.map_err(|e| Error::Other(format!("reading {}: {e}", path.display())))?;
             let c = rec.get(col[summary::CATCHMENT]).unwrap_or("").to_string();
             let s = rec.get(col[summary::STRATEGY]).unwrap_or("").to_string();
+            // A catchment's properties are its own (local) results, not what arrives at it.
+            if col.get(summary::SCOPE).and_then(|&i| rec.get(i)) == Some(crate::schema::columns::scope::ARRIVING) {
+                continue;
+            }
             if !strategies.contains(&s) {
                 strategies.push(s.clone());
             }
@@ -134,7 +138,9 @@ pub(crate) fn json_number(text: &str) -> std::result::Result<Value, String> {
 /// (catchment, year) → the p5, p50 and p95 cells of `ensemble.csv`.
 type Percentiles = HashMap<(String, i64), [Value; 3]>;
 
-/// Ensemble percentiles of no-control yield change at the given years (`None` without an ensemble).
+/// Ensemble percentiles of the no-control 10-year-mean yield change (the quantity of the
+/// summary's headline columns) of each catchment's own runoff at the given years
+/// (`None` without an ensemble).
 fn ensemble_yield_percentiles(run_dir: &Path, years: &[i64]) -> Result<Option<Percentiles>> {
     let path = run_dir.join(ENSEMBLE_FILE);
     if !path.exists() {
@@ -146,10 +152,14 @@ fn ensemble_yield_percentiles(run_dir: &Path, years: &[i64]) -> Result<Option<Pe
     let at = |name: &str| h.iter().position(|x| x == name).ok_or_else(|| fail(format!("no column '{name}'")));
     let (c, s, y, var) = (at(ensemble::CATCHMENT)?, at(ensemble::STRATEGY)?, at(ensemble::YEAR)?, at(ensemble::VARIABLE)?);
     let (p5, p50, p95) = (at(ensemble::P5)?, at(ensemble::P50)?, at(ensemble::P95)?);
+    let scope = h.iter().position(|x| x == ensemble::SCOPE);
     let mut out = HashMap::new();
     for rec in r.records() {
         let rec = rec.map_err(|e| fail(e.to_string()))?;
-        if rec.get(s) != Some(NO_CONTROL) || rec.get(var) != Some(ensemble::YIELD_CHANGE_PCT) {
+        if rec.get(s) != Some(NO_CONTROL)
+            || rec.get(var) != Some(ensemble::YIELD_CHANGE_10YR_MEAN_PCT)
+            || scope.is_some_and(|k| rec.get(k) != Some(crate::schema::columns::scope::LOCAL))
+        {
             continue;
         }
         let Some(year) = rec.get(y).and_then(|t| t.parse::<i64>().ok()) else { continue };

@@ -101,7 +101,7 @@ pub fn parse_donor(text: &str) -> std::result::Result<Donor, Problem> {
         Some((u, g)) if !u.trim().is_empty() && !g.trim().is_empty() && !g.contains('=') => {
             Ok(Donor { ungauged: u.trim().to_string(), gauged: g.trim().to_string() })
         }
-        _ => Err(Problem::new(format!("'{text}' is not UNGAUGED=GAUGED (two catchment ids joined by '=')")).column("--donor")),
+        _ => Err(Problem::new(format!("'{text}' is not UNGAUGED=GAUGED (two catchment ids joined by '=')")).option("--donor")),
     }
 }
 
@@ -191,7 +191,7 @@ pub fn check_donors(scenario: &Scenario, fitted: &[FittedCatchment], donors: &[D
     let mut problems = Vec::new();
     let mut seen: Vec<&str> = Vec::new();
     for d in donors {
-        let at = |m: String| Problem::new(m).column("--donor");
+        let at = |m: String| Problem::new(m).option("--donor");
         if !ids.contains(&d.ungauged.as_str()) {
             problems.push(at(format!(
                 "'{}' is not a catchment of the scenario{}",
@@ -405,7 +405,7 @@ pub fn calibration_toml(
             years.first().map(|y| y.year).unwrap_or(0),
             years.last().map(|y| y.year).unwrap_or(0),
             f.years_left_out,
-            f.fit.scenario_value
+            crate::schema::numbers::recorded(f.fit.scenario_value)
         );
         let _ = writeln!(t);
         if let Some(iv) = f.fit.interval {
