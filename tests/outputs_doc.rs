@@ -259,7 +259,11 @@ fn run_info_keys() -> BTreeSet<String> {
                 spread_rate_per_yr: 0.06,
             },
             min_runoff_mm: Some(1.0),
-            pet_from_weather: Some(ri::PetFromWeather { method: "hargreaves".into(), weather_table: "w.csv".into() }),
+            pet_from_weather: Some(ri::PetFromWeather {
+                method: "hargreaves".into(),
+                weather_table: "w.csv".into(),
+                partial: vec![yieldshift::schema::run_info::PetPartial { catchment: "c".into(), weather_years: 1, long_term_years: 1 }],
+            }),
             scenario: "s.toml".into(),
             stand_table: Some("stands.csv".into()),
             start_year: 2024,
@@ -341,6 +345,9 @@ fn every_column_of_every_table_is_documented_in_its_table_and_nothing_else() {
     check(&p, "`fit.csv`", "column", &owned(&columns::fit::COLUMNS), true);
     check(&p, "`fit_years.csv`", "column", &owned(&columns::fit_years::COLUMNS), true);
     check(&p, "`left_out.csv`", "column", &owned(&columns::left_out::COLUMNS), true);
+    check(&p, "`fit_mean_annual.csv`", "column", &owned(&columns::fit_mean_annual::COLUMNS), true);
+    check(&p, "`catchments_left_out.csv`", "column", &owned(&columns::catchments_left_out::COLUMNS), true);
+    check(&p, "`regional.csv`", "column", &owned(&columns::regional::COLUMNS), true);
     check(&p, "Annual table", "column", &owned(&yieldshift::input::weather::ANNUAL_COLUMNS), true);
 }
 

@@ -32,7 +32,7 @@ pub(super) fn catchment_overview(d: &RunData, doc: &mut Doc) {
     }
     let n = head.len();
     doc.table(Table {
-        caption: "Every catchment without control: yield change against the baseline, canopy fraction and first year above each guideline"
+        caption: "Every catchment without control, each from its own (local) runoff: yield change against the baseline, canopy fraction and guideline status"
             .into(),
         align: (0..n).map(|k| if k == 0 || k >= n - i.contaminants.len() { Align::Left } else { Align::Right }).collect(),
         head,
