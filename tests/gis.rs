@@ -494,9 +494,10 @@ fn results_geojson_round_trip_keeps_every_feature_and_equals_summary_csv() {
         .map(|x| x.unwrap())
         .find(|x| {
             &x[col("catchment")] == "corvisk"
+                && &x[col("scope")] == "local"
                 && &x[col("strategy")] == "no-control"
                 && &x[col("year")] == "2087"
-                && &x[col("variable")] == "yield_change_pct"
+                && &x[col("variable")] == "yield_change_10yr_mean_pct"
         })
         .unwrap();
     let corvisk = lines.iter().find(|l| l.contains("\"id\":\"corvisk\"")).unwrap();

@@ -744,11 +744,12 @@ fn the_report_opens_with_an_executive_summary_of_what_reaches_the_nodes() {
     let exec = h2_section(&html, "Executive summary");
     // Every number of the section equals its cell.
     let counts = check_sources(demo_run(), exec);
-    for f in ["nodes.csv", "summary.csv", "delay.csv", "run_info.json"] {
+    for f in ["nodes.csv", "summary.csv", "delay.csv", "run_info.json", "ensemble.csv"] {
         assert!(counts.get(f).copied().unwrap_or(0) > 0, "no numbers from {f}: {counts:?}");
     }
-    // Each receiving node's change at 20 and 50 years is its nodes.csv cell, and
-    // the node's own local summary.csv row is not used.
+    // Each receiving node's change at 20 and 50 years is the 10-year mean of what
+    // arrives there (its arriving row of summary.csv, which tests/multi_intake.rs
+    // recomputes from nodes.csv), and the node's own local row is not used.
     let nodes = read_csv(&demo_run().join("nodes.csv"));
     let (nc, sc, yc) = (nodes.col("node"), nodes.col("strategy"), nodes.col("year"));
     let ids: BTreeSet<String> = nodes.rows.iter().filter(|r| r[sc] == "no-control").map(|r| r[nc].clone()).collect();
@@ -757,13 +758,16 @@ fn the_report_opens_with_an_executive_summary_of_what_reaches_the_nodes() {
     for id in &ids {
         for year in ["2047", "2077"] {
             assert!(nodes.rows.iter().any(|r| &r[nc] == id && r[yc] == year));
-            let hit = sourced.iter().find(|s| {
-                s.file == "nodes.csv" && s.key == [id.clone(), "no-control".into(), year.into()] && s.column == "yield_change_pct"
-            });
-            assert!(hit.is_some(), "{id} {year}: no nodes.csv yield change in the executive summary");
+            let column = if year == "2047" { "yield_change_20y_pct" } else { "yield_change_50y_pct" };
+            let hit = sourced
+                .iter()
+                .find(|s| s.file == "summary.csv" && s.key == [id.clone(), "arriving".into(), "no-control".into()] && s.column == column);
+            assert!(hit.is_some(), "{id} {year}: no arriving yield change in the executive summary");
         }
         assert!(
-            !sourced.iter().any(|s| s.file == "summary.csv" && s.key.first() == Some(id)),
+            !sourced
+                .iter()
+                .any(|s| s.file == "summary.csv" && s.key.first() == Some(id) && s.key.get(1).map(String::as_str) == Some("local")),
             "{id}: the executive summary uses the node catchment's local row"
         );
     }
@@ -808,7 +812,8 @@ fn report_catchments_limits_the_pages_to_the_most_affected_and_names_the_rest() 
     let summary = read_csv(&dir.join("summary.csv"));
     let (cc, nc, sc, hc) =
         (summary.col("catchment"), summary.col("name"), summary.col("strategy"), summary.col("yield_change_horizon_pct"));
-    let mut rows: Vec<&Vec<String>> = summary.rows.iter().filter(|r| r[sc] == "no-control" && r[cc] != "basin").collect();
+    let scope = summary.col("scope");
+    let mut rows: Vec<&Vec<String>> = summary.rows.iter().filter(|r| r[sc] == "no-control" && r[scope] == "local").collect();
     rows.sort_by(|a, b| a[hc].parse::<f64>().unwrap().total_cmp(&b[hc].parse::<f64>().unwrap()));
     let note = html.split("<p>Pages follow for the 2 catchments").nth(1).expect("the note on pages").split("</p>").next().unwrap();
     for (k, r) in rows.iter().enumerate() {

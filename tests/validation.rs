@@ -1076,3 +1076,69 @@ fn harness_known_gaps_are_reported_not_failed_and_fail_once_they_pass() {
     let (lines, failures) = judge("c", &exp(vec![ord]), &t).unwrap();
     assert!(lines[0].ends_with("| known-gap") && failures.is_empty(), "{lines:?} {failures}");
 }
+
+// ---------------------------------------------------------------------------
+// The figure of docs/validation.md
+
+/// Published value (the middle of a published range), its tolerance bounds and the
+/// model's value of a numeric check; `None` for an ordering check or a published 0.
+fn numeric(check: &Check, table: &[Row], planted: &BTreeMap<String, f64>) -> Option<(f64, f64, f64, f64)> {
+    let published = check.published.as_ref()?;
+    let mid = match *published {
+        Published::Value(v) => v,
+        Published::Range([a, b]) => 0.5 * (a + b),
+    };
+    if mid == 0.0 || check.metric == "ordering" {
+        return None;
+    }
+    let (lo, hi) = bounds(published, check.tolerance, check.tolerance_abs).ok()?;
+    let names: Vec<String> = check.catchment.clone().map(|c| vec![c]).or_else(|| check.catchments.clone())?;
+    let vals: Vec<f64> = names
+        .iter()
+        .map(|c| metric_value(table, &check.metric, c, check.years, check.window_years, planted.get(c).copied()))
+        .collect::<Result<_, _>>()
+        .ok()?;
+    Some((mid, lo, hi, vals.iter().sum::<f64>() / vals.len() as f64))
+}
+
+/// Redraws `docs/img/validation.png`: every numeric check as the model's value in
+/// percent of the published one (bar), with the tolerance as a whisker (the record's
+/// own value is 100 %). Run with `cargo test --test validation -- --ignored`.
+#[test]
+#[ignore = "writes docs/img/validation.png; run by hand after a change of the model or the cases"]
+fn draw_the_validation_figure() {
+    use yieldshift::plot::bars::{Bar, HBarChart};
+    use yieldshift::plot::legend::{Entry, Swatch};
+    use yieldshift::plot::{palette, save_figure, Formats};
+    let mut bars = Vec::new();
+    for case in CASES {
+        let (_, exp) = read_expected(case);
+        let table = run_case(case);
+        let planted = planted_fractions(&exp);
+        for check in &exp.check {
+            let Some((mid, lo, hi, model)) = numeric(check, &table, &planted) else { continue };
+            let gap = is_known_gap(check).unwrap_or(false);
+            let short: String = check.what.chars().take(58).collect();
+            bars.push(Bar {
+                label: format!("{case}: {short}"),
+                value: 100.0 * model / mid,
+                range: Some((100.0 * lo / mid, 100.0 * hi / mid)),
+                marker: Some(100.0),
+                colour: if gap { palette::GUIDELINE } else { palette::YIELD },
+            });
+        }
+    }
+    let chart = HBarChart {
+        title: "Model against the published records (default parameters)".into(),
+        x_label: "Model, % of the published value (whisker: tolerance; diamond: 100 %)".into(),
+        bars,
+        value_decimals: 0,
+        x_range: Some((0.0, 160.0)),
+        legend: vec![
+            Entry { label: "Inside the record's tolerance".into(), swatch: Swatch::Fill { colour: palette::YIELD, opacity: 1.0 } },
+            Entry { label: "Known gap (outside)".into(), swatch: Swatch::Fill { colour: palette::GUIDELINE, opacity: 1.0 } },
+        ],
+    };
+    let stem = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("docs/img/validation");
+    save_figure(&chart, &stem, Formats { png: true, svg: false }).unwrap();
+}

@@ -475,6 +475,8 @@ fn catchment_figures(dir: &Path, s: &Scenario, i: usize, years: &[YearResult], f
     let stem = file_stem(&c.id);
     let xs: Vec<f64> = years.iter().map(|y| y.year as f64).collect();
     let pts = |f: &dyn Fn(&YearResult) -> Option<f64>| xs.iter().zip(years).map(|(&x, y)| (x, f(y))).collect::<Vec<_>>();
+    // The trend the headline numbers use: the mean over the 10 years ending in each year.
+    let flow: Vec<f64> = years.iter().map(|y| y.yield_mm).collect();
     let yield_chart = LineChart::over_years(
         format!("{} — water yield", c.name),
         "Water yield (mm/yr)".into(),
@@ -487,6 +489,12 @@ fn catchment_figures(dir: &Path, s: &Scenario, i: usize, years: &[YearResult], f
                 dashed: true,
             },
             Line { label: "No invasion".into(), points: pts(&|y| Some(y.uninvaded_yield_mm)), colour: palette::UNINVADED, dashed: true },
+            Line {
+                label: "Projected, 10-year mean".into(),
+                points: xs.iter().enumerate().map(|(t, &x)| (x, crate::model::summary::window_mean(&flow, t))).collect(),
+                colour: palette::RANGE,
+                dashed: false,
+            },
         ],
     );
     save_figure(&yield_chart, &dir.join(format!("{stem}_yield")), formats)?;

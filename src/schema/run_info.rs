@@ -358,12 +358,12 @@ impl From<&crate::model::InvasionParams> for Invasion {
 pub struct PetFromWeather {
     /// PET method.
     pub method: String,
-    /// Weather table as given.
-    pub weather_table: String,
     /// Catchments whose projection has PET from the weather table in only some years;
     /// the other years use the catchment table's long-term `pet_mm`.
     #[serde(default)]
     pub partial: Vec<PetPartial>,
+    /// Weather table as given.
+    pub weather_table: String,
 }
 
 /// A catchment whose PET comes from the weather table in only some projected years.
@@ -371,10 +371,10 @@ pub struct PetFromWeather {
 pub struct PetPartial {
     /// Catchment id.
     pub catchment: String,
-    /// Projected years with PET from the weather table.
-    pub weather_years: usize,
     /// Projected years at the long-term `pet_mm`.
     pub long_term_years: usize,
+    /// Projected years with PET from the weather table.
+    pub weather_years: usize,
 }
 
 impl RunInfo {
