@@ -175,6 +175,37 @@ fn fixed_parameters_and_no_climate_variability_collapse_onto_the_deterministic_r
         checked += 1;
     }
     assert!(checked >= 6 * 61 * 4);
+    // Programme economics collapse onto the central run's too (economics.csv against
+    // summary.csv), for catchments, nodes and the basin: computed the same way.
+    let mut summary = csv::Reader::from_path(out.join("summary.csv")).unwrap();
+    let sh: Vec<String> = summary.headers().unwrap().iter().map(str::to_string).collect();
+    let scol = |n: &str| sh.iter().position(|h| h == n).unwrap();
+    let eco = std::fs::read_to_string(out.join("economics.csv")).unwrap();
+    let mut eco_checked = 0;
+    for rec in summary.records() {
+        let rec = rec.unwrap();
+        let f: Vec<&str> = rec.iter().collect();
+        if f[scol("strategy")] == "no-control" {
+            continue;
+        }
+        for var in ["total_cost", "total_cost_pv", "water_saved_m3", "levelised_cost_per_m3", "npv", "benefit_cost_ratio"] {
+            let cell = f[scol(var)];
+            if cell.is_empty() {
+                continue;
+            }
+            let key = format!("{},{},{},{var},", f[scol("catchment")], f[scol("scope")], f[scol("strategy")]);
+            let row = eco.lines().find(|l| l.starts_with(&key)).unwrap_or_else(|| panic!("economics.csv has no row {key}"));
+            let e: Vec<&str> = row.split(',').collect();
+            let det: f64 = cell.parse().unwrap();
+            for q in &e[4..10] {
+                let v: f64 = q.parse().unwrap();
+                assert!((v - det).abs() <= 1e-6 * det.abs().max(1.0) + 0.01, "{key}: member {v} vs central {det}");
+            }
+            eco_checked += 1;
+        }
+    }
+    assert!(eco_checked > 50, "only {eco_checked} economics cells checked");
+    assert!(eco.lines().any(|l| l.starts_with("basin,basin,") && l.contains(",npv,")), "basin economics rows");
 }
 
 #[test]

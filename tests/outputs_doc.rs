@@ -342,6 +342,8 @@ fn every_column_of_every_table_is_documented_in_its_table_and_nothing_else() {
     check(&p, "`ensemble.csv`", "column", &owned(&columns::ensemble::COLUMNS), true);
     check(&p, "`members.csv`", "column", &columns::members::columns(c), true);
     check(&p, "`sensitivity.csv`", "column", &owned(&columns::sensitivity::COLUMNS), true);
+    check(&p, "`economics.csv`", "column", &owned(&columns::economics::COLUMNS), true);
+    check(&p, "`economics.csv`", "value", &columns::economics::VARIABLES.iter().map(|v| v.0.to_string()).collect::<Vec<_>>(), true);
     check(&p, "`fit.csv`", "column", &owned(&columns::fit::COLUMNS), true);
     check(&p, "`fit_years.csv`", "column", &owned(&columns::fit_years::COLUMNS), true);
     check(&p, "`left_out.csv`", "column", &owned(&columns::left_out::COLUMNS), true);

@@ -221,6 +221,7 @@ fn check_sources(dir: &Path, html: &str) -> BTreeMap<String, usize> {
                 "delay.csv" => &["strategy", "delay_yr"],
                 "ensemble.csv" => &["catchment", "scope", "strategy", "year", "variable"],
                 "sensitivity.csv" => &["catchment", "strategy", "at", "parameter"],
+                "economics.csv" => &["catchment", "scope", "strategy", "variable"],
                 other => panic!("number sourced from an unexpected file {other}"),
             };
             let f = files.entry(s.file.clone()).or_insert_with(|| read_csv(&dir.join(&s.file)));

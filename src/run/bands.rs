@@ -154,3 +154,50 @@ pub fn write_rows<W: std::io::Write>(
     }
     Ok(())
 }
+
+/// One member's programme totals as the `economics.csv` variables (`None`: undefined
+/// for that member, e.g. no water saved; NPV and BCR only with a value of water).
+pub fn economics_values(t: &crate::model::economics::ProgrammeTotals, water_value_per_m3: Option<f64>) -> [Option<f64>; 7] {
+    [
+        Some(t.cost),
+        Some(t.cost_pv),
+        Some(t.water_saved_m3),
+        Some(t.water_saved_pv_m3),
+        t.levelised_cost_per_m3(),
+        water_value_per_m3.map(|v| t.npv(v)),
+        water_value_per_m3.and_then(|v| t.bcr(v)),
+    ]
+}
+
+/// Writes the `economics.csv` rows of one id, scope and strategy from each member's
+/// totals: percentiles, mean and members with a value of every variable, and for
+/// `npv` the share of members above zero. Variables no member defines are left out
+/// (NPV and BCR without a value of water).
+pub fn write_economics_rows<W: std::io::Write>(
+    out: &mut CsvOut<W>,
+    id: &str,
+    scope: &str,
+    strategy: &str,
+    members: &[[Option<f64>; 7]],
+) -> Result<()> {
+    let mut vals: Vec<f64> = Vec::with_capacity(members.len());
+    for (j, (name, dec)) in columns::economics::VARIABLES.iter().enumerate() {
+        vals.clear();
+        vals.extend(members.iter().filter_map(|m| m[j]).filter(|v| v.is_finite()));
+        if vals.is_empty() && members.iter().all(|m| m[j].is_none()) && j >= 5 {
+            continue;
+        }
+        vals.sort_by(f64::total_cmp);
+        let mut fields = vec![id.to_string(), scope.to_string(), strategy.to_string(), name.to_string()];
+        for p in PERCENTILES {
+            fields.push(if vals.is_empty() { String::new() } else { num(percentile_sorted(&vals, p), *dec) });
+        }
+        fields.push(if vals.is_empty() { String::new() } else { num(mean(&vals), *dec) });
+        fields.push(vals.len().to_string());
+        let above = (*name == columns::summary::NPV && !vals.is_empty())
+            .then(|| vals.iter().filter(|&&v| v > 0.0).count() as f64 / vals.len() as f64);
+        fields.push(opt_num(above, 4));
+        out.row(&fields)?;
+    }
+    Ok(())
+}

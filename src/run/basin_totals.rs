@@ -612,6 +612,35 @@ impl Partials {
         out.finish()
     }
 
+    /// Appends the `basin` rows of every control strategy to `economics.csv` (which
+    /// holds the `local` and `arriving` rows): each member's programme totals from the
+    /// exact basin sums, water saved against the same member's no-control run.
+    pub fn append_economics(&self, dir: &Path) -> Result<()> {
+        use crate::model::economics::ProgrammeTotals;
+        let Some(reference) = self.ensemble.first() else { return Ok(()) };
+        if self.ensemble.len() < 2 {
+            return Ok(());
+        }
+        let mut out = CsvOut::append(&dir.join(crate::schema::columns::economics::FILE), crate::schema::columns::economics::COLUMNS.len())?;
+        for e in &self.ensemble[1..] {
+            let members: Vec<_> = e
+                .years
+                .iter()
+                .zip(&reference.years)
+                .map(|(ys, rs)| {
+                    let cost: Vec<f64> = ys.iter().map(|y| y[2].value()).collect();
+                    let saved: Vec<f64> = ys.iter().zip(rs).map(|(y, r)| y[0].value() - r[0].value()).collect();
+                    crate::run::bands::economics_values(
+                        &ProgrammeTotals::from_years(self.meta.discount_rate, &cost, &saved),
+                        self.meta.water_value_per_m3,
+                    )
+                })
+                .collect();
+            crate::run::bands::write_economics_rows(&mut out, BASIN_ID, crate::schema::columns::scope::BASIN, &e.strategy, &members)?;
+        }
+        out.finish()
+    }
+
     /// Appends the basin rows to `sensitivity.csv` (which holds the catchment rows).
     pub fn append_sensitivity(&self, dir: &Path) -> Result<()> {
         if self.sensitivity.is_none() {

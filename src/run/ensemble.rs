@@ -535,6 +535,11 @@ pub fn run_ensemble(
     let mut n_figures = 0;
     let figdir = dir.join("figures");
     let mut node_sums = NodeSums::new(s, m_count);
+    let mut econ_out = if s.strategies.is_empty() {
+        None
+    } else {
+        Some(CsvOut::create(&dir.join(columns::economics::FILE), &columns::owned(&columns::economics::COLUMNS))?)
+    };
     let mut basin_members = vec![EnsembleBasinSums::new(NO_CONTROL, m_count, n_years)];
 
     // no-control, catchment by catchment, in parallel chunks written in order.
@@ -603,9 +608,6 @@ pub fn run_ensemble(
     node_sums.write_and_clear(&mut ens, s, &layout, NO_CONTROL)?;
     // Control strategies: member by member over the whole basin.
     for (si, st) in s.strategies.iter().enumerate() {
-        // Per member: values[catchment][variable][year], yield volumes[catchment][year] (m³),
-        // the node sums of the member and its basin sums per year.
-        type MemberRun = (Vec<Vec<Vec<f64>>>, Vec<Vec<f64>>, Vec<f64>, Vec<[Sum; 3]>);
         let per_member: Vec<MemberRun> = (0..m_count)
             .into_par_iter()
             .map(|m| {
@@ -678,6 +680,9 @@ pub fn run_ensemble(
             node_sums.data[m * stride..(m + 1) * stride].copy_from_slice(&run.2);
         }
         basin_members.push(basin_st);
+        if let Some(eco) = econ_out.as_mut() {
+            programme_economics(eco, s, &st.name, &per_member, &reference, &node_sums, vars)?;
+        }
         for (i, c) in s.catchments.iter().enumerate() {
             let mut mv = MemberValues::zeros(vars.len(), n_years, m_count);
             for (m, (vals, ..)) in per_member.iter().enumerate() {
@@ -700,6 +705,9 @@ pub fn run_ensemble(
         node_sums.write_and_clear(&mut ens, s, &layout, &st.name)?;
     }
     ens.finish()?;
+    if let Some(eco) = econ_out {
+        eco.finish()?;
+    }
     if let Some(sn) = sens {
         sn.finish()?;
     }
@@ -709,6 +717,54 @@ pub fn run_ensemble(
     bar.finish_and_clear();
     let sensitivity = (!labels.is_empty()).then_some(basin);
     Ok(EnsembleOutcome { members: m_count, parameters: labels.len(), figures: n_figures, sensitivity, basin: basin_members })
+}
+
+/// Per member of one strategy: values `[catchment][variable][year]`, yield volumes
+/// `[catchment][year]` (m³), node sums and basin sums.
+type MemberRun = (Vec<Vec<Vec<f64>>>, Vec<Vec<f64>>, Vec<f64>, Vec<[Sum; 3]>);
+
+/// Writes the `economics.csv` rows of one strategy: every catchment's own programme
+/// totals per member (`local`), then what the programme buys at each receiving node
+/// (`arriving`: cost and water saved summed over the catchments upstream). Water
+/// saved is the member's strategy run minus the same member's no-control run.
+fn programme_economics<W: std::io::Write>(
+    out: &mut CsvOut<W>,
+    s: &Scenario,
+    strategy: &str,
+    per_member: &[MemberRun],
+    reference: &[Vec<Vec<f64>>],
+    nodes: &NodeSums,
+    vars: Vars,
+) -> Result<()> {
+    use crate::model::economics::ProgrammeTotals;
+    let (rate, value) = (s.economics.discount_rate, s.economics.water_value_per_m3);
+    let n_years = s.horizon_years + 1;
+    let m_count = per_member.len();
+    // [member][node][year]: cost and water saved arriving.
+    let mut node_cost = vec![vec![vec![0.0; n_years]; nodes.nodes.len()]; m_count];
+    let mut node_saved = node_cost.clone();
+    for (i, c) in s.catchments.iter().enumerate() {
+        let mut members = Vec::with_capacity(m_count);
+        for (m, run) in per_member.iter().enumerate() {
+            let cost = &run.0[i][vars.cost()];
+            let saved: Vec<f64> = (0..n_years).map(|t| run.1[i][t] - reference[i][m][t]).collect();
+            for &p in &nodes.targets[i] {
+                for t in 0..n_years {
+                    node_cost[m][p][t] += cost[t];
+                    node_saved[m][p][t] += saved[t];
+                }
+            }
+            members.push(bands::economics_values(&ProgrammeTotals::from_years(rate, cost, &saved), value));
+        }
+        bands::write_economics_rows(out, &c.id, scope::LOCAL, strategy, &members)?;
+    }
+    for (p, &c) in nodes.nodes.iter().enumerate() {
+        let members: Vec<_> = (0..m_count)
+            .map(|m| bands::economics_values(&ProgrammeTotals::from_years(rate, &node_cost[m][p], &node_saved[m][p]), value))
+            .collect();
+        bands::write_economics_rows(out, &s.catchments[c].id, scope::ARRIVING, strategy, &members)?;
+    }
+    Ok(())
 }
 
 fn draws_for_member(s: &Scenario, cfg: &EnsembleConfig, shared: &[Option<Vec<f64>>], id: &str, m: usize) -> Vec<Vec<f64>> {

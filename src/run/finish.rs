@@ -33,6 +33,7 @@ pub fn finish_basin(dir: &Path, partials: &Partials, summary_rows: &[Vec<Vec<Str
     summary.finish()?;
     partials.write_delay(dir)?;
     partials.append_ensemble(dir)?;
+    partials.append_economics(dir)?;
     partials.append_sensitivity(dir)?;
     partials.draw_figures(dir, formats)
 }

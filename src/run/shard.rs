@@ -269,14 +269,15 @@ pub fn merge(dirs: &[PathBuf], out: &Path, force: bool) -> Result<MergeOutcome> 
     // Per-catchment tables: concatenate every shard's rows, stable-sorted into
     // single-run order: by strategy, then by the named columns (catchments in
     // table order, years as numbers).
-    use crate::schema::columns::{budget, ensemble, members, nodes, sensitivity, yearly};
-    let tables: [(&str, [&str; 3]); 6] = [
+    use crate::schema::columns::{budget, economics, ensemble, members, nodes, sensitivity, yearly};
+    let tables: [(&str, [&str; 3]); 7] = [
         (YEARLY_FILE, [yearly::STRATEGY, yearly::CATCHMENT, ""]),
         (NODES_FILE, [nodes::STRATEGY, nodes::NODE, ""]),
         (BUDGET_FILE, [budget::STRATEGY, budget::YEAR, budget::POOL]),
         (ENSEMBLE_FILE, [ensemble::STRATEGY, ensemble::SCOPE, ensemble::CATCHMENT]),
         (MEMBERS_FILE, [members::STRATEGY, members::CATCHMENT, ""]),
         (SENSITIVITY_FILE, [sensitivity::STRATEGY, sensitivity::CATCHMENT, ""]),
+        (economics::FILE, [economics::STRATEGY, economics::SCOPE, economics::CATCHMENT]),
     ];
     for (name, key) in tables {
         if !infos[0].0.join(name).exists() {

@@ -402,6 +402,32 @@ pub mod ensemble {
     }
 }
 
+/// `economics.csv` (with an ensemble and at least one control strategy): the
+/// programme economics of every member reduced to percentiles, per catchment
+/// (`local`), receiving node (`arriving`) and the basin, for each strategy.
+pub mod economics {
+    pub use super::ensemble::{MEAN, MEMBERS, P25, P5, P50, P75, P95, VARIABLE};
+    pub use super::{CATCHMENT, SCOPE, STRATEGY};
+    /// File name.
+    pub const FILE: &str = "economics.csv";
+    /// Share of members whose value is above zero (`npv` only: the probability that the programme pays).
+    pub const PROB_ABOVE_ZERO: &str = "prob_above_zero";
+    /// The header.
+    pub const COLUMNS: [&str; 12] = [CATCHMENT, SCOPE, STRATEGY, VARIABLE, P5, P25, P50, P75, P95, MEAN, MEMBERS, PROB_ABOVE_ZERO];
+    /// The variables, in file order, with the decimals written (`npv` and
+    /// `benefit_cost_ratio` only when the scenario gives a value of water). Their
+    /// meanings are the `summary.csv` columns of the same names, per member.
+    pub const VARIABLES: [(&str, usize); 7] = [
+        (super::summary::TOTAL_COST, 2),
+        (super::summary::TOTAL_COST_PV, 2),
+        (super::summary::WATER_SAVED_M3, 1),
+        (super::summary::WATER_SAVED_PV_M3, 1),
+        (super::summary::LEVELISED_COST_PER_M3, 6),
+        (super::summary::NPV, 2),
+        (super::summary::BENEFIT_COST_RATIO, 4),
+    ];
+}
+
 /// `members.csv` (on request): every member's values.
 pub mod members {
     pub use super::{CATCHMENT, STRATEGY, YEAR};

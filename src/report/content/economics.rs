@@ -2,7 +2,41 @@
 
 use super::*;
 
+/// The members' 5–95 % range of a programme's `variable` (economics.csv) as " (p5 to p95)".
+fn eco_range(d: &RunData, r: &SummaryRow, variable: &str, f: impl Fn(f64) -> String, scale: f64) -> Text {
+    let Some(q) =
+        d.economics.as_ref().and_then(|e| e.get(&(r.catchment.clone(), r.scope.clone(), r.strategy.clone(), variable.to_string())))
+    else {
+        return Text::new();
+    };
+    let key = [r.catchment.as_str(), r.scope.as_str(), r.strategy.as_str(), variable];
+    let src = |c: &str| Some(Source::new(crate::schema::columns::economics::FILE, &key, c).scaled(scale));
+    Text::new().plain(" (").num(f(q.p5 / scale), src("p5")).plain(" to ").num(f(q.p95 / scale), src("p95")).plain(")")
+}
+
+/// The share of members whose NPV is above zero, as a percentage.
+fn npv_above_zero(d: &RunData, r: &SummaryRow) -> Text {
+    let key = (r.catchment.clone(), r.scope.clone(), r.strategy.clone(), sc::NPV.to_string());
+    match d.economics.as_ref().and_then(|e| e.get(&key)).and_then(|q| q.prob_above_zero) {
+        Some(p) => Text::new()
+            .num(
+                fixed(100.0 * p, 0),
+                Some(
+                    Source::new(
+                        crate::schema::columns::economics::FILE,
+                        &[&r.catchment, &r.scope, &r.strategy, sc::NPV],
+                        "prob_above_zero",
+                    )
+                    .scaled(0.01),
+                ),
+            )
+            .plain(" %"),
+        None => undefined(),
+    }
+}
+
 pub(super) fn economics_table(d: &RunData, rows: &[&SummaryRow], caption: String) -> Table {
+    let ranged = d.economics.is_some();
     let has_value = d.info.water_value_per_m3.is_some();
     let mut head: Vec<String> = vec![
         "Strategy".into(),
@@ -16,6 +50,9 @@ pub(super) fn economics_table(d: &RunData, rows: &[&SummaryRow], caption: String
     if has_value {
         head.push("NPV, $".into());
         head.push("Benefit-cost ratio".into());
+        if ranged {
+            head.push("Members with NPV above zero".into());
+        }
     }
     let body = rows
         .iter()
@@ -24,14 +61,35 @@ pub(super) fn economics_table(d: &RunData, rows: &[&SummaryRow], caption: String
                 Text::new().code(&r.strategy),
                 num_cell(r, sc::TOTAL_COST, |v| fixed(v, 0), 1.0),
                 num_cell(r, sc::TOTAL_COST_PV, |v| fixed(v, 0), 1.0),
-                num_cell(r, sc::WATER_SAVED_M3, |v| fixed(v, 2), MILLION),
+                num_cell(r, sc::WATER_SAVED_M3, |v| fixed(v, 2), MILLION).then(eco_range(
+                    d,
+                    r,
+                    sc::WATER_SAVED_M3,
+                    |v| fixed(v, 2),
+                    MILLION,
+                )),
                 num_cell(r, sc::WATER_SAVED_PV_M3, |v| fixed(v, 2), MILLION),
                 num_cell(r, sc::COST_PER_M3, |v| sig(v, 3), 1.0),
-                num_cell(r, sc::LEVELISED_COST_PER_M3, |v| sig(v, 3), 1.0),
+                num_cell(r, sc::LEVELISED_COST_PER_M3, |v| sig(v, 3), 1.0).then(eco_range(
+                    d,
+                    r,
+                    sc::LEVELISED_COST_PER_M3,
+                    |v| sig(v, 3),
+                    1.0,
+                )),
             ];
             if has_value {
-                row.push(num_cell(r, sc::NPV, |v| fixed(v, 0), 1.0));
-                row.push(num_cell(r, sc::BENEFIT_COST_RATIO, |v| fixed(v, 2), 1.0));
+                row.push(num_cell(r, sc::NPV, |v| fixed(v, 0), 1.0).then(eco_range(d, r, sc::NPV, |v| fixed(v, 0), 1.0)));
+                row.push(num_cell(r, sc::BENEFIT_COST_RATIO, |v| fixed(v, 2), 1.0).then(eco_range(
+                    d,
+                    r,
+                    sc::BENEFIT_COST_RATIO,
+                    |v| fixed(v, 2),
+                    1.0,
+                )));
+                if ranged {
+                    row.push(npv_above_zero(d, r));
+                }
             }
             row
         })
@@ -42,7 +100,12 @@ pub(super) fn economics_table(d: &RunData, rows: &[&SummaryRow], caption: String
         align: (0..n).map(|k| if k == 0 { Align::Left } else { Align::Right }).collect(),
         head,
         rows: body,
-        note: Some(Text::new().plain("Water saved is against no-control in the same catchment and year, summed over the horizon; present values at the run's discount rate. Source: ").code(SUMMARY).plain(".")),
+        note: Some(
+            Text::new()
+                .plain("Water saved is against no-control in the same catchment and year, summed over the horizon; present values at the run's discount rate. Source: ")
+                .code(SUMMARY)
+                .plain(if ranged { "; ranges in brackets: 5–95 % of ensemble members (economics.csv, each member against its own no-control run)." } else { "." }),
+        ),
     }
 }
 

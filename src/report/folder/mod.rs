@@ -61,6 +61,8 @@ pub struct RunData {
     pub budget: BTreeMap<(String, String), BudgetTotals>,
     /// `ensemble.csv`, when present.
     pub ensemble: Option<Ensemble>,
+    /// `economics.csv` (programme economics over ensemble members), when present.
+    pub economics: Option<rows::Economics>,
     /// `sensitivity.csv`, when present.
     pub sensitivity: Option<Vec<SensitivityRow>>,
     /// Readable parameter names of `sensitivity.csv` by key path (its `label` column).
@@ -174,6 +176,7 @@ pub fn read_run_with(dir: &Path, detail_limit: usize) -> Result<RunData> {
         rec.get(ci).map(str::trim).is_some_and(|c| c == BASIN_ID || detailed.contains(c))
     })?;
     let sensitivity = sensitivity_t.map(|t| read_sensitivity(&t, &mut problems));
+    let economics = CsvTable::read(dir, crate::schema::columns::economics::FILE)?.map(|t| rows::read_economics(&t, &mut problems));
     fail_on(&mut problems)?;
 
     let (scenario, catchment_input, climate_input) = read_inputs(dir, &info)?;
@@ -194,6 +197,7 @@ pub fn read_run_with(dir: &Path, detail_limit: usize) -> Result<RunData> {
         delay,
         budget,
         ensemble,
+        economics,
         sensitivity,
         param_labels: labels::read_param_labels(dir)?,
         scenario,

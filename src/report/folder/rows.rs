@@ -477,3 +477,51 @@ pub(super) fn read_sensitivity(t: &CsvTable, problems: &mut Vec<Problem>) -> Vec
         })
         .collect()
 }
+
+/// Percentiles of one programme-economics variable over members (`economics.csv`).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct EconomicsRange {
+    /// 5th percentile.
+    pub p5: f64,
+    /// Median.
+    pub p50: f64,
+    /// 95th percentile.
+    pub p95: f64,
+    /// Members with a value.
+    pub members: f64,
+    /// Share of members above zero (`npv` only).
+    pub prob_above_zero: Option<f64>,
+}
+
+/// `economics.csv` keyed by (catchment, scope, strategy, variable).
+pub type Economics = BTreeMap<(String, String, String, String), EconomicsRange>;
+
+pub(super) fn read_economics(t: &CsvTable, problems: &mut Vec<Problem>) -> Economics {
+    use columns::economics::*;
+    let c = t.require(&[CATCHMENT, SCOPE, STRATEGY, VARIABLE, P5, P50, P95, MEMBERS], problems);
+    let prob = t.col(PROB_ABOVE_ZERO);
+    let mut out = Economics::new();
+    if !problems.is_empty() {
+        return out;
+    }
+    for r in 0..t.rows.len() {
+        let n = |k: usize, p: &mut Vec<Problem>| t.num(r, c[k], p);
+        let (Some(p5), Some(p50), Some(p95)) = (n(4, problems), n(5, problems), n(6, problems)) else { continue };
+        if !(p5 <= p50 && p50 <= p95) {
+            problems.push(Problem::in_file(&t.path, "percentiles must satisfy p5 ≤ p50 ≤ p95").row(t.lines[r]).column(P5));
+            continue;
+        }
+        let key = (t.text(r, c[0]).to_string(), t.text(r, c[1]).to_string(), t.text(r, c[2]).to_string(), t.text(r, c[3]).to_string());
+        out.insert(
+            key,
+            EconomicsRange {
+                p5,
+                p50,
+                p95,
+                members: n(7, problems).unwrap_or(0.0),
+                prob_above_zero: prob.and_then(|k| t.num(r, k, problems)),
+            },
+        );
+    }
+    out
+}
