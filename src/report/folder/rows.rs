@@ -197,6 +197,11 @@ pub struct BudgetTotals {
     pub spent: f64,
     /// Unspent, $.
     pub unspent: f64,
+    /// Sum of the area to treat, ha, of a fixed-area programme (`None` for a budget
+    /// programme, or a folder written before `budget.csv` had hectare columns).
+    pub available_ha: Option<f64>,
+    /// Area treated, ha (0 in a folder written before `budget.csv` had it).
+    pub treated_ha: f64,
     /// Years.
     pub years: usize,
 }
@@ -384,6 +389,7 @@ pub(super) fn read_delay(t: &CsvTable, problems: &mut Vec<Problem>) -> Vec<Delay
 
 pub(super) fn read_budget(t: &CsvTable, problems: &mut Vec<Problem>) -> BTreeMap<(String, String), BudgetTotals> {
     let c = t.require(&[budget::STRATEGY, budget::POOL, budget::YEAR, budget::AVAILABLE, budget::SPENT, budget::UNSPENT], problems);
+    let (available_ha, treated_ha) = (t.col(budget::AVAILABLE_HA), t.col(budget::TREATED_HA));
     let mut out: BTreeMap<(String, String), BudgetTotals> = BTreeMap::new();
     if !problems.is_empty() {
         return out;
@@ -400,6 +406,15 @@ pub(super) fn read_budget(t: &CsvTable, problems: &mut Vec<Problem>) -> BTreeMap
         }
         e.spent += t.num(r, c[4], problems).unwrap_or(0.0);
         e.unspent += t.num(r, c[5], problems).unwrap_or(0.0);
+        // Hectare columns: optional, so folders written before they existed still read.
+        if let Some(c_ha) = available_ha {
+            if let Some(v) = t.num(r, c_ha, problems) {
+                *e.available_ha.get_or_insert(0.0) += v;
+            }
+        }
+        if let Some(c_ha) = treated_ha {
+            e.treated_ha += t.num(r, c_ha, problems).unwrap_or(0.0);
+        }
     }
     out
 }
