@@ -346,3 +346,46 @@ fn capped_regrowth_reports_what_established() {
     assert_abs_diff_eq!(ys[2].classes.total_ha(), c.vulnerable_ha, epsilon = 1e-9);
     assert_cover_closes(&run);
 }
+
+/// Nominal totals of `st` over the horizon against no control.
+fn totals_vs_no_control(c: &Catchment, p: &ModelParams, years: usize, st: &Strategy) -> ProgrammeTotals {
+    let climates = vec![vec![c.mean_climate(); years]];
+    let none = project_basin(std::slice::from_ref(c), &climates, std::slice::from_ref(p), 2027, None);
+    let run = project_basin(std::slice::from_ref(c), &climates, std::slice::from_ref(p), 2027, Some(st));
+    let cost: Vec<f64> = run.control[0].iter().map(|y| y.cost()).collect();
+    let saved: Vec<f64> = run.years[0].iter().zip(&none.years[0]).map(|(a, b)| a.yield_m3 - b.yield_m3).collect();
+    ProgrammeTotals::from_years(0.0, &cost, &saved)
+}
+
+#[test]
+fn delaying_a_scattered_first_programme_ten_years_costs_orders_of_magnitude_more_per_m3() {
+    // Common practice, no published source: control of scattered trees costs about
+    // $1–10/ha; dense stands about $2,000/ha by aerial spraying and up to $10,000/ha
+    // by felling. (The medium class, between them, is this test's assumption.)
+    // 40 ha of young scattered stand (ages 0–4) turns dense within 10 years, so a
+    // programme started 10 years late pays dense prices for the same hectares and
+    // saves less water: its cost per m³ saved is at least the dense/scattered price
+    // ratio higher (2,000/10 = 200 with the dearest scattered price), and not
+    // absurdly more.
+    let mut p = params();
+    p.invasion.medium_age_yr = 5;
+    p.invasion.dense_age_yr = 10;
+    let c = tussock(1000.0, 1000.0, 850.0, 800.0, ClassAreas { scattered_ha: 40.0, medium_ha: 0.0, dense_ha: 0.0 });
+    for (scattered, dense, floor) in [(10.0, 2_000.0, 200.0), (1.0, 2_000.0, 2_000.0), (10.0, 10_000.0, 1_000.0)] {
+        let mut st = strategy(PriorityRule::ScatteredFirst, Effort::Unlimited);
+        st.cost_per_ha = [scattered, 300.0, dense];
+        st.efficacy = 1.0;
+        st.regrowth_fraction = 0.0;
+        st.follow_up_cost_per_ha = 0.0;
+        let early = totals_vs_no_control(&c, &p, 51, &st);
+        let late = totals_vs_no_control(&c, &p, 51, &st.delayed(10));
+        // Early: the 40 ha, all still scattered, cleared at the end of the first year.
+        assert_abs_diff_eq!(early.cost, 40.0 * scattered, epsilon = 1e-6);
+        // Late: the same 40 ha are dense by then, plus what they seeded.
+        assert!(late.cost >= 40.0 * dense, "late cost {}", late.cost);
+        assert!(late.water_saved_m3 < early.water_saved_m3);
+        let ratio = late.cost_per_m3().expect("late saves water") / early.cost_per_m3().expect("early saves water");
+        assert!(ratio >= floor, "scattered ${scattered}/ha, dense ${dense}/ha: late/early = {ratio:.1} < {floor}");
+        assert!(ratio < 100.0 * floor, "scattered ${scattered}/ha, dense ${dense}/ha: late/early = {ratio:.1}");
+    }
+}
