@@ -492,3 +492,36 @@ pub(super) fn read_sensitivity(t: &CsvTable, problems: &mut Vec<Problem>) -> Vec
         })
         .collect()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn budget_totals_keep_hectares_apart_and_read_older_folders() {
+        let dir = tempfile::tempdir().unwrap();
+        std::fs::write(
+            dir.path().join("budget.csv"),
+            "strategy,pool,year,available,spent,unspent,carried_over,available_ha,treated_ha,unspent_ha\n\
+             area,basin,2027,unlimited,450.00,,0.00,30.00,30.00,0.00\n\
+             area,basin,2028,unlimited,300.00,,0.00,30.00,24.50,5.50\n\
+             money,basin,2027,1000.00,400.00,600.00,0.00,,8.00,\n",
+        )
+        .unwrap();
+        let t = CsvTable::read(dir.path(), "budget.csv").unwrap().unwrap();
+        let mut problems = Vec::new();
+        let b = read_budget(&t, &mut problems);
+        assert!(problems.is_empty(), "{problems:?}");
+        let area = &b[&("area".to_string(), "basin".to_string())];
+        assert_eq!((area.available, area.spent, area.unspent, area.available_ha, area.treated_ha), (None, 750.0, 0.0, Some(60.0), 54.5));
+        let money = &b[&("money".to_string(), "basin".to_string())];
+        assert_eq!((money.available, money.unspent, money.available_ha, money.treated_ha), (Some(1000.0), 600.0, None, 8.0));
+        // A folder written before the hectare columns existed still reads.
+        std::fs::write(dir.path().join("budget.csv"), "strategy,pool,year,available,spent,unspent,carried_over\nm,basin,2027,10,4,6,0\n")
+            .unwrap();
+        let t = CsvTable::read(dir.path(), "budget.csv").unwrap().unwrap();
+        let b = read_budget(&t, &mut problems);
+        assert!(problems.is_empty(), "{problems:?}");
+        assert_eq!(b[&("m".to_string(), "basin".to_string())].available_ha, None);
+    }
+}
