@@ -14,7 +14,9 @@
 //! ageing and spread in [`super::cover`]. What it computes itself:
 //! * Budget of pool `k` in year `t`: `B_avail = B_k,t + carry_k,t−1` ($), and
 //!   `carry_k,t = max(0, B_avail − spent_k,t)` when the programme carries over
-//!   (else 0). A fixed-area pool holds `A_fix,t` ha of treatment and carries nothing.
+//!   (else 0). A fixed-area pool holds `A_fix,t` ha of treatment, has no dollar
+//!   limit and carries nothing; its account reports `A_fix,t` and the area treated
+//!   (ha) apart from the dollars spent.
 //! * Yield lost per unit canopy fraction (for best-value), at the catchment's
 //!   long-term mean climate: `ΔQ = max(0, Q(f = 0) − Q(f = 1))`, mm/yr (ET is linear
 //!   in `f`, [`super::budyko::mixed_et_mm`]).
@@ -24,9 +26,14 @@
 //!   closure table ([`super::closure::ClosureCurve::table_by_whole_year`]).
 //! * Area treated from a cohort of `A_a` ha with `left` still to spend:
 //!   `T = min(A_a, left/c(a))` ha (`min(A_a, left)` for a fixed area); cleared `e·T` ha.
-//! * Regrowth of catchment `i` in year `t`: `Σ ρ·A_cleared/N·(1 − φ_i,t)` ha over the
-//!   clearings of the last `N` years, added to the new age-0 cohort with spread and
-//!   capped with it at the free vulnerable area.
+//! * Regrowth of catchment `i` in year `t`: `X = Σ ρ·A_cleared/N·(1 − φ_i,t)` ha over
+//!   the clearings of the last `N` years, added to the new age-0 cohort with spread
+//!   and capped with it at the free vulnerable area `F`, regrowth first:
+//!   `X' = min(X, F)`, spread `ΔI' = min(ΔI, F − X')` ([`super::cover::Cohorts::step_with`]).
+//!   `regrowth_ha` of year `t` is `X'` (what established); `new_infestation_ha` of
+//!   year `t + 1` is `ΔI'` (spread and seed rain only), so nothing is counted twice:
+//!   `I_{t+1} = I_t − cleared_t + X'_t + ΔI'_{t+1}` (`I` the infested area at the
+//!   start of the year, `ΔI'_{t+1}` the row of year `t + 1`).
 //!
 //! # Symbols
 //! * `t` — projected year, 0 = start year; `n` — years projected.
@@ -43,8 +50,9 @@
 //! * A year's results use the cover at the start of the year; treatment, regrowth
 //!   and spread change the following year's cover.
 //! * The budget is spent greedily in priority order; a cohort that cannot be paid in
-//!   full is treated in part; ties are broken by catchment order, then age, so runs
-//!   are deterministic.
+//!   full is treated in part; ties are broken by catchment id (text order), then
+//!   age (youngest first), so the result does not depend on the order of the
+//!   catchment table.
 //! * A fixed-area programme buys hectares, not dollars: its follow-up is always paid
 //!   in full (so it always suppresses regrowth) and does not use up the area.
 //!
@@ -212,8 +220,13 @@ pub fn project_basin(
                         slots.push(Slot { catchment: i, age, area_ha: area, cost_per_ha: cost, key });
                     }
                 }
-                // Highest key first; ties broken by catchment order then age, so results are deterministic.
-                slots.sort_by(|a, b| b.key.total_cmp(&a.key).then(a.catchment.cmp(&b.catchment)).then(a.age.cmp(&b.age)));
+                // Highest key first; ties broken by catchment id, then age (youngest first), never by table order.
+                slots.sort_by(|a, b| {
+                    b.key
+                        .total_cmp(&a.key)
+                        .then_with(|| catchments[a.catchment].id.cmp(&catchments[b.catchment].id))
+                        .then(a.age.cmp(&b.age))
+                });
                 for sl in slots {
                     if left <= 0.0 {
                         break;
@@ -237,9 +250,12 @@ pub fn project_basin(
                     cy.cleared_ha += cleared;
                 }
                 let spent: f64 = members.iter().map(|&i| control[i][t].cost()).sum();
+                let treated_ha: f64 = members.iter().map(|&i| control[i][t].treated_ha).sum();
                 let carried = if st.carry_over && !by_area && available.is_finite() { (available - spent).max(0.0) } else { 0.0 };
                 carry[pool.unwrap_or(0)] = carried;
-                budget.push(BudgetYear { year, pool, available, spent, carried });
+                // A fixed-area pool holds hectares, not dollars: its dollar budget has no limit.
+                let (available, available_ha) = if by_area { (f64::INFINITY, Some(available)) } else { (available, None) };
+                budget.push(BudgetYear { year, pool, available, spent, carried, available_ha, treated_ha });
             }
         }
         // 3. Regrowth, then ageing and spread.
@@ -258,9 +274,12 @@ pub fn project_basin(
                     s.tracked.push(Tracked { cleared_ha: cleared, years_left: st.regrowth_years });
                 }
             }
-            s.new_ha = s.cohorts.step_with(&par(i).invasion, c.vulnerable_ha, regrowth);
-            // Regrowth shares the new age-0 cohort with spread; both are capped by the free area.
-            control[i][t].regrowth_ha = regrowth.min(s.new_ha);
+            // Regrowth and spread share the new age-0 cohort and the free area (regrowth
+            // first); each is reported once, as established: spread as next year's
+            // `new_infestation_ha`, regrowth as this year's `regrowth_ha`.
+            let (spread, established) = s.cohorts.step_with(&par(i).invasion, c.vulnerable_ha, regrowth);
+            s.new_ha = spread;
+            control[i][t].regrowth_ha = established;
         }
     }
     BasinRun { years, control, budget }

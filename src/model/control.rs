@@ -11,7 +11,11 @@
 //!    method unless one is fixed), until the budget `B` (or the fixed area) is used.
 //!    Treating `T` ha clears `e·T` ha (efficacy `e`); the rest survives.
 //! 3. **Regrowth**: land cleared in year `y` re-establishes at `ρ·A_cleared/N` ha/yr
-//!    in each of the `N` following years, times `(1 − φ)`.
+//!    in each of the `N` following years, times `(1 − φ)`. It joins the new age-0
+//!    cohort with spread, capped at the free vulnerable area `F` with regrowth first
+//!    (`X' = min(X, F)`); the reported regrowth is `X'`, what established, and the
+//!    reported new infestation is spread and seed rain only, so each hectare is
+//!    counted once (see [`super::basin`]).
 //!
 //! Priority rules: *scattered-first* ranks cohorts youngest first (stop stands
 //! before they thicken and seed); *densest-first* oldest first; *best-value* by
@@ -176,7 +180,8 @@ pub struct ControlYear {
     pub treated_ha: f64,
     /// Area cleared (treated × efficacy), ha.
     pub cleared_ha: f64,
-    /// Area re-established from the seed bank this year, ha.
+    /// Area re-established from the seed bank at the end of this year, as established
+    /// (after the cap at the free vulnerable area), ha; it is in next year's cover.
     pub regrowth_ha: f64,
 }
 
@@ -188,27 +193,41 @@ impl ControlYear {
 }
 
 /// Budget account of one pool in one year.
+///
+/// Dollars and hectares are kept apart: a budget programme has a dollar limit and
+/// no area limit; a fixed-area programme (`area_ha_per_yr`) has an area limit and
+/// no dollar limit (it pays whatever its area costs), so its `available` is infinite.
 #[derive(Debug, Clone, PartialEq)]
 pub struct BudgetYear {
     /// Calendar year.
     pub year: i32,
     /// `None` for the basin pool, else the catchment index.
     pub pool: Option<usize>,
-    /// Budget available (including carried-over), $; infinite when unlimited.
+    /// Budget available (including carried-over), $; infinite when unlimited or fixed-area.
     pub available: f64,
     /// Spent, $.
     pub spent: f64,
     /// Carried into the next year, $.
     pub carried: f64,
+    /// Area to treat, ha, for a fixed-area programme; `None` for a budget programme.
+    pub available_ha: Option<f64>,
+    /// Area treated from the pool, ha.
+    pub treated_ha: f64,
 }
 
 impl BudgetYear {
-    /// Unspent budget, $ (0 when unlimited).
+    /// Unspent budget, $ (0 when unlimited or fixed-area).
     pub fn unspent(&self) -> f64 {
         if self.available.is_finite() {
             (self.available - self.spent).max(0.0)
         } else {
             0.0
         }
+    }
+
+    /// Area left untreated of a fixed-area pool, ha: `max(available_ha − treated_ha, 0)`
+    /// (`None` for a budget programme).
+    pub fn unspent_ha(&self) -> Option<f64> {
+        self.available_ha.map(|a| (a - self.treated_ha).max(0.0))
     }
 }

@@ -288,20 +288,25 @@ impl Cohorts {
     /// `vulnerable_ha` is the area that can carry the invader (including what is
     /// already infested).
     pub fn step(&mut self, params: &InvasionParams, vulnerable_ha: f64) -> f64 {
-        self.step_with(params, vulnerable_ha, 0.0)
+        self.step_with(params, vulnerable_ha, 0.0).0
     }
 
     /// One year of ageing and spread plus `extra_ha` of re-establishment (regrowth
-    /// after control), all capped at the uninvaded vulnerable area; returns the new
-    /// age-0 area, ha.
-    pub fn step_with(&mut self, params: &InvasionParams, vulnerable_ha: f64, extra_ha: f64) -> f64 {
+    /// after control) on the uninvaded vulnerable area `F = max(V − I, 0)`.
+    ///
+    /// The re-establishment takes the free area first (it comes up on land just
+    /// cleared), `X' = min(X, F)`; spread takes what is left, `ΔI' = min(ΔI, F − X')`.
+    /// Both join the new age-0 cohort; returns `(ΔI', X')`, ha, so that each part is
+    /// reported once and as it established.
+    pub fn step_with(&mut self, params: &InvasionParams, vulnerable_ha: f64, extra_ha: f64) -> (f64, f64) {
         let seed_ha = self.area_at_least_age(params.seed_bearing_age_yr as usize);
         let infested = self.infested_ha();
         let spread_ha = new_infestation_ha(params.spread_rate_per_yr, seed_ha, params.seed_rain_ha_per_yr, infested, vulnerable_ha);
         let free_ha = (vulnerable_ha - infested).max(0.0);
-        let new_ha = (spread_ha + extra_ha.max(0.0)).min(free_ha);
-        self.areas_ha.push(new_ha);
-        new_ha
+        let extra = extra_ha.max(0.0).min(free_ha);
+        let spread = spread_ha.min(free_ha - extra).max(0.0);
+        self.areas_ha.push(spread + extra);
+        (spread, extra)
     }
 
     /// Cohort areas from oldest to youngest, ha.

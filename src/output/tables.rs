@@ -292,6 +292,9 @@ pub fn budget_fields(strategy: &str, pool: &str, b: &BudgetYear) -> Vec<String> 
         num(b.spent, 2),
         if b.available.is_finite() { num(b.unspent(), 2) } else { String::new() },
         num(b.carried, 2),
+        opt_num(b.available_ha, 2),
+        num(b.treated_ha, 2),
+        opt_num(b.unspent_ha(), 2),
     ]
 }
 

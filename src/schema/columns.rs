@@ -319,7 +319,8 @@ pub mod budget {
     pub use super::{STRATEGY, YEAR};
     /// `basin` or a catchment id.
     pub const POOL: &str = "pool";
-    /// Budget available, $ ([`UNLIMITED`] when there is no limit).
+    /// Budget available, $ ([`UNLIMITED`] when there is no dollar limit, as for a
+    /// fixed-area programme).
     pub const AVAILABLE: &str = "available";
     /// Spent, $.
     pub const SPENT: &str = "spent";
@@ -327,10 +328,16 @@ pub mod budget {
     pub const UNSPENT: &str = "unspent";
     /// Unspent budget carried into the next year, $ (0 without `carry_over`).
     pub const CARRIED_OVER: &str = "carried_over";
+    /// Area to treat, ha, of a fixed-area programme (empty for a budget programme).
+    pub const AVAILABLE_HA: &str = "available_ha";
+    /// Area treated from the pool, ha.
+    pub const TREATED_HA: &str = "treated_ha";
+    /// Area left untreated, ha, of a fixed-area programme (empty for a budget programme).
+    pub const UNSPENT_HA: &str = "unspent_ha";
     /// The value of [`AVAILABLE`] without a limit.
     pub const UNLIMITED: &str = "unlimited";
     /// The header.
-    pub const COLUMNS: [&str; 7] = [STRATEGY, POOL, YEAR, AVAILABLE, SPENT, UNSPENT, CARRIED_OVER];
+    pub const COLUMNS: [&str; 10] = [STRATEGY, POOL, YEAR, AVAILABLE, SPENT, UNSPENT, CARRIED_OVER, AVAILABLE_HA, TREATED_HA, UNSPENT_HA];
 }
 
 /// `delay.csv`: what a later start of each programme costs.

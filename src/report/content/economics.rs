@@ -151,13 +151,24 @@ pub(super) fn economics_results(d: &RunData, doc: &mut Doc) {
                     b.available.map(|v| Text::from(fixed(v, 0))).unwrap_or_else(|| Text::from("unlimited")),
                     Text::from(fixed(b.spent, 0)),
                     Text::from(fixed(b.unspent, 0)),
+                    b.available_ha.map(|v| Text::from(fixed(v, 1))).unwrap_or_else(|| Text::from("no area limit")),
+                    Text::from(fixed(b.treated_ha, 1)),
                 ]
             })
             .collect();
         doc.table(Table {
             caption: "Budgets over the horizon, by strategy and budget pool (sums of budget.csv)".into(),
-            head: vec!["Strategy".into(), "Pool".into(), "Years".into(), "Available, $".into(), "Spent, $".into(), "Unspent, $".into()],
-            align: vec![Align::Left, Align::Left, Align::Right, Align::Right, Align::Right, Align::Right],
+            head: vec![
+                "Strategy".into(),
+                "Pool".into(),
+                "Years".into(),
+                "Available, $".into(),
+                "Spent, $".into(),
+                "Unspent, $".into(),
+                "Area available, ha".into(),
+                "Treated, ha".into(),
+            ],
+            align: vec![Align::Left, Align::Left, Align::Right, Align::Right, Align::Right, Align::Right, Align::Right, Align::Right],
             rows,
             note: None,
         });

@@ -197,6 +197,11 @@ pub struct BudgetTotals {
     pub spent: f64,
     /// Unspent, $.
     pub unspent: f64,
+    /// Sum of the area to treat, ha, of a fixed-area programme (`None` for a budget
+    /// programme, or a folder written before `budget.csv` had hectare columns).
+    pub available_ha: Option<f64>,
+    /// Area treated, ha (0 in a folder written before `budget.csv` had it).
+    pub treated_ha: f64,
     /// Years.
     pub years: usize,
 }
@@ -384,6 +389,7 @@ pub(super) fn read_delay(t: &CsvTable, problems: &mut Vec<Problem>) -> Vec<Delay
 
 pub(super) fn read_budget(t: &CsvTable, problems: &mut Vec<Problem>) -> BTreeMap<(String, String), BudgetTotals> {
     let c = t.require(&[budget::STRATEGY, budget::POOL, budget::YEAR, budget::AVAILABLE, budget::SPENT, budget::UNSPENT], problems);
+    let (available_ha, treated_ha) = (t.col(budget::AVAILABLE_HA), t.col(budget::TREATED_HA));
     let mut out: BTreeMap<(String, String), BudgetTotals> = BTreeMap::new();
     if !problems.is_empty() {
         return out;
@@ -400,6 +406,15 @@ pub(super) fn read_budget(t: &CsvTable, problems: &mut Vec<Problem>) -> BTreeMap
         }
         e.spent += t.num(r, c[4], problems).unwrap_or(0.0);
         e.unspent += t.num(r, c[5], problems).unwrap_or(0.0);
+        // Hectare columns: optional, so folders written before they existed still read.
+        if let Some(c_ha) = available_ha {
+            if let Some(v) = t.num(r, c_ha, problems) {
+                *e.available_ha.get_or_insert(0.0) += v;
+            }
+        }
+        if let Some(c_ha) = treated_ha {
+            e.treated_ha += t.num(r, c_ha, problems).unwrap_or(0.0);
+        }
     }
     out
 }
@@ -524,4 +539,37 @@ pub(super) fn read_economics(t: &CsvTable, problems: &mut Vec<Problem>) -> Econo
         );
     }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn budget_totals_keep_hectares_apart_and_read_older_folders() {
+        let dir = tempfile::tempdir().unwrap();
+        std::fs::write(
+            dir.path().join("budget.csv"),
+            "strategy,pool,year,available,spent,unspent,carried_over,available_ha,treated_ha,unspent_ha\n\
+             area,basin,2027,unlimited,450.00,,0.00,30.00,30.00,0.00\n\
+             area,basin,2028,unlimited,300.00,,0.00,30.00,24.50,5.50\n\
+             money,basin,2027,1000.00,400.00,600.00,0.00,,8.00,\n",
+        )
+        .unwrap();
+        let t = CsvTable::read(dir.path(), "budget.csv").unwrap().unwrap();
+        let mut problems = Vec::new();
+        let b = read_budget(&t, &mut problems);
+        assert!(problems.is_empty(), "{problems:?}");
+        let area = &b[&("area".to_string(), "basin".to_string())];
+        assert_eq!((area.available, area.spent, area.unspent, area.available_ha, area.treated_ha), (None, 750.0, 0.0, Some(60.0), 54.5));
+        let money = &b[&("money".to_string(), "basin".to_string())];
+        assert_eq!((money.available, money.unspent, money.available_ha, money.treated_ha), (Some(1000.0), 600.0, None, 8.0));
+        // A folder written before the hectare columns existed still reads.
+        std::fs::write(dir.path().join("budget.csv"), "strategy,pool,year,available,spent,unspent,carried_over\nm,basin,2027,10,4,6,0\n")
+            .unwrap();
+        let t = CsvTable::read(dir.path(), "budget.csv").unwrap().unwrap();
+        let b = read_budget(&t, &mut problems);
+        assert!(problems.is_empty(), "{problems:?}");
+        assert_eq!(b[&("m".to_string(), "basin".to_string())].available_ha, None);
+    }
 }
