@@ -182,11 +182,13 @@ pub fn write_economics_rows<W: std::io::Write>(
 ) -> Result<()> {
     let mut vals: Vec<f64> = Vec::with_capacity(members.len());
     for (j, (name, dec)) in columns::economics::VARIABLES.iter().enumerate() {
-        vals.clear();
-        vals.extend(members.iter().filter_map(|m| m[j]).filter(|v| v.is_finite()));
-        if vals.is_empty() && members.iter().all(|m| m[j].is_none()) && j >= 5 {
+        // NPV and BCR exist only with a value of water: then no member has them.
+        let needs_water_value = *name == columns::summary::NPV || *name == columns::summary::BENEFIT_COST_RATIO;
+        if needs_water_value && members.iter().all(|m| m[j].is_none()) {
             continue;
         }
+        vals.clear();
+        vals.extend(members.iter().filter_map(|m| m[j]).filter(|v| v.is_finite()));
         vals.sort_by(f64::total_cmp);
         let mut fields = vec![id.to_string(), scope.to_string(), strategy.to_string(), name.to_string()];
         for p in PERCENTILES {

@@ -232,12 +232,7 @@ pub const EXECUTIVE_DELAY_YR: i32 = 10;
 
 /// The 5–95 % range of `variable` in `ensemble.csv` for a row key.
 fn ensemble_range(d: &RunData, in_scope: &str, catchment: &str, strategy: &str, variable: &str, year: i32) -> Option<(Valued, Valued)> {
-    let e = d.ensemble.as_ref()?;
-    let q = if in_scope == scope::ARRIVING {
-        e.get_arriving(catchment, strategy, variable, year)?
-    } else {
-        e.get(catchment, strategy, variable, year)?
-    };
+    let q = d.ensemble.as_ref()?.get_in(in_scope, catchment, strategy, variable, year)?;
     let key = [catchment, in_scope, strategy, &year.to_string(), variable];
     Some((Valued::new(q.p5, Source::new("ensemble.csv", &key, "p5")), Valued::new(q.p95, Source::new("ensemble.csv", &key, "p95"))))
 }

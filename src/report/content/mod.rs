@@ -85,13 +85,7 @@ fn range_text_in(
     decimals: usize,
     signed_fmt: bool,
 ) -> Text {
-    let Some(e) = &d.ensemble else { return Text::new() };
-    let q = if in_scope == scope::ARRIVING {
-        e.get_arriving(catchment, strategy, variable, year)
-    } else {
-        e.get(catchment, strategy, variable, year)
-    };
-    let Some(q) = q else { return Text::new() };
+    let Some(q) = d.ensemble.as_ref().and_then(|e| e.get_in(in_scope, catchment, strategy, variable, year)) else { return Text::new() };
     let f = |v: f64| if signed_fmt { signed(v, decimals) } else { fixed(v, decimals) };
     let key = [catchment, in_scope, strategy, &year.to_string(), variable];
     let src = |c: &str| Some(Source::new("ensemble.csv", &key, c));

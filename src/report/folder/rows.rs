@@ -128,6 +128,16 @@ impl Ensemble {
         self.arriving.get(&key(node, strategy, variable, year))
     }
 
+    /// Percentiles of `variable` in a row of scope `in_scope` (`arriving` rows are
+    /// kept apart; `local` and `basin` rows share `get`).
+    pub fn get_in(&self, in_scope: &str, catchment: &str, strategy: &str, variable: &str, year: i32) -> Option<&Quantiles> {
+        if in_scope == columns::scope::ARRIVING {
+            self.get_arriving(catchment, strategy, variable, year)
+        } else {
+            self.get(catchment, strategy, variable, year)
+        }
+    }
+
     /// The series of `variable` over years (`local` or `basin`).
     pub fn series(&self, catchment: &str, strategy: &str, variable: &str) -> Vec<(i32, Quantiles)> {
         series_of(&self.rows, catchment, strategy, variable)
